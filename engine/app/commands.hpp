@@ -1,0 +1,16 @@
+#pragma once
+// The command line of strewn (CLI11): parses arguments, runs the command, and turns the library's
+// typed errors into messages and exit codes. Exit status: 0 done; 2 bad usage or an invalid
+// scenario (nothing written); 3 a run-time failure (I/O, numerical).
+#include <iosfwd>
+
+namespace strewn {
+
+inline constexpr int kExitDone = 0;
+inline constexpr int kExitInvalid = 2;
+inline constexpr int kExitFailure = 3;
+
+/// Runs strewn with the given arguments, writing results to `out` and messages to `err`.
+int run_command_line(int argc, const char* const* argv, std::ostream& out, std::ostream& err);
+
+}  // namespace strewn

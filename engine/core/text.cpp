@@ -1,0 +1,61 @@
+#include "core/text.hpp"
+
+#include <algorithm>
+#include <cctype>
+#include <charconv>
+
+namespace strewn {
+
+std::size_t edit_distance(std::string_view a, std::string_view b) {
+  const std::size_t n = a.size(), m = b.size();
+  std::vector<std::size_t> prev2(m + 1), prev(m + 1), cur(m + 1);
+  for (std::size_t j = 0; j <= m; ++j) prev[j] = j;
+  for (std::size_t i = 1; i <= n; ++i) {
+    cur[0] = i;
+    for (std::size_t j = 1; j <= m; ++j) {
+      const std::size_t cost = a[i - 1] == b[j - 1] ? 0 : 1;
+      cur[j] = std::min({prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + cost});
+      if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1])
+        cur[j] = std::min(cur[j], prev2[j - 2] + 1);
+    }
+    prev2.swap(prev);
+    prev.swap(cur);
+  }
+  return prev[m];
+}
+
+std::string closest_match(std::string_view word, const std::vector<std::string>& candidates) {
+  auto lower = [](std::string_view s) {
+    std::string out(s);
+    std::transform(out.begin(), out.end(), out.begin(),
+                   [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
+    return out;
+  };
+  const std::string word_lower = lower(word);
+  std::string best;
+  std::size_t best_distance = std::max<std::size_t>(1, word.size() / 3) + 1;
+  for (const auto& candidate : candidates) {
+    const std::string cand_lower = lower(candidate);
+    std::size_t d = edit_distance(word_lower, cand_lower);
+    // A key that contains the candidate or is contained in it (e.g. "drag_area" for "area") is a
+    // likely intent too, but only when the shorter one is not trivially short.
+    if (d >= best_distance && best_distance > 1 && std::min(word.size(), candidate.size()) >= 4 &&
+        (cand_lower.find(word_lower) != std::string::npos ||
+         word_lower.find(cand_lower) != std::string::npos))
+      d = best_distance - 1;
+    if (d < best_distance) {
+      best_distance = d;
+      best = candidate;
+    }
+  }
+  return best;
+}
+
+std::string format_number(double value) {
+  char buffer[64];
+  auto [end, ec] = std::to_chars(buffer, buffer + sizeof buffer, value);
+  if (ec != std::errc()) return "?";
+  return std::string(buffer, end);
+}
+
+}  // namespace strewn

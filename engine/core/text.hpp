@@ -1,0 +1,19 @@
+#pragma once
+// Small text helpers for messages.
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace strewn {
+
+/// Optimal string alignment distance (Damerau-Levenshtein with adjacent transpositions).
+std::size_t edit_distance(std::string_view a, std::string_view b);
+
+/// The candidate closest to `word` when it is plausibly a misspelling (distance at most a third of
+/// its length, at least 1, or a case-insensitive match); empty otherwise.
+std::string closest_match(std::string_view word, const std::vector<std::string>& candidates);
+
+/// Shortest decimal text that reads back to the same double ("%.17g" trimmed).
+std::string format_number(double value);
+
+}  // namespace strewn

@@ -1,0 +1,218 @@
+#pragma once
+// Dormand-Prince 5(4) explicit Runge-Kutta with step-size control and dense output.
+//
+// Method: J. R. Dormand and P. J. Prince (1980), "A family of embedded Runge-Kutta formulae",
+// J. Comput. Appl. Math. 6:19-26. Dense output of order 4 and the step controller follow
+// E. Hairer, S. P. Norsett, G. Wanner, "Solving Ordinary Differential Equations I" (2nd ed.,
+// Springer 1993), section II.5 and II.6 (the DOPRI5 continuous extension).
+//
+// The stepper knows nothing of the forces or events: it advances y' = f(t, y) one accepted step
+// at a time and offers the dense output over the last step, on which callers locate events.
+// Each state component has its own absolute tolerance (positions and velocities are scaled
+// separately); the error norm is the maximum over components of |error_i| / tolerance_i.
+// With a reference time T set (set_reference_time), the tolerance of a step of length h is
+// tolerance * min(1, h / T) ("error per unit step", Hairer-Norsett-Wanner II.4): local errors
+// that add up over a long flight then sum to at most the tolerance over the time T.
+// A rejected step is a return value, never an exception; retries are capped.
+#include <Eigen/Core>
+#include <algorithm>
+#include <cmath>
+
+namespace strewn {
+
+enum class StepOutcome {
+  accepted,        ///< one step taken
+  step_too_small,  ///< the controller could not meet the tolerance (step underflow or retry cap)
+  non_finite,      ///< the right-hand side returned NaN or infinity
+};
+
+template <int N>
+class DormandPrince5 {
+ public:
+  using State = Eigen::Matrix<double, N, 1>;
+  static constexpr int kDimension = N;
+
+  /// `tolerance`: absolute error allowed per step in each component (all > 0).
+  explicit DormandPrince5(const State& tolerance) : inverse_tolerance_(tolerance.cwiseInverse()) {}
+
+  /// Begins at (t, y). `h_initial` > 0 sets the first trial step; 0 chooses it from the
+  /// derivatives (Hairer, Norsett, Wanner, II.4, "starting step size").
+  /// Precondition: the right-hand side is finite at (t, y).
+  template <class Rhs>
+  void start(Rhs& f, double t, const State& y, double h_initial = 0.0) {
+    t_ = t_previous_ = t;
+    y_ = y_previous_ = y;
+    f(t, y, k1_);
+    ++evaluations_;
+    h_ = h_initial > 0.0 ? h_initial : initial_step(f);
+    previous_error_ = 1e-4;
+    dense_ready_ = false;
+  }
+
+  /// Advances by one accepted step that does not pass t_max (the step is shortened to end exactly
+  /// at t_max when it would). Fixed-step mode (set_fixed_step) takes steps of exactly that size.
+  template <class Rhs>
+  StepOutcome step(Rhs& f, double t_max) {
+    for (int attempt = 0; attempt < kMaxRejections; ++attempt) {
+      double h = fixed_step_ > 0.0 ? fixed_step_ : h_;
+      bool hits_limit = false;
+      if (t_ + h >= t_max) {
+        h = t_max - t_;
+        hits_limit = true;
+      }
+      if (!(h > kMinRelativeStep * std::max(1.0, std::abs(t_))))
+        return StepOutcome::step_too_small;
+      trial(f, h);
+      if (!(y_new_.allFinite() && k7_.allFinite())) {
+        // Treat as a failed step first: a too-large step can leave the domain of the forces.
+        if (fixed_step_ > 0.0 || attempt + 1 == kMaxRejections) return StepOutcome::non_finite;
+        h_ = 0.25 * h;
+        continue;
+      }
+      double error = (error_ * h).cwiseAbs().cwiseProduct(inverse_tolerance_).maxCoeff();
+      if (reference_time_ > 0.0 && h < reference_time_) error *= reference_time_ / h;
+      if (fixed_step_ > 0.0 || error <= 1.0) {
+        accept(h, hits_limit ? t_max : t_ + h);
+        // Step-size proposal with the PI controller of Hairer-Norsett-Wanner (II.4 and DOPRI5:
+        // exponent 0.2 - 0.75 beta, beta = 0.04), bounded growth and the usual safety factor.
+        const double e = std::max(error, 1e-10);
+        double factor = kSafety * std::pow(e, -kAlpha) * std::pow(previous_error_, kBeta);
+        factor = std::clamp(factor, kMinFactor, last_rejected_ ? 1.0 : kMaxFactor);
+        previous_error_ = e;
+        last_rejected_ = false;
+        // A step cut short by t_max keeps the larger proposal it had before the cut.
+        h_ = hits_limit ? std::max(h_, h * factor) : h * factor;
+        return StepOutcome::accepted;
+      }
+      last_rejected_ = true;
+      h_ = h * std::max(kMinFactor, kSafety * std::pow(error, -0.2));
+    }
+    return StepOutcome::step_too_small;
+  }
+
+  /// Undoes the last accepted step: the state returns to (t_previous, y_previous). Used to retake a
+  /// step that straddled a kink of the right-hand side so that it ends exactly on the kink.
+  void rewind() {
+    t_ = t_previous_;
+    y_ = y_previous_;
+    k1_ = k1_previous_;
+  }
+
+  /// Error per unit step over the reference time T (s); 0 turns it off (error per step).
+  void set_reference_time(double reference_time) { reference_time_ = reference_time; }
+
+  /// Forces every later step to be exactly h (no error control); for convergence-order tests.
+  void set_fixed_step(double h) { fixed_step_ = h; }
+
+  [[nodiscard]] double t() const { return t_; }
+  [[nodiscard]] const State& y() const { return y_; }
+  [[nodiscard]] const State& derivative() const { return k1_; }
+  [[nodiscard]] double t_previous() const { return t_previous_; }
+  [[nodiscard]] const State& y_previous() const { return y_previous_; }
+  [[nodiscard]] double proposed_step() const { return h_; }
+  [[nodiscard]] long evaluations() const { return evaluations_; }
+  [[nodiscard]] long steps() const { return steps_; }
+
+  /// Dense output (order 4) at time t within the last accepted step [t_previous, t].
+  [[nodiscard]] State dense(double t) const {
+    const double theta = (t - t_previous_) / (t_ - t_previous_);
+    const double theta1 = 1.0 - theta;
+    return y_previous_ +
+           theta * (r2_ + theta1 * (r3_ + theta * (r4_ + theta1 * r5_)));
+  }
+  /// One component of the dense output, cheaper than the whole state (for root finding).
+  [[nodiscard]] double dense(int component, double t) const {
+    const double theta = (t - t_previous_) / (t_ - t_previous_);
+    const double theta1 = 1.0 - theta;
+    return y_previous_[component] +
+           theta * (r2_[component] +
+                    theta1 * (r3_[component] +
+                              theta * (r4_[component] + theta1 * r5_[component])));
+  }
+
+ private:
+  static constexpr int kMaxRejections = 60;
+  static constexpr double kMinRelativeStep = 1e-13;
+  static constexpr double kSafety = 0.9;
+  static constexpr double kMinFactor = 0.2;
+  static constexpr double kMaxFactor = 10.0;
+  static constexpr double kBeta = 0.04;
+  static constexpr double kAlpha = 0.2 - 0.75 * kBeta;
+
+  // Butcher tableau of Dormand and Prince (1980), table 2 ("RK5(4)7M").
+  static constexpr double c2 = 1.0 / 5, c3 = 3.0 / 10, c4 = 4.0 / 5, c5 = 8.0 / 9;
+  static constexpr double a21 = 1.0 / 5;
+  static constexpr double a31 = 3.0 / 40, a32 = 9.0 / 40;
+  static constexpr double a41 = 44.0 / 45, a42 = -56.0 / 15, a43 = 32.0 / 9;
+  static constexpr double a51 = 19372.0 / 6561, a52 = -25360.0 / 2187, a53 = 64448.0 / 6561,
+                          a54 = -212.0 / 729;
+  static constexpr double a61 = 9017.0 / 3168, a62 = -355.0 / 33, a63 = 46732.0 / 5247,
+                          a64 = 49.0 / 176, a65 = -5103.0 / 18656;
+  static constexpr double a71 = 35.0 / 384, a73 = 500.0 / 1113, a74 = 125.0 / 192,
+                          a75 = -2187.0 / 6784, a76 = 11.0 / 84;
+  // Difference of the 5th- and 4th-order weights (the error estimate).
+  static constexpr double e1 = 71.0 / 57600, e3 = -71.0 / 16695, e4 = 71.0 / 1920,
+                          e5 = -17253.0 / 339200, e6 = 22.0 / 525, e7 = -1.0 / 40;
+  // Dense output coefficients of the DOPRI5 continuous extension (Hairer-Norsett-Wanner, II.6).
+  static constexpr double d1 = -12715105075.0 / 11282082432.0, d3 = 87487479700.0 / 32700410799.0,
+                          d4 = -10690763975.0 / 1880347072.0, d5 = 701980252875.0 / 199316789632.0,
+                          d6 = -1453857185.0 / 822651844.0, d7 = 69997945.0 / 29380423.0;
+
+  template <class Rhs>
+  void trial(Rhs& f, double h) {
+    const double t = t_;
+    f(t + c2 * h, y_ + h * (a21 * k1_), k2_);
+    f(t + c3 * h, y_ + h * (a31 * k1_ + a32 * k2_), k3_);
+    f(t + c4 * h, y_ + h * (a41 * k1_ + a42 * k2_ + a43 * k3_), k4_);
+    f(t + c5 * h, y_ + h * (a51 * k1_ + a52 * k2_ + a53 * k3_ + a54 * k4_), k5_);
+    f(t + h, y_ + h * (a61 * k1_ + a62 * k2_ + a63 * k3_ + a64 * k4_ + a65 * k5_), k6_);
+    y_new_ = y_ + h * (a71 * k1_ + a73 * k3_ + a74 * k4_ + a75 * k5_ + a76 * k6_);
+    f(t + h, y_new_, k7_);
+    evaluations_ += 6;
+    error_ = e1 * k1_ + e3 * k3_ + e4 * k4_ + e5 * k5_ + e6 * k6_ + e7 * k7_;
+  }
+
+  void accept(double h, double t_new) {
+    // Dense output coefficients for [t_, t_new] (DOPRI5 "CONTD5" form).
+    const State difference = y_new_ - y_;
+    r2_ = difference;
+    r3_ = h * k1_ - difference;
+    r4_ = difference - h * k7_ - r3_;
+    r5_ = h * (d1 * k1_ + d3 * k3_ + d4 * k4_ + d5 * k5_ + d6 * k6_ + d7 * k7_);
+    t_previous_ = t_;
+    y_previous_ = y_;
+    k1_previous_ = k1_;
+    t_ = t_new;
+    y_ = y_new_;
+    k1_ = k7_;  // first-same-as-last
+    ++steps_;
+    dense_ready_ = true;
+  }
+
+  template <class Rhs>
+  double initial_step(Rhs& f) {
+    const double d0 = y_.cwiseProduct(inverse_tolerance_).cwiseAbs().maxCoeff();
+    const double d1n = k1_.cwiseProduct(inverse_tolerance_).cwiseAbs().maxCoeff();
+    double h0 = (d0 < 1e-5 || d1n < 1e-5) ? 1e-6 : 0.01 * d0 / d1n;
+    h0 = std::min(h0, 1.0);
+    State k;
+    f(t_ + h0, State(y_ + h0 * k1_), k);
+    ++evaluations_;
+    const double d2 = ((k - k1_).cwiseProduct(inverse_tolerance_)).cwiseAbs().maxCoeff() / h0;
+    const double dmax = std::max(d1n, d2);
+    const double h1 =
+        dmax <= 1e-15 ? std::max(1e-6, h0 * 1e-3) : std::pow(0.01 / dmax, 1.0 / 5.0);
+    return std::min(100.0 * h0, h1);
+  }
+
+  State inverse_tolerance_;
+  double t_ = 0.0, t_previous_ = 0.0, h_ = 0.0, fixed_step_ = 0.0, reference_time_ = 0.0;
+  double previous_error_ = 1e-4;
+  bool last_rejected_ = false, dense_ready_ = false;
+  long evaluations_ = 0, steps_ = 0;
+  State y_, y_previous_, y_new_, error_;
+  State k1_, k1_previous_, k2_, k3_, k4_, k5_, k6_, k7_;
+  State r2_, r3_, r4_, r5_;
+};
+
+}  // namespace strewn

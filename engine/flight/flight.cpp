@@ -1,0 +1,358 @@
+#include "flight/flight.hpp"
+
+#include <boost/math/tools/toms748_solve.hpp>
+#include <cmath>
+#include <span>
+
+#include "flight/dormand_prince.hpp"
+
+namespace strewn {
+
+const char* to_string(FlightStatus status) {
+  switch (status) {
+    case FlightStatus::landed: return "landed";
+    case FlightStatus::step_limit: return "step_limit";
+    case FlightStatus::time_limit: return "time_limit";
+    case FlightStatus::step_too_small: return "step_too_small";
+    case FlightStatus::non_finite: return "non_finite";
+  }
+  return "?";
+}
+
+const char* to_string(CanopyState state) {
+  switch (state) {
+    case CanopyState::none: return "none";
+    case CanopyState::full: return "full";
+    case CanopyState::partial: return "partial";
+    case CanopyState::failed: return "failed";
+  }
+  return "?";
+}
+
+namespace {
+
+// Time within the last step at which the altitude reaches `level`, by TOMS 748 (Boost.Math) on
+// the dense output. The caller knows the step began on one side of the level and ended on the
+// other (or on it).
+template <class Stepper>
+double locate_level(const Stepper& stepper, double level) {
+  auto height = [&](double t) { return stepper.dense(2, t) - level; };
+  const double a = stepper.t_previous(), b = stepper.t();
+  const double fa = stepper.y_previous()[2] - level;
+  const double fb = stepper.y()[2] - level;
+  if (fb == 0.0) return b;
+  if (fa == 0.0 || (fa > 0.0) == (fb > 0.0)) return a;
+  std::uintmax_t iterations = 80;
+  const auto root = boost::math::tools::toms748_solve(
+      height, a, b, fa, fb, boost::math::tools::eps_tolerance<double>(50), iterations);
+  return 0.5 * (root.first + root.second);
+}
+
+class FlightRun {
+ public:
+  FlightRun(const Body& body, const Environment& environment, const FlightOptions& options,
+            FlightObserver* observer)
+      : body_(body),
+        ground_(environment.ground),
+        options_(options),
+        observer_(observer),
+        forces_(body, environment),
+        kinks_(environment.wind->kinks()) {
+    if (body.drag.mach_table) mach_kinks_ = body.drag.mach_table->mach();
+  }
+
+  FlightResult run(const ReleaseState& release);
+
+ private:
+  enum class Next { ground, stage_change, quasi_steady, stop };
+
+  template <class Stepper, class State>
+  Next integrate(Stepper& stepper, State& y, double& t, double t_stop, bool watch_deploy_height);
+  void finish_landing(double t, const Vec3& position, const Vec3& velocity);
+  void record(double t, const Vec3& position, const Vec3& velocity, bool quasi) {
+    if (observer_) observer_->record({t, position, velocity, forces_.stage(), quasi}, forces_);
+  }
+  [[nodiscard]] bool quasi_steady_eligible(double z) const;
+  [[nodiscard]] double remaining_time_estimate(double z) const;
+
+  // When the last step crossed a kink of the forces (a wind-profile layer altitude, or a Mach
+  // number where the Mach table's slope changes), rewinds it and sets kink_stop_ so that the step
+  // is retaken to end on the first such crossing; true when it did. Within each step the forces
+  // are then smooth and the error estimate honest.
+  template <class Stepper>
+  bool retake_to_kink(Stepper& stepper) {
+    const double z0 = stepper.y_previous()[2], z1 = stepper.y()[2];
+    double first = std::numeric_limits<double>::infinity();
+    const double low = std::min(z0, z1), high = std::max(z0, z1);
+    for (double kink : kinks_) {
+      if (!(kink > low && kink < high && kink > ground_) || std::abs(z0 - kink) < kKinkTolerance)
+        continue;
+      first = std::min(first, locate_level(stepper, kink));
+    }
+    if constexpr (Stepper::State::RowsAtCompileTime == 6) {
+      if (!mach_kinks_.empty() && forces_.stage() != DragStage::canopy) {
+        const double m0 = mach_of(stepper.y_previous()), m1 = mach_of(stepper.y());
+        for (double kink : mach_kinks_) {
+          if (!(kink > std::min(m0, m1) && kink < std::max(m0, m1)) ||
+              std::abs(m0 - kink) < kMachKinkTolerance)
+            continue;
+          auto offset = [&](double t) { return mach_of(stepper.dense(t)) - kink; };
+          std::uintmax_t iterations = 60;
+          const auto root = boost::math::tools::toms748_solve(
+              offset, stepper.t_previous(), stepper.t(), m0 - kink, m1 - kink,
+              boost::math::tools::eps_tolerance<double>(50), iterations);
+          first = std::min(first, 0.5 * (root.first + root.second));
+        }
+      }
+    }
+    if (!(first > stepper.t_previous() && first < stepper.t())) return false;
+    stepper.rewind();
+    kink_stop_ = first;
+    return true;
+  }
+  // Mach number of a full state.
+  [[nodiscard]] double mach_of(const FlightState& y) const {
+    const Air air = forces_.medium().air(y[2], forces_.conditions());
+    const Eigen::Vector2d w = forces_.wind().at(y[2]);
+    const Vec3 u(y[3] - w.x(), y[4] - w.y(), y[5]);
+    return u.norm() / air.sound_speed;
+  }
+  static constexpr double kMachKinkTolerance = 1e-9;
+  static constexpr double kKinkTolerance = 1e-6;  // m
+
+  const Body& body_;
+  double ground_;
+  const FlightOptions& options_;
+  FlightObserver* observer_;
+  Forces forces_;
+  std::span<const double> kinks_;
+  std::span<const double> mach_kinks_;
+  double kink_stop_ = std::numeric_limits<double>::infinity();
+  FlightResult result_;
+  double next_record_ = 0.0;
+};
+
+bool FlightRun::quasi_steady_eligible(double z) const {
+  if (!options_.allow_quasi_steady) return false;
+  const double vt = forces_.terminal_speed(z);
+  const double tau = vt / forces_.effective_gravity(z);
+  if (!(std::isfinite(tau) && tau > 0.0)) return false;
+  const double velocity_change = 2.0 * forces_.wind().max_speed() + vt;
+  return tau * velocity_change <= FlightOptions::kQuasiSteadyShare * options_.tolerance;
+}
+
+// Time left to fall from altitude z at the terminal speed near the ground of the current drag
+// stage (the slowest it will fall there, so an overestimate for falls from high up): the
+// reference time of the error-per-unit-step control. At least 1 s, at most the time cap.
+double FlightRun::remaining_time_estimate(double z) const {
+  const double height = std::max(z - ground_, 0.0);
+  double speed;
+  if (forces_.stage() == DragStage::body) {
+    speed = forces_.terminal_speed(ground_);
+  } else {
+    const double rho = forces_.medium().density(ground_, forces_.conditions());
+    speed = std::sqrt(2.0 * forces_.mass() * forces_.effective_gravity(ground_) /
+                      (rho * body_.canopy.drag_area));
+  }
+  if (!(speed > 0.0)) return options_.max_time;  // a floating body: the longest flight
+  return std::clamp(height / speed, 1.0, options_.max_time);
+}
+
+void FlightRun::finish_landing(double t, const Vec3& position, const Vec3& velocity) {
+  result_.status = FlightStatus::landed;
+  result_.time = t;
+  result_.position = position;
+  result_.position.z() = ground_;
+  result_.velocity = velocity;
+  result_.speed = velocity.norm();
+  result_.energy = 0.5 * body_.mass * result_.speed * result_.speed;
+  result_.angle = std::atan2(-velocity.z(), velocity.head<2>().norm()) / constants::degree;
+}
+
+// Advances `stepper` until the ground, a deployment height, t_stop or a failure. On return, (t, y)
+// hold the state at the event. Landing fills result_.
+template <class Stepper, class State>
+FlightRun::Next FlightRun::integrate(Stepper& stepper, State& y, double& t, double t_stop,
+                                     bool watch_deploy_height) {
+  constexpr bool kQuasi = State::RowsAtCompileTime == 3;
+  auto velocity_of = [&](const State& s, double z) -> Vec3 {
+    if constexpr (kQuasi) {
+      State rate;
+      forces_(0.0, s, rate);
+      (void)z;
+      return rate;
+    } else {
+      (void)z;
+      return s.template tail<3>();
+    }
+  };
+  stepper.start(forces_, t, y);
+  stepper.set_reference_time(remaining_time_estimate(y[2]));
+  kink_stop_ = std::numeric_limits<double>::infinity();
+  const double deploy_level = ground_ + body_.canopy.deploy_height;
+  while (true) {
+    const StepOutcome outcome = stepper.step(forces_, std::min(t_stop, kink_stop_));
+    if (outcome != StepOutcome::accepted) {
+      result_.status = outcome == StepOutcome::non_finite ? FlightStatus::non_finite
+                                                          : FlightStatus::step_too_small;
+      t = stepper.t();
+      y = stepper.y();
+      return Next::stop;
+    }
+    if (++result_.steps > options_.max_steps) {
+      result_.status = FlightStatus::step_limit;
+      t = stepper.t();
+      y = stepper.y();
+      return Next::stop;
+    }
+    if (stepper.t() >= kink_stop_) kink_stop_ = std::numeric_limits<double>::infinity();
+    else if (retake_to_kink(stepper)) continue;
+    const double z = stepper.y()[2];
+    if (observer_ && options_.record_interval > 0.0) {
+      for (; next_record_ < stepper.t(); next_record_ += options_.record_interval) {
+        if (next_record_ <= stepper.t_previous()) continue;
+        const State s = stepper.dense(next_record_);
+        if (s[2] <= ground_) break;
+        record(next_record_, s.template head<3>(), velocity_of(s, s[2]), kQuasi);
+      }
+    }
+    // The deployment height lies above the ground, so it is crossed first.
+    if (watch_deploy_height && z <= deploy_level) {
+      t = locate_level(stepper, deploy_level);
+      y = stepper.dense(t);
+      return Next::stage_change;
+    }
+    if (z <= ground_) {
+      t = locate_level(stepper, ground_);
+      y = stepper.dense(t);
+      finish_landing(t, y.template head<3>(), velocity_of(y, ground_));
+      return Next::ground;
+    }
+    if (observer_ && options_.record_interval <= 0.0)
+      record(stepper.t(), stepper.y().template head<3>(), velocity_of(stepper.y(), z), kQuasi);
+    if (stepper.t() >= t_stop) {
+      t = t_stop;
+      y = stepper.y();
+      return Next::stage_change;
+    }
+  }
+}
+
+FlightResult FlightRun::run(const ReleaseState& release) {
+  result_ = FlightResult{};
+  FlightState y;
+  y << release.position, release.velocity;
+  double t = 0.0;
+  if (!y.allFinite()) {
+    result_.status = FlightStatus::non_finite;
+    return result_;
+  }
+  if (y[2] <= ground_) {  // released on (or below) the ground
+    finish_landing(0.0, release.position, release.velocity);
+    return result_;
+  }
+
+  // Canopy plan: a deployment time when known in advance, or a deployment height to watch.
+  const Canopy& canopy = body_.canopy;
+  const bool opens = body_.has_canopy && canopy.state != CanopyState::failed;
+  double deploy_time = std::numeric_limits<double>::infinity();
+  bool watch_height = false;
+  if (opens) {
+    if (canopy.trigger == Canopy::Trigger::time) deploy_time = std::max(0.0, canopy.deploy_after);
+    else if (y[2] - ground_ <= canopy.deploy_height) deploy_time = 0.0;  // released below it
+    else watch_height = true;
+  }
+
+  FlightState tolerance;
+  const double position_tolerance = FlightOptions::kPositionShare * options_.tolerance;
+  const double velocity_tolerance = position_tolerance / FlightOptions::kVelocityTime;
+  tolerance << Eigen::Vector3d::Constant(position_tolerance),
+      Eigen::Vector3d::Constant(velocity_tolerance);
+  DormandPrince5<6> stepper(tolerance);
+  long evaluations = 0;
+  next_record_ = options_.record_interval;
+  record(0.0, release.position, release.velocity, false);
+
+  // Stage sequence: body -> (deployment) filling -> (fill end) canopy.
+  DragStage stage = DragStage::body;
+  double fill_end = std::numeric_limits<double>::infinity();
+  auto enter_deployment = [&](double when) {
+    result_.deploy_time = when;
+    if (canopy.fill_time > 0.0) {
+      stage = DragStage::filling;
+      fill_end = when + canopy.fill_time;
+      forces_.set_stage(stage, canopy.drag_area, when, canopy.fill_time);
+    } else {
+      stage = DragStage::canopy;
+      forces_.set_stage(stage, canopy.drag_area);
+    }
+  };
+  forces_.set_stage(DragStage::body);
+  if (deploy_time == 0.0) enter_deployment(0.0);
+
+  while (true) {
+    double t_stop = options_.max_time;
+    bool quasi_next = false;
+    if (stage == DragStage::body) {
+      t_stop = std::min(t_stop, deploy_time);
+      if (!opens && quasi_steady_eligible(y[2])) {
+        // Integrate the release transient in full, then switch to the quasi-steady form.
+        const double tau = forces_.relaxation_time(y[2]);
+        const double switch_time = t + FlightOptions::kTransientRelaxationTimes * tau;
+        if (switch_time < t_stop) {
+          t_stop = switch_time;
+          quasi_next = true;
+        }
+      }
+    } else if (stage == DragStage::filling) {
+      t_stop = std::min(t_stop, fill_end);
+    }
+    const Next next =
+        integrate(stepper, y, t, t_stop, watch_height && stage == DragStage::body);
+    evaluations += stepper.evaluations();
+    if (next == Next::ground || next == Next::stop) break;
+    if (t >= options_.max_time) {
+      result_.status = FlightStatus::time_limit;
+      break;
+    }
+    if (quasi_next) {
+      // The rest of the fall in the quasi-steady form, on positions only.
+      result_.quasi_steady = true;
+      PositionState tolerance3 = PositionState::Constant(position_tolerance);
+      DormandPrince5<3> quasi_stepper(tolerance3);
+      PositionState r = y.head<3>();
+      const Next end = integrate(quasi_stepper, r, t, options_.max_time, false);
+      evaluations += quasi_stepper.evaluations();
+      if (end == Next::stage_change) result_.status = FlightStatus::time_limit;
+      y.head<3>() = r;
+      break;
+    }
+    // A stage boundary: deployment (by time or height) or the end of filling.
+    if (stage == DragStage::body) {
+      enter_deployment(t);
+    } else if (stage == DragStage::filling) {
+      stage = DragStage::canopy;
+      forces_.set_stage(stage, canopy.drag_area);
+    }
+    record(t, y.head<3>(), y.tail<3>(), false);
+  }
+  result_.evaluations = evaluations;
+  if (result_.status != FlightStatus::landed) {
+    result_.time = t;
+    result_.position = y.head<3>();
+    result_.velocity = y.tail<3>();
+  } else if (observer_) {
+    record(result_.time, result_.position, result_.velocity, result_.quasi_steady);
+  }
+  return result_;
+}
+
+}  // namespace
+
+FlightResult fly(const Body& body, const Environment& environment, const ReleaseState& release,
+                 const FlightOptions& options, FlightObserver* observer) {
+  FlightRun run(body, environment, options, observer);
+  return run.run(release);
+}
+
+}  // namespace strewn

@@ -1,0 +1,180 @@
+#include "io/trace_report.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <iomanip>
+
+#include "core/errors.hpp"
+#include "io/cautions.hpp"
+
+namespace strewn {
+
+namespace {
+const char* stage_name(DragStage stage) {
+  switch (stage) {
+    case DragStage::body: return "body";
+    case DragStage::filling: return "filling";
+    case DragStage::canopy: return "canopy";
+  }
+  return "?";
+}
+
+// Downrange (along the release track) and crossrange (right of it) of the impact from the
+// release point.
+std::pair<double, double> track_offsets(const TraceRecord& t) {
+  const Eigen::Vector2d ahead = bearing_unit(t.scenario->release.track.nominal());
+  const Eigen::Vector2d right(ahead.y(), -ahead.x());
+  const Eigen::Vector2d d = t.result.position.head<2>() - t.inputs.release.position.head<2>();
+  return {d.dot(ahead), d.dot(right)};
+}
+
+nlohmann::json range_json(const Range& r) {
+  if (r.empty()) return nullptr;
+  return {{"min", r.min}, {"max", r.max}};
+}
+
+std::string fixed(double v, int digits) {
+  char buffer[64];
+  std::snprintf(buffer, sizeof buffer, "%.*f", digits, v);
+  return buffer;
+}
+std::string general(double v) {
+  char buffer[64];
+  std::snprintf(buffer, sizeof buffer, "%.3g", v);
+  return buffer;
+}
+}  // namespace
+
+TraceRecord trace_body(const Scenario& scenario, const World& world, const std::string& body_name) {
+  std::size_t index = 0;
+  if (!body_name.empty()) {
+    const int found = scenario.body_index(body_name);
+    if (found < 0) {
+      std::string names;
+      for (const auto& b : scenario.bodies) names += (names.empty() ? "" : ", ") + b.name;
+      throw UsageError("no body named \"" + body_name + "\" in " + scenario.path +
+                       " (bodies: " + names + ")");
+    }
+    index = static_cast<std::size_t>(found);
+  }
+  TraceRecord t;
+  t.scenario = &scenario;
+  t.body_index = index;
+  t.inputs = nominal_flight(scenario, index);
+  t.tolerance = scenario.study.tolerance;
+  Environment environment{&world.medium, t.inputs.conditions, &world.wind, scenario.site.ground};
+  FlightOptions options;
+  options.tolerance = scenario.study.tolerance;
+  // A first flight gives the time of flight, so the recorded points can be spread evenly
+  // (about 400 of them) whatever the flight's length.
+  const FlightResult first = fly(t.inputs.body, environment, t.inputs.release, options);
+  options.record_interval = std::max(first.time / 400.0, 1e-3);
+  t.result = fly(t.inputs.body, environment, t.inputs.release, options, &t.recorder);
+  return t;
+}
+
+nlohmann::json trace_json(const TraceRecord& t) {
+  const auto& r = t.result;
+  const auto [downrange, crossrange] = track_offsets(t);
+  nlohmann::json j;
+  j["scenario"] = t.scenario->path;
+  j["title"] = t.scenario->title;
+  j["body"] = t.scenario->bodies[t.body_index].name;
+  j["inputs"] = "nominal (every distribution at its median; canopy fully open; no burst velocity)";
+  j["status"] = to_string(r.status);
+  j["impact"] = {{"time", r.time},         {"east", r.position.x()},
+                 {"north", r.position.y()}, {"speed", r.speed},
+                 {"energy", r.energy},     {"angle", r.angle},
+                 {"velocity", {r.velocity.x(), r.velocity.y(), r.velocity.z()}},
+                 {"downrange", downrange}, {"crossrange", crossrange}};
+  const auto& rel = t.inputs.release;
+  j["release"] = {{"east", rel.position.x()},
+                  {"north", rel.position.y()},
+                  {"altitude", rel.position.z()},
+                  {"velocity", {rel.velocity.x(), rel.velocity.y(), rel.velocity.z()}}};
+  j["deploy_time"] = std::isnan(r.deploy_time) ? nlohmann::json(nullptr) : nlohmann::json(r.deploy_time);
+  j["regime"] = {{"reynolds", range_json(t.recorder.reynolds())},
+                 {"mach", range_json(t.recorder.mach())},
+                 {"quadratic_to_linear", range_json(t.recorder.quadratic_to_linear())},
+                 {"drag_model", to_string(t.inputs.body.drag.model)},
+                 {"quasi_steady", r.quasi_steady},
+                 {"warnings", t.recorder.warnings(r)}};
+  j["integration"] = {{"tolerance", t.tolerance}, {"steps", r.steps}, {"evaluations", r.evaluations}};
+  nlohmann::json points = nlohmann::json::array();
+  const double ground = t.scenario->site.ground;
+  for (const auto& p : t.recorder.points()) {
+    points.push_back({{"time", p.point.time},
+                      {"east", p.point.position.x()},
+                      {"north", p.point.position.y()},
+                      {"altitude", p.point.position.z()},
+                      {"height", p.point.position.z() - ground},
+                      {"speed", p.point.velocity.norm()},
+                      {"air_speed", p.air_speed},
+                      {"reynolds", p.reynolds},
+                      {"mach", p.mach},
+                      {"stage", stage_name(p.point.stage)}});
+  }
+  j["trajectory"] = std::move(points);
+  j["cautions"] = cautions();
+  return j;
+}
+
+void write_trace_csv(std::ostream& out, const TraceRecord& t) {
+  out << "time_s,east_m,north_m,altitude_m,height_m,speed_ms,air_speed_ms,reynolds,mach,stage\n";
+  const double ground = t.scenario->site.ground;
+  out << std::setprecision(10);
+  for (const auto& p : t.recorder.points()) {
+    out << p.point.time << ',' << p.point.position.x() << ',' << p.point.position.y() << ','
+        << p.point.position.z() << ',' << p.point.position.z() - ground << ','
+        << p.point.velocity.norm() << ',' << p.air_speed << ',' << p.reynolds << ',' << p.mach
+        << ',' << stage_name(p.point.stage) << '\n';
+  }
+}
+
+void write_trace_text(std::ostream& out, const TraceRecord& t) {
+  const auto& r = t.result;
+  const auto& body = t.scenario->bodies[t.body_index];
+  const auto [downrange, crossrange] = track_offsets(t);
+  out << "strewn trace: " << (t.scenario->title.empty() ? t.scenario->path : t.scenario->title)
+      << "\nbody \"" << body.name << "\", every input at its median (nominal flight)\n\n";
+  out << "status    " << to_string(r.status) << "\n";
+  out << "impact    time " << fixed(r.time, 2) << " s   east " << fixed(r.position.x(), 2)
+      << " m   north " << fixed(r.position.y(), 2) << " m\n";
+  out << "          downrange " << fixed(downrange, 2) << " m   crossrange " << fixed(crossrange, 2)
+      << " m (right of track)\n";
+  out << "          speed " << fixed(r.speed, 2) << " m/s   energy " << general(r.energy)
+      << " J   angle " << fixed(r.angle, 1) << " deg below horizontal\n";
+  if (!std::isnan(r.deploy_time)) out << "canopy    deployed at " << fixed(r.deploy_time, 2) << " s\n";
+  const auto& rec = t.recorder;
+  out << "regime    drag model " << to_string(t.inputs.body.drag.model);
+  if (!rec.reynolds().empty())
+    out << "   Reynolds " << general(rec.reynolds().min) << " .. " << general(rec.reynolds().max)
+        << "   Mach " << fixed(rec.mach().min, 3) << " .. " << fixed(rec.mach().max, 3)
+        << "\n          quadratic/linear drag " << general(rec.quadratic_to_linear().min) << " .. "
+        << general(rec.quadratic_to_linear().max);
+  out << "\nsteps     " << r.steps << " (tolerance " << t.tolerance << " m at the impact point)\n";
+  for (const auto& w : rec.warnings(r)) out << "warning   " << w << "\n";
+  // A short trajectory table: at most about 12 rows spread over the flight.
+  const auto& points = rec.points();
+  if (!points.empty()) {
+    out << "\n  time s    east m   north m  height m   speed m/s  stage\n";
+    const std::size_t stride = std::max<std::size_t>(1, points.size() / 12);
+    std::vector<std::size_t> rows;
+    for (std::size_t i = 0; i < points.size(); i += stride) rows.push_back(i);
+    if (rows.back() != points.size() - 1) rows.push_back(points.size() - 1);
+    const double ground = t.scenario->site.ground;
+    char line[160];
+    for (std::size_t i : rows) {
+      const auto& p = points[i];
+      std::snprintf(line, sizeof line, "%8.2f %9.1f %9.1f %9.1f %11.2f  %s\n", p.point.time,
+                    p.point.position.x(), p.point.position.y(), p.point.position.z() - ground,
+                    p.point.velocity.norm(), stage_name(p.point.stage));
+      out << line;
+    }
+    out << "  (" << points.size() << " points; --csv or --json for all)\n";
+  }
+  out << "\n";
+  for (const auto& c : cautions()) out << "caution   " << c << "\n";
+}
+
+}  // namespace strewn

@@ -1,0 +1,54 @@
+#pragma once
+// The horizontal wind as a function of altitude, immutable once built.
+//
+// Layers are given as (altitude above mean sea level, speed, direction the wind blows *from*);
+// between layers the east and north components are interpolated linearly in altitude. Above the
+// top layer the wind is constant. Below the lowest layer, when that layer stands more than 10 m
+// above the ground, the speed falls toward the ground by the 1/7 power law (common practice for a
+// neutral surface layer), w(z) = w(z_low) ((z - ground) / (z_low - ground))^(1/7), held constant
+// below 10 m above the ground; otherwise the lowest layer's wind holds down to the ground.
+// There is no vertical wind.
+#include <Eigen/Core>
+#include <vector>
+
+namespace strewn {
+
+struct WindLayer {
+  double altitude;  ///< m above mean sea level
+  double speed;     ///< m/s, >= 0
+  double from;      ///< degrees clockwise from true north, [0, 360]
+};
+
+class WindProfile {
+ public:
+  /// Calm air.
+  WindProfile() = default;
+  /// Layers sorted by strictly increasing altitude, speeds >= 0 and finite.
+  /// Throws std::invalid_argument otherwise.
+  WindProfile(const std::vector<WindLayer>& layers, double ground);
+
+  /// Wind velocity (east, north), m/s, at altitude z (m above mean sea level).
+  [[nodiscard]] Eigen::Vector2d at(double altitude) const;
+
+  [[nodiscard]] bool calm() const { return altitude_.empty(); }
+  /// Largest wind speed anywhere in the profile, m/s.
+  [[nodiscard]] double max_speed() const { return max_speed_; }
+  /// Altitudes of the layers, m.
+  [[nodiscard]] const std::vector<double>& layer_altitudes() const { return altitude_; }
+  /// Altitudes where the profile's slope jumps (the layers and the power-law floor), ascending, m.
+  /// Integrators end their steps on these so the forces are smooth inside each step.
+  [[nodiscard]] const std::vector<double>& kinks() const { return kinks_; }
+
+  static constexpr double kPowerLawExponent = 1.0 / 7.0;
+  static constexpr double kPowerLawFloor = 10.0;  ///< m above ground below which it is constant
+
+ private:
+  std::vector<double> altitude_;
+  std::vector<Eigen::Vector2d> velocity_;
+  std::vector<double> kinks_;
+  double ground_ = 0.0;
+  double max_speed_ = 0.0;
+  bool power_law_ = false;
+};
+
+}  // namespace strewn

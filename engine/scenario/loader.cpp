@@ -1,0 +1,629 @@
+// Scenario loading: TOML (toml++) into the validated Scenario model. Every problem is collected
+// with its key path and line; nothing is thrown until the whole file has been read.
+#include <algorithm>
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <map>
+#include <sstream>
+
+#include "core/text.hpp"
+#include "scenario/reader.hpp"
+#include "scenario/scenario.hpp"
+#include "scenario/table_file.hpp"
+
+namespace strewn {
+
+using namespace scenario_detail;
+
+const char* to_string(WindUncertaintyModel model) {
+  switch (model) {
+    case WindUncertaintyModel::none: return "none";
+    case WindUncertaintyModel::bias: return "bias";
+    case WindUncertaintyModel::layered: return "layered";
+    case WindUncertaintyModel::ensemble: return "ensemble";
+  }
+  return "?";
+}
+
+const char* to_string(SamplingPlan plan) {
+  switch (plan) {
+    case SamplingPlan::random: return "random";
+    case SamplingPlan::latin: return "latin";
+    case SamplingPlan::sobol: return "sobol";
+  }
+  return "?";
+}
+
+int Scenario::body_index(const std::string& name) const {
+  for (std::size_t i = 0; i < bodies.size(); ++i)
+    if (bodies[i].name == name) return static_cast<int>(i);
+  return -1;
+}
+
+namespace {
+
+constexpr double kInf = std::numeric_limits<double>::infinity();
+constexpr Bounds kLatitude{-90.0, 90.0, false, false, "a latitude in [-90, 90] degrees"};
+constexpr Bounds kLongitude{-180.0, 180.0, false, false, "a longitude in [-180, 180] degrees"};
+constexpr Bounds kOpenUnit{0.0, 1.0, true, true, "a probability strictly between 0 and 1"};
+constexpr Bounds kSphericity{0.026, 1.0, false, false,
+                             "a sphericity in [0.026, 1] (the Haider-Levenspiel data range)"};
+constexpr Bounds kTemperatureOffset{-100.0, 100.0, false, false, "an offset in [-100, 100] K"};
+constexpr Bounds kCorrelation{-1.0, 1.0, false, false, "a correlation in [-1, 1]"};
+constexpr Bounds kAltitude{-5000.0, 86000.0, false, false,
+                           "an altitude from -5000 to 86000 m above mean sea level"};
+
+class Loader {
+ public:
+  Loader(const std::string& text, const std::string& path) : diagnostics_(path), path_(path) {
+    scenario_.path = path;
+    scenario_.text = text;
+    folder_ = std::filesystem::path(path).parent_path();
+  }
+
+  Scenario load() {
+    toml::table root;
+    try {
+      root = toml::parse(scenario_.text, path_);
+    } catch (const toml::parse_error& error) {
+      diagnostics_.add("", static_cast<long>(error.source().begin.line),
+                       "TOML syntax error: " + std::string(error.description()));
+      throw ScenarioError(diagnostics_.take());
+    }
+    Table top(diagnostics_, &root, "", 1);
+    if (const toml::node* n = top.node("title")) {
+      if (const auto* s = n->as_string()) scenario_.title = s->get();
+      else diagnostics_.add("title", n, "expected a string");
+    }
+    read_site(top.table("site"));
+    read_medium(top.table("medium"));
+    read_wind(top.table("wind"));
+    read_release(top.table("release"), top.has("release"));
+    read_bodies(top);
+    read_study(top.table("study"));
+    read_rules(top.table("rules"));
+    read_output(top.table("output"));
+    read_correlations(top);
+    top.finish();
+    cross_checks();
+    if (!diagnostics_.empty()) throw ScenarioError(diagnostics_.take());
+    return std::move(scenario_);
+  }
+
+ private:
+  // A sampled input is registered under its name (body inputs by the body's name).
+  Uncertain sampled(const std::string& name, Uncertain u) {
+    if (!u.is_fixed()) scenario_.sampled_inputs.push_back({name, u});
+    return u;
+  }
+
+  std::string resolve(const std::string& file) const {
+    std::filesystem::path p(file);
+    if (p.is_relative()) p = folder_ / p;
+    return p.string();
+  }
+
+  void read_site(Table site) {
+    if (auto lat = site.number("latitude", kLatitude)) scenario_.site.latitude = lat;
+    if (auto lon = site.number("longitude", kLongitude)) scenario_.site.longitude = lon;
+    if (site.has("latitude") != site.has("longitude"))
+      diagnostics_.add(site.key_path(site.has("latitude") ? "longitude" : "latitude"), site.line(),
+                       "latitude and longitude go together: give both or neither");
+    scenario_.site.ground = site.number("ground", 0.0, kAltitude);
+    site.finish();
+  }
+
+  void read_medium(Table medium) {
+    auto& m = scenario_.medium;
+    const auto model = medium.text("model", {"us1976", "profile", "uniform"});
+    m.model = model == "profile"   ? Medium::Kind::profile
+              : model == "uniform" ? Medium::Kind::uniform
+                                   : Medium::Kind::us1976;
+    m.density_factor = sampled("medium.density_factor", medium.uncertain("density_factor", 1.0, kPositive));
+    const bool gas = m.model != Medium::Kind::uniform;
+    if (gas) {
+      m.temperature_offset = sampled("medium.temperature_offset",
+                                     medium.uncertain("temperature_offset", 0.0, kTemperatureOffset));
+    }
+    if (m.model == Medium::Kind::profile) {
+      if (auto file = medium.text("profile", {}, true)) {
+        m.profile_file = *file;
+        read_profile(resolve(*file), medium.key_path("profile"), medium.line_of("profile"));
+      }
+    }
+    if (m.model == Medium::Kind::uniform) {
+      m.density = medium.number("density", kPositive, true).value_or(1.0);
+      m.viscosity = medium.number("viscosity", kPositive, true).value_or(1.0);
+      m.sound_speed = medium.number("sound_speed", kInf, kPositive);
+    }
+    // Keys of the other models are named as such rather than as unknown.
+    const std::map<std::string, std::string> owner{{"profile", "profile"},
+                                                    {"density", "uniform"},
+                                                    {"viscosity", "uniform"},
+                                                    {"sound_speed", "uniform"},
+                                                    {"temperature_offset", "us1976 or profile"}};
+    for (const auto& [key, models] : owner) {
+      if (medium.has(key) && !medium_uses(m.model, key)) {
+        medium.mark(key);
+        diagnostics_.add(medium.key_path(key), medium.line_of(key),
+                         "is used only by model " + models + ", not by \"" +
+                             model.value_or("us1976") + "\"");
+      }
+    }
+    medium.finish();
+  }
+
+  static bool medium_uses(Medium::Kind kind, const std::string& key) {
+    if (key == "profile") return kind == Medium::Kind::profile;
+    if (key == "temperature_offset") return kind != Medium::Kind::uniform;
+    return kind == Medium::Kind::uniform;
+  }
+
+  void read_profile(const std::string& file, const std::string& key, long line) {
+    try {
+      const auto table = read_table_file(file, {"altitude_m", "temperature_K", "pressure_Pa"});
+      std::vector<SoundingLevel> levels;
+      for (const auto& row : table.rows) levels.push_back({row.values[0], row.values[1], row.values[2]});
+      for (std::size_t i = 0; i < levels.size(); ++i) {
+        const auto& l = levels[i];
+        const long row_line = table.rows[i].line;
+        if (!(l.temperature > 0.0 && l.pressure > 0.0))
+          diagnostics_.add(key, line, file + ":" + std::to_string(row_line) +
+                                          ": temperature and pressure must be positive");
+        if (i > 0 && !(l.altitude > levels[i - 1].altitude))
+          diagnostics_.add(key, line, file + ":" + std::to_string(row_line) +
+                                          ": altitudes must increase strictly down the file");
+      }
+      if (levels.size() < 2) diagnostics_.add(key, line, file + ": a sounding needs at least two levels");
+      scenario_.medium.profile = std::move(levels);
+    } catch (const TableFileError& error) {
+      diagnostics_.add(key, line, error.what());
+    }
+  }
+
+  std::vector<WindLayer> read_wind_file(const std::string& file, const std::string& key, long line) {
+    std::vector<WindLayer> layers;
+    try {
+      const auto table = read_table_file(file, {"altitude_m", "speed_ms", "from_deg"});
+      for (const auto& row : table.rows) {
+        const WindLayer layer{row.values[0], row.values[1], row.values[2]};
+        const std::string where = file + ":" + std::to_string(row.line) + ": ";
+        if (!(layer.speed >= 0.0)) diagnostics_.add(key, line, where + "speed must be zero or more");
+        if (!(layer.from >= 0.0 && layer.from <= 360.0))
+          diagnostics_.add(key, line, where + "direction must be in [0, 360] degrees");
+        if (!layers.empty() && !(layer.altitude > layers.back().altitude))
+          diagnostics_.add(key, line, where + "altitudes must increase strictly down the file");
+        layers.push_back(layer);
+      }
+      if (layers.empty()) diagnostics_.add(key, line, file + ": no wind levels in the file");
+    } catch (const TableFileError& error) {
+      diagnostics_.add(key, line, error.what());
+    }
+    return layers;
+  }
+
+  void read_wind(Table wind) {
+    auto& w = scenario_.wind;
+    if (const toml::array* layers = wind.array("layers")) {
+      for (std::size_t i = 0; i < layers->size(); ++i) {
+        const toml::node* item = layers->get(i);
+        const std::string path = wind.key_path("layers") + "[" + std::to_string(i) + "]";
+        if (!item->is_table()) {
+          diagnostics_.add(path, item, "expected a table { altitude = ..., speed = ..., from = ... }");
+          continue;
+        }
+        Table layer(diagnostics_, item->as_table(), path, line_of(item));
+        auto altitude = layer.number("altitude", kAltitude, true);
+        auto speed = layer.number("speed", kNonNegative, true);
+        auto from = layer.number("from", kDegrees, true);
+        layer.finish();
+        if (!(altitude && speed && from)) continue;
+        if (!w.layers.empty() && !(*altitude > w.layers.back().altitude)) {
+          diagnostics_.add(path + ".altitude", layer.line_of("altitude"),
+                           *altitude == w.layers.back().altitude
+                               ? "duplicated altitude " + format_number(*altitude) +
+                                     ": each layer needs its own altitude"
+                               : "layers must be sorted by increasing altitude (" +
+                                     format_number(*altitude) + " follows " +
+                                     format_number(w.layers.back().altitude) + ")");
+          continue;
+        }
+        w.layers.push_back({*altitude, *speed, *from});
+      }
+    }
+    if (auto file = wind.text("file")) {
+      if (wind.has("layers"))
+        diagnostics_.add(wind.key_path("file"), wind.line_of("file"),
+                         "give the wind either as layers or as a file, not both");
+      w.file = *file;
+      w.layers = read_wind_file(resolve(*file), wind.key_path("file"), wind.line_of("file"));
+    }
+    Table u = wind.table("uncertainty");
+    const auto model = u.text("model", {"none", "bias", "layered", "ensemble"});
+    w.uncertainty = model == "bias"       ? WindUncertaintyModel::bias
+                    : model == "layered"  ? WindUncertaintyModel::layered
+                    : model == "ensemble" ? WindUncertaintyModel::ensemble
+                                          : WindUncertaintyModel::none;
+    const bool spread = w.uncertainty == WindUncertaintyModel::bias ||
+                        w.uncertainty == WindUncertaintyModel::layered;
+    if (spread) w.speed_sd = u.number("speed_sd", kNonNegative, true).value_or(0.0);
+    if (w.uncertainty == WindUncertaintyModel::layered)
+      w.correlation_length = u.number("correlation_length", kPositive, true).value_or(1.0);
+    if (w.uncertainty == WindUncertaintyModel::ensemble) {
+      if (const toml::array* members = u.array("members")) {
+        for (std::size_t i = 0; i < members->size(); ++i) {
+          const toml::node* item = members->get(i);
+          const std::string path = u.key_path("members") + "[" + std::to_string(i) + "]";
+          if (!item->is_string()) {
+            diagnostics_.add(path, item, "expected a file name");
+            continue;
+          }
+          const std::string name = item->as_string()->get();
+          w.members.push_back(name);
+          w.member_layers.push_back(read_wind_file(resolve(name), path, line_of(item)));
+        }
+        if (members->empty()) diagnostics_.add(u.key_path("members"), u.line_of("members"), "lists no profile");
+      } else {
+        diagnostics_.add(u.key_path("members"), u.line(), "is required for model \"ensemble\" (a list of wind files)");
+      }
+    }
+    for (const char* key : {"speed_sd", "correlation_length", "members"}) {
+      if (u.has(key) && !u_uses(w.uncertainty, key)) {
+        u.mark(key);
+        diagnostics_.add(u.key_path(key), u.line_of(key),
+                         std::string("is not used by wind uncertainty model \"") +
+                             to_string(w.uncertainty) + "\"");
+      }
+    }
+    u.finish();
+    wind.finish();
+  }
+
+  static bool u_uses(WindUncertaintyModel m, const std::string& key) {
+    if (key == "speed_sd") return m == WindUncertaintyModel::bias || m == WindUncertaintyModel::layered;
+    if (key == "correlation_length") return m == WindUncertaintyModel::layered;
+    return m == WindUncertaintyModel::ensemble;
+  }
+
+  void read_release(Table release, bool present) {
+    auto& r = scenario_.release;
+    if (!present) diagnostics_.add("release", 0L, "the [release] section is required");
+    auto input = [&](const char* key, double fallback, const Bounds& bounds) {
+      return sampled(std::string("release.") + key, release.uncertain(key, fallback, bounds));
+    };
+    if (present) {
+      auto altitude = release.uncertain("altitude", kAltitude, true);
+      if (altitude) r.altitude = sampled("release.altitude", *altitude);
+    }
+    r.east = input("east", 0.0, kAny);
+    r.north = input("north", 0.0, kAny);
+    r.speed = input("speed", 0.0, kNonNegative);
+    r.track = input("track", 0.0, kDegrees);
+    r.climb = input("climb", 0.0, kAny);
+    r.along_error = input("along_error", 0.0, kAny);
+    r.cross_error = input("cross_error", 0.0, kAny);
+    r.delay = input("delay", 0.0, kAny);
+    Table burst = release.table("burst");
+    if (burst.present()) {
+      r.has_burst = true;
+      r.burst_speed = sampled("release.burst.speed", burst.uncertain("speed", kNonNegative, true).value_or(0.0));
+    }
+    burst.finish();
+    release.finish();
+  }
+
+  void read_bodies(Table& top) {
+    auto bodies = top.tables("body");
+    if (bodies.empty() && !top.has("body"))
+      diagnostics_.add("body", 0L, "at least one [[body]] is required");
+    for (std::size_t i = 0; i < bodies.size(); ++i) read_body(bodies[i], i, bodies.size());
+  }
+
+  void read_body(Table& t, std::size_t index, std::size_t total) {
+    BodySpec b;
+    const auto name = t.text("name", {}, total > 1);
+    b.name = name.value_or(total > 1 ? "body" + std::to_string(index) : "body");
+    if (name && (name->empty() || name->find_first_of(". \t/") != std::string::npos))
+      diagnostics_.add(t.key_path("name"), t.line_of("name"),
+                       "must be a non-empty name without dots, spaces or slashes (it names the "
+                       "body's inputs, e.g. \"" + b.name + ".mass\")");
+    if (scenario_.body_index(b.name) >= 0 && name)
+      diagnostics_.add(t.key_path("name"), t.line_of("name"),
+                       "duplicate body name \"" + b.name + "\": each [[body]] needs its own name");
+    b.count = t.integer("count", 1, 1000000).value_or(1);
+    const std::string prefix = b.name + ".";
+    if (auto mass = t.uncertain("mass", kPositive, true)) b.mass = sampled(prefix + "mass", *mass);
+
+    Table drag = t.table("drag");
+    if (!drag.present()) diagnostics_.add(t.key_path("drag"), t.line(), "is required ([body.drag] with a model)");
+    const auto model = drag.present() ? drag.text("model", {"sphere", "shape", "area", "stokes"}, true)
+                                      : std::nullopt;
+    b.drag_model = model == "sphere"   ? DragModel::sphere
+                   : model == "shape"  ? DragModel::shape
+                   : model == "stokes" ? DragModel::stokes
+                                       : DragModel::area;
+    const std::string dp = prefix + "drag.";
+    if (model == "area") {
+      if (auto cd = drag.uncertain("cd", kPositive, true)) b.cd = sampled(dp + "cd", *cd);
+      if (auto area = drag.uncertain("area", kPositive, true)) b.area = sampled(dp + "area", *area);
+    } else if (model) {
+      if (auto d = drag.uncertain("diameter", kPositive, true)) b.diameter = sampled(dp + "diameter", *d);
+      if (model == "shape")
+        if (auto phi = drag.uncertain("sphericity", kSphericity, true))
+          b.sphericity = sampled(dp + "sphericity", *phi);
+    }
+    if (model == "area") b.volume = sampled(dp + "volume", drag.uncertain("volume", 0.0, kPositive));
+    if (const toml::array* table = drag.array("mach_table")) {
+      if (model == "stokes")
+        diagnostics_.add(drag.key_path("mach_table"), drag.line_of("mach_table"),
+                         "a Mach table does not apply to linear (stokes) drag");
+      read_mach_table(*table, drag.key_path("mach_table"), b);
+    }
+    if (model) {
+      static const std::map<std::string, std::vector<std::string>> uses{
+          {"area", {"cd", "area", "volume"}},
+          {"sphere", {"diameter"}},
+          {"stokes", {"diameter"}},
+          {"shape", {"diameter", "sphericity"}}};
+      for (const char* key : {"cd", "area", "volume", "diameter", "sphericity"}) {
+        const auto& used = uses.at(*model);
+        if (drag.has(key) && std::find(used.begin(), used.end(), key) == used.end()) {
+          drag.mark(key);
+          diagnostics_.add(drag.key_path(key), drag.line_of(key),
+                           "is not used by drag model \"" + *model + "\" (it takes " +
+                               join(used) + ")");
+        }
+      }
+    }
+    drag.finish();
+
+    Table chute = t.table("parachute");
+    if (chute.present()) b.parachute = read_parachute(chute, prefix + "parachute.");
+    chute.finish();
+    t.finish();
+    scenario_.bodies.push_back(std::move(b));
+  }
+
+  static std::string join(const std::vector<std::string>& words) {
+    std::string out;
+    for (std::size_t i = 0; i < words.size(); ++i)
+      out += (i == 0 ? "" : i + 1 == words.size() ? " and " : ", ") + words[i];
+    return out;
+  }
+
+  void read_mach_table(const toml::array& table, const std::string& path, BodySpec& b) {
+    std::vector<double> mach, factor;
+    bool ok = true;
+    for (std::size_t i = 0; i < table.size(); ++i) {
+      const toml::node* row = table.get(i);
+      const std::string row_path = path + "[" + std::to_string(i) + "]";
+      const auto* pair = row->as_array();
+      std::optional<double> m, f;
+      if (pair && pair->size() == 2) {
+        m = as_number(*pair->get(0));
+        f = as_number(*pair->get(1));
+      }
+      if (!(m && f)) {
+        diagnostics_.add(row_path, row, "expected a pair [mach, factor] of numbers");
+        ok = false;
+        continue;
+      }
+      if (!(std::isfinite(*m) && *m >= 0.0)) {
+        diagnostics_.add(row_path, row, "Mach number must be finite and zero or more");
+        ok = false;
+      }
+      if (!(std::isfinite(*f) && *f > 0.0)) {
+        diagnostics_.add(row_path, row, "factor must be finite and positive");
+        ok = false;
+      }
+      if (!mach.empty() && !(*m > mach.back())) {
+        diagnostics_.add(row_path, row, "Mach numbers must increase strictly down the table");
+        ok = false;
+      }
+      mach.push_back(*m);
+      factor.push_back(*f);
+    }
+    if (mach.empty()) {
+      diagnostics_.add(path, line_of(&table), "lists no [mach, factor] pair");
+      ok = false;
+    }
+    if (ok) b.mach_table = std::make_shared<const MachTable>(mach, factor);
+  }
+
+  ParachuteSpec read_parachute(Table& c, const std::string& prefix) {
+    ParachuteSpec p;
+    const bool by_time = c.has("deploy_after"), by_height = c.has("deploy_height");
+    if (by_time && by_height)
+      diagnostics_.add(c.key_path("deploy_height"), c.line_of("deploy_height"),
+                       "give deploy_after or deploy_height, not both");
+    if (!by_time && !by_height)
+      diagnostics_.add(c.key_path("deploy_after"), c.line(),
+                       "is required (s after release), or deploy_height (m above ground)");
+    if (by_time) {
+      p.trigger = Canopy::Trigger::time;
+      p.deploy_after = sampled(prefix + "deploy_after", c.uncertain("deploy_after", 0.0, kNonNegative));
+    }
+    if (by_height) {
+      p.trigger = Canopy::Trigger::height;
+      p.deploy_height = sampled(prefix + "deploy_height", c.uncertain("deploy_height", 0.0, kPositive));
+    }
+    p.fill_time = sampled(prefix + "fill_time", c.uncertain("fill_time", 0.0, kNonNegative));
+    if (auto area = c.uncertain("drag_area", kPositive, true)) p.drag_area = sampled(prefix + "drag_area", *area);
+    p.partial_probability = c.number("partial_probability", 0.0, kProbability);
+    p.failure_probability = c.number("failure_probability", 0.0, kProbability);
+    if (p.partial_probability + p.failure_probability > 1.0)
+      diagnostics_.add(c.key_path("failure_probability"), c.line_of("failure_probability"),
+                       "partial_probability + failure_probability must not exceed 1 (got " +
+                           format_number(p.partial_probability + p.failure_probability) + ")");
+    if (c.has("partial_drag_area")) {
+      p.partial_drag_area = sampled(prefix + "partial_drag_area", c.uncertain("partial_drag_area", 0.0, kPositive));
+    } else if (p.partial_probability > 0.0) {
+      diagnostics_.add(c.key_path("partial_drag_area"), c.line(),
+                       "is required when partial_probability is above 0 (Cd S of a partly open canopy, m^2)");
+    }
+    return p;
+  }
+
+  void read_study(Table s) {
+    auto& st = scenario_.study;
+    st.samples = s.integer("samples", 1, 2000000000L).value_or(st.samples);
+    if (const toml::node* n = s.node("seed")) {
+      const auto* i = n->as_integer();
+      if (!i || i->get() < 0) diagnostics_.add(s.key_path("seed"), n, "expected a whole number, zero or more");
+      else st.seed = static_cast<std::uint64_t>(i->get());
+    }
+    const auto plan = s.text("sampling", {"random", "latin", "sobol"});
+    st.sampling = plan == "latin" ? SamplingPlan::latin : plan == "sobol" ? SamplingPlan::sobol : SamplingPlan::random;
+    if (auto levels = s.numbers("levels", kOpenUnit)) {
+      if (levels->empty()) diagnostics_.add(s.key_path("levels"), s.line_of("levels"), "lists no level");
+      else st.levels = *levels;
+    }
+    st.confidence = s.number("confidence", st.confidence, kOpenUnit);
+    if (const toml::node* n = s.node("centre")) {
+      if (const auto* text = n->as_string()) {
+        if (text->get() == "mean" || text->get() == "nominal") st.centre = text->get();
+        else diagnostics_.add(s.key_path("centre"), n, "expected \"mean\", \"nominal\" or { east = ..., north = ... }");
+      } else if (n->is_table()) {
+        Table point = s.table("centre");
+        st.centre = "point";
+        st.centre_east = point.number("east", kAny, true).value_or(0.0);
+        st.centre_north = point.number("north", kAny, true).value_or(0.0);
+        point.finish();
+      } else {
+        diagnostics_.add(s.key_path("centre"), n, "expected \"mean\", \"nominal\" or { east = ..., north = ... }");
+      }
+    }
+    st.tolerance = s.number("tolerance", st.tolerance, Bounds{1e-6, 100.0, false, false, "a tolerance from 1e-6 to 100 m"});
+    st.energy_threshold = s.number("energy_threshold", st.energy_threshold, kNonNegative);
+    st.grid = s.number("grid", st.grid, kPositive);
+    if (auto w = s.number("target_width", kOpenUnit)) st.target_width = w;
+    st.max_samples = s.integer("max_samples", 1, 2000000000L).value_or(st.max_samples);
+    st.max_failed = s.number("max_failed", st.max_failed, kProbability);
+    s.finish();
+  }
+
+  void read_rules(Table r) {
+    auto& rules = scenario_.rules;
+    if (auto v = r.number("zone_radius", kPositive)) rules.zone_radius = v;
+    if (auto v = r.number("max_outside", kProbability)) rules.max_outside = v;
+    if (auto v = r.number("energy_limit", kPositive)) rules.energy_limit = v;
+    if (auto v = r.number("max_exceed", kProbability)) rules.max_exceed = v;
+    auto pair = [&](const char* a, const char* b, bool has_a, bool has_b) {
+      if (has_a != has_b)
+        diagnostics_.add(r.key_path(has_a ? b : a), r.line(), std::string("goes with ") + (has_a ? a : b) + ": give both");
+    };
+    pair("zone_radius", "max_outside", r.has("zone_radius"), r.has("max_outside"));
+    pair("energy_limit", "max_exceed", r.has("energy_limit"), r.has("max_exceed"));
+    r.finish();
+  }
+
+  void read_output(Table o) {
+    if (auto file = o.text("file")) scenario_.output.file = *file;
+    if (auto samples = o.boolean("samples")) scenario_.output.samples = *samples;
+    o.finish();
+  }
+
+  void read_correlations(Table& top) {
+    for (auto& c : top.tables("correlation")) {
+      CorrelationSpec spec;
+      const toml::array* between = c.array("between");
+      if (!between) {
+        diagnostics_.add(c.key_path("between"), c.line(), "is required: two sampled input names");
+      } else if (between->size() != 2 || !between->get(0)->is_string() || !between->get(1)->is_string()) {
+        diagnostics_.add(c.key_path("between"), line_of(between), "expected two sampled input names");
+      } else {
+        spec.first = between->get(0)->as_string()->get();
+        spec.second = between->get(1)->as_string()->get();
+        correlation_lines_.push_back(line_of(between));
+        correlation_paths_.push_back(c.key_path("between"));
+      }
+      spec.rho = c.number("rho", kCorrelation, true).value_or(0.0);
+      c.finish();
+      if (!spec.first.empty()) scenario_.correlations.push_back(spec);
+    }
+  }
+
+  void cross_checks() {
+    const auto& r = scenario_.release;
+    const double ground = scenario_.site.ground;
+    // Release below the ground: refused when any real share of the release altitudes is.
+    if (r.altitude.probability_below(ground + 1e-9) > kOutsideTolerance || r.altitude.nominal() <= ground)
+      diagnostics_.add("release.altitude", line_for("release", "altitude"),
+                       "the release (nominal " + format_number(r.altitude.nominal()) +
+                           " m) must be above the ground at " + format_number(ground) +
+                           " m above mean sea level (site.ground)");
+    if (scenario_.medium.model == Medium::Kind::profile && scenario_.medium.profile.size() >= 2) {
+      const auto& levels = scenario_.medium.profile;
+      if (ground < levels.front().altitude || r.altitude.nominal() > levels.back().altitude)
+        diagnostics_.add("medium.profile", line_for("medium", "profile"),
+                         "the sounding covers " + format_number(levels.front().altitude) + " .. " +
+                             format_number(levels.back().altitude) +
+                             " m; it must reach from the ground to the release altitude");
+    }
+    // Correlations must name sampled inputs, each pair once.
+    std::vector<std::string> names;
+    for (const auto& s : scenario_.sampled_inputs) names.push_back(s.name);
+    for (std::size_t i = 0; i < scenario_.correlations.size(); ++i) {
+      const auto& c = scenario_.correlations[i];
+      for (const auto* name : {&c.first, &c.second}) {
+        if (std::find(names.begin(), names.end(), *name) != names.end()) continue;
+        std::string message = "\"" + *name + "\" is not a sampled input";
+        const std::string guess = closest_match(*name, names);
+        if (!guess.empty()) message += "; did you mean \"" + guess + "\"?";
+        else message += " (sampled inputs are those given as distributions; `strewn check` lists them)";
+        diagnostics_.add(correlation_paths_[i], correlation_lines_[i], message);
+      }
+      if (c.first == c.second)
+        diagnostics_.add(correlation_paths_[i], correlation_lines_[i], "names the same input twice");
+    }
+  }
+
+  long line_for(const char* section, const char* key) const {
+    // Finds the line of section.key in the text for messages raised after reading.
+    const std::string header = std::string("[") + section + "]";
+    std::istringstream in(scenario_.text);
+    std::string line;
+    long number = 0;
+    bool inside = false;
+    while (std::getline(in, line)) {
+      ++number;
+      const auto first = line.find_first_not_of(" \t");
+      if (first == std::string::npos) continue;
+      if (line[first] == '[') inside = line.compare(first, header.size(), header) == 0;
+      else if (inside && line.compare(first, std::string(key).size(), key) == 0) return number;
+    }
+    return 0;
+  }
+
+  Diagnostics diagnostics_;
+  std::string path_;
+  std::filesystem::path folder_;
+  Scenario scenario_;
+  std::vector<long> correlation_lines_;
+  std::vector<std::string> correlation_paths_;
+};
+
+}  // namespace
+
+Scenario parse_scenario(const std::string& text, const std::string& path) {
+  Loader loader(text, path);
+  return loader.load();
+}
+
+Scenario load_scenario(const std::string& path) {
+  std::error_code ec;
+  if (std::filesystem::is_directory(path, ec))
+    throw ScenarioError({{path, "", 0, "is a folder, not a scenario file"}});
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw ScenarioError({{path, "", 0, "cannot be read (no such file, or no permission)"}});
+  std::ostringstream buffer;
+  buffer << in.rdbuf();
+  const std::string text = buffer.str();
+  if (text.empty()) throw ScenarioError({{path, "", 0, "is empty: a scenario needs at least [release] and a [[body]]"}});
+  if (text.find('\0') != std::string::npos)
+    throw ScenarioError({{path, "", 0, "is a binary file, not a TOML scenario"}});
+  return parse_scenario(text, path);
+}
+
+}  // namespace strewn

@@ -1,0 +1,153 @@
+#pragma once
+// The scenario: everything a study or a trace needs, parsed and validated once into an immutable
+// model (see docs/scenario.md for every key, unit, default and range). Uncertain inputs are kept
+// as `Uncertain` values; `sampled_inputs` names every one that is a distribution by its key path.
+#include <cstdint>
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/uncertain.hpp"
+#include "flight/body.hpp"
+#include "flight/drag.hpp"
+#include "medium/medium.hpp"
+#include "medium/wind.hpp"
+
+namespace strewn {
+
+struct SiteSpec {
+  std::optional<double> latitude;   ///< WGS84 degrees of the local origin
+  std::optional<double> longitude;  ///< WGS84 degrees
+  double ground = 0.0;              ///< m above mean sea level
+};
+
+struct MediumSpec {
+  Medium::Kind model = Medium::Kind::us1976;
+  Uncertain temperature_offset = 0.0;  ///< K (gases)
+  Uncertain density_factor = 1.0;
+  std::string profile_file;            ///< "profile": the sounding, as written in the scenario
+  std::vector<SoundingLevel> profile;  ///< "profile": its levels
+  double density = 0.0;                ///< "uniform", kg/m^3
+  double viscosity = 0.0;              ///< "uniform", Pa s
+  double sound_speed = std::numeric_limits<double>::infinity();  ///< "uniform", m/s
+};
+
+enum class WindUncertaintyModel { none, bias, layered, ensemble };
+const char* to_string(WindUncertaintyModel model);
+
+struct WindSpec {
+  std::vector<WindLayer> layers;
+  std::string file;  ///< when the layers came from a CSV file
+  WindUncertaintyModel uncertainty = WindUncertaintyModel::none;
+  double speed_sd = 0.0;            ///< m/s, per horizontal component
+  double correlation_length = 0.0;  ///< m, "layered"
+  std::vector<std::string> members;  ///< "ensemble": profile files, as written
+  std::vector<std::vector<WindLayer>> member_layers;
+};
+
+struct ReleaseSpec {
+  Uncertain altitude = 0.0;  ///< m above mean sea level
+  Uncertain east = 0.0, north = 0.0;
+  Uncertain speed = 0.0;  ///< carrier ground speed, m/s
+  Uncertain track = 0.0;  ///< degrees clockwise from north
+  Uncertain climb = 0.0;  ///< m/s, up positive
+  Uncertain along_error = 0.0, cross_error = 0.0;  ///< m
+  Uncertain delay = 0.0;                           ///< s
+  bool has_burst = false;
+  Uncertain burst_speed = 0.0;  ///< m/s, isotropic direction
+};
+
+struct ParachuteSpec {
+  Canopy::Trigger trigger = Canopy::Trigger::time;
+  Uncertain deploy_after = 0.0;   ///< s
+  Uncertain deploy_height = 0.0;  ///< m above ground
+  Uncertain fill_time = 0.0;      ///< s
+  Uncertain drag_area = 0.0;      ///< m^2
+  double partial_probability = 0.0;
+  Uncertain partial_drag_area = 0.0;  ///< m^2
+  double failure_probability = 0.0;
+};
+
+struct BodySpec {
+  std::string name;
+  long count = 1;
+  Uncertain mass = 1.0;  ///< kg
+  DragModel drag_model = DragModel::area;
+  Uncertain cd = 1.0;          ///< "area"
+  Uncertain area = 1.0;        ///< "area", m^2
+  Uncertain diameter = 0.0;    ///< "sphere", "shape", "stokes", m
+  Uncertain sphericity = 1.0;  ///< "shape"
+  Uncertain volume = 0.0;      ///< m^3 for "area" bodies (0: unknown, no buoyancy)
+  std::shared_ptr<const MachTable> mach_table;  ///< null: none (shared, immutable)
+  std::optional<ParachuteSpec> parachute;
+};
+
+struct CorrelationSpec {
+  std::string first, second;
+  double rho = 0.0;
+};
+
+enum class SamplingPlan { random, latin, sobol };
+const char* to_string(SamplingPlan plan);
+
+struct StudySpec {
+  long samples = 10000;
+  std::uint64_t seed = 1;
+  SamplingPlan sampling = SamplingPlan::random;
+  std::vector<double> levels{0.5, 0.9, 0.99, 0.999};
+  double confidence = 0.95;
+  std::string centre = "mean";  ///< "mean" | "nominal" | "point"
+  double centre_east = 0.0, centre_north = 0.0;
+  double tolerance = 0.05;        ///< m
+  double energy_threshold = 15.0;  ///< J
+  double grid = 10.0;             ///< m
+  std::optional<double> target_width;
+  long max_samples = 2000000;
+  double max_failed = 0.001;
+};
+
+struct RulesSpec {
+  std::optional<double> zone_radius;  ///< m
+  std::optional<double> max_outside;  ///< probability
+  std::optional<double> energy_limit;  ///< J
+  std::optional<double> max_exceed;    ///< probability
+};
+
+struct OutputSpec {
+  std::string file;
+  bool samples = true;
+};
+
+/// A sampled input: its key path (e.g. "bundle.mass") and distribution.
+struct SampledInput {
+  std::string name;
+  Uncertain distribution;
+};
+
+struct Scenario {
+  std::string path;  ///< the file as given
+  std::string text;  ///< exactly as read
+  std::string title;
+  SiteSpec site;
+  MediumSpec medium;
+  WindSpec wind;
+  ReleaseSpec release;
+  std::vector<BodySpec> bodies;
+  std::vector<CorrelationSpec> correlations;
+  StudySpec study;
+  RulesSpec rules;
+  OutputSpec output;
+  std::vector<SampledInput> sampled_inputs;
+
+  /// Index of the body with this name, or -1.
+  [[nodiscard]] int body_index(const std::string& name) const;
+};
+
+/// Reads and validates a scenario file. Throws ScenarioError with every problem found (file, key
+/// path, line, what was expected), IoError when the file cannot be read.
+Scenario load_scenario(const std::string& path);
+/// The same from text already in memory; `path` names it in messages and anchors relative files.
+Scenario parse_scenario(const std::string& text, const std::string& path);
+
+}  // namespace strewn

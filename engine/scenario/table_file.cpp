@@ -1,0 +1,75 @@
+#include "scenario/table_file.hpp"
+
+#include <charconv>
+#include <cmath>
+#include <fstream>
+#include <sstream>
+
+namespace strewn {
+
+namespace {
+std::string trim(const std::string& s) {
+  const auto a = s.find_first_not_of(" \t\r");
+  if (a == std::string::npos) return "";
+  const auto b = s.find_last_not_of(" \t\r");
+  return s.substr(a, b - a + 1);
+}
+
+std::vector<std::string> split(const std::string& line) {
+  std::vector<std::string> out;
+  std::string cell;
+  std::istringstream in(line);
+  while (std::getline(in, cell, ',')) out.push_back(trim(cell));
+  if (!line.empty() && line.back() == ',') out.emplace_back();
+  return out;
+}
+}  // namespace
+
+TableFile read_table_file(const std::string& path, const std::vector<std::string>& columns) {
+  std::ifstream in(path);
+  if (!in) throw TableFileError(path + ": cannot be read (no such file, or no permission)");
+  TableFile table;
+  std::vector<std::size_t> index;
+  std::string line;
+  long number = 0;
+  while (std::getline(in, line)) {
+    ++number;
+    const std::string content = trim(line);
+    if (content.empty() || content[0] == '#') continue;
+    const auto cells = split(content);
+    if (index.empty()) {
+      for (const auto& column : columns) {
+        std::size_t found = cells.size();
+        for (std::size_t i = 0; i < cells.size(); ++i)
+          if (cells[i] == column) found = i;
+        if (found == cells.size())
+          throw TableFileError(path + ":" + std::to_string(number) + ": the header lacks column \"" +
+                               column + "\" (expected columns: " + [&] {
+                                 std::string all;
+                                 for (const auto& c : columns) all += (all.empty() ? "" : ", ") + c;
+                                 return all;
+                               }() + ")");
+        index.push_back(found);
+      }
+      continue;
+    }
+    TableFile::Row row{number, {}};
+    for (std::size_t k = 0; k < index.size(); ++k) {
+      if (index[k] >= cells.size())
+        throw TableFileError(path + ":" + std::to_string(number) + ": missing value for \"" +
+                             columns[k] + "\"");
+      const std::string& cell = cells[index[k]];
+      double value = 0.0;
+      const auto [end, ec] = std::from_chars(cell.data(), cell.data() + cell.size(), value);
+      if (ec != std::errc() || end != cell.data() + cell.size() || !std::isfinite(value))
+        throw TableFileError(path + ":" + std::to_string(number) + ": \"" + cell +
+                             "\" is not a finite number (column \"" + columns[k] + "\")");
+      row.values.push_back(value);
+    }
+    table.rows.push_back(std::move(row));
+  }
+  if (index.empty()) throw TableFileError(path + ": no header line (is the file empty?)");
+  return table;
+}
+
+}  // namespace strewn

@@ -1,0 +1,187 @@
+// The flight model against an independent integration of the same physics (Boost.Odeint at
+// tolerance 1e-10, see reference_flight.hpp), over a broad random family of flights within the
+// scenario contract, and the integrator's convergence order by step halving.
+#include <gtest/gtest.h>
+
+#include <cstdio>
+#include <cstdlib>
+#include <random>
+
+#include "flight/dormand_prince.hpp"
+#include "flight/flight.hpp"
+#include "reference_flight.hpp"
+#include "support.hpp"
+
+namespace strewn {
+namespace {
+
+struct RandomFlight {
+  Medium medium = Medium::us1976();
+  WindProfile wind;
+  std::unique_ptr<MachTable> mach;
+  Body body;
+  Environment environment;
+  ReleaseState release;
+  std::string description;
+};
+
+// A flight drawn at random within the contract: every drag model, layered winds with the power
+// law below, hot and cold days, Mach tables, parachutes by time and by height, uniform media.
+RandomFlight draw_flight(std::mt19937_64& rng) {
+  auto u = [&](double a, double b) { return std::uniform_real_distribution<double>(a, b)(rng); };
+  auto pick = [&](int n) { return std::uniform_int_distribution<int>(0, n - 1)(rng); };
+  RandomFlight f;
+  const double ground = u(0.0, 2000.0);
+  const bool tank = pick(8) == 0;
+  if (tank) f.medium = Medium::uniform(u(800.0, 1300.0), u(1e-3, 0.05));
+  std::vector<WindLayer> layers;
+  double z = ground + u(0.0, 300.0);
+  for (int i = 0, n = pick(6); i < n; ++i) {
+    layers.push_back({z, tank ? u(0.0, 0.05) : u(0.0, 30.0), u(0.0, 360.0)});
+    z += u(50.0, 3000.0);
+  }
+  f.wind = WindProfile(layers, ground);
+  f.environment = Environment{&f.medium, {u(-20.0, 20.0), u(0.9, 1.1)}, &f.wind, ground};
+  const int model = tank ? pick(3) : pick(4);
+  // Linear-drag droplets in air fall so slowly that an explicit reference needs a step per few
+  // milliseconds: they fall from at most 20 m (and exercise the quasi-steady form).
+  const double height = tank ? u(0.2, 5.0) : model == 2 ? u(1.0, 20.0) : u(5.0, 10000.0);
+  if (model == 0 || model == 3) {
+    f.body = test::round_body(model == 0 ? DragModel::sphere : DragModel::area,
+                              tank ? u(1e-3, 0.02) : u(1e-3, 0.5), u(tank ? 2000.0 : 300.0, 8000.0));
+    if (model == 3) {
+      f.body.drag.cd = u(0.3, 1.5);
+      f.body.drag.area = u(0.001, 2.0);
+      f.body.volume = 0.0;
+    }
+  } else if (model == 1) {
+    f.body = test::round_body(DragModel::shape, tank ? u(1e-3, 0.02) : u(1e-3, 0.3), u(1500.0, 8000.0));
+    f.body.drag.sphericity = u(0.3, 1.0);
+  } else {
+    f.body = test::round_body(DragModel::stokes, tank ? u(5e-4, 2e-3) : u(20e-6, 60e-6), u(1500.0, 3000.0));
+  }
+  if (!tank && model != 2 && pick(3) == 0) {
+    f.mach = std::make_unique<MachTable>(std::vector<double>{0.0, 0.8, 1.1, 3.0},
+                                         std::vector<double>{1.0, 1.1, u(1.3, 2.0), 1.2});
+    f.body.drag.mach_table = f.mach.get();
+  }
+  if (!tank && model != 2 && pick(3) == 0) {
+    f.body.has_canopy = true;
+    f.body.canopy.trigger = pick(2) ? Canopy::Trigger::time : Canopy::Trigger::height;
+    f.body.canopy.deploy_after = u(0.0, 10.0);
+    f.body.canopy.deploy_height = u(50.0, 1500.0);
+    f.body.canopy.fill_time = pick(4) ? u(0.5, 4.0) : 0.0;
+    // Canopies sized as real ones are: a descent speed of about 3 to 9 m/s near the ground,
+    // i.e. Cd S = 2 m g / (rho v^2) between 0.2 and 2 m^2 per kilogram.
+    f.body.canopy.drag_area = f.body.mass * u(0.2, 2.0);
+  }
+  const double speed = tank ? u(0.0, 0.5) : u(0.0, f.mach ? 700.0 : 120.0);
+  const Eigen::Vector2d ahead = bearing_unit(u(0.0, 360.0));
+  f.release = test::release_at(u(-500, 500), u(-500, 500), ground + height, speed * ahead.x(),
+                               speed * ahead.y(), tank ? 0.0 : u(-10.0, 10.0));
+  f.description = std::string(to_string(f.body.drag.model)) + " mass " + std::to_string(f.body.mass) +
+                  " height " + std::to_string(height) + " speed " + std::to_string(speed) +
+                  (f.body.has_canopy ? " canopy" : "") + (f.mach ? " mach" : "") +
+                  (tank ? " tank" : "") + " layers " + std::to_string(layers.size());
+  return f;
+}
+
+// Acceptance: at the default tolerance (0.05 m) every flight lands within 0.05 m of the
+// independent reference; at 0.5 m and 0.005 m the impact error stays within that tolerance too.
+TEST(FlightReference, RandomFlightsLandWithinToleranceOfOdeint) {
+  std::mt19937_64 rng(20261201);
+  double worst_ratio = 0.0;
+  int landed = 0;
+  for (int i = 0; i < 120; ++i) {
+    RandomFlight f = draw_flight(rng);
+    SCOPED_TRACE("flight " + std::to_string(i) + ": " + f.description);
+    const auto reference = test::reference_fly(f.body, f.environment, f.release);
+    ASSERT_TRUE(reference.landed);
+    long steps = 0;
+    for (double tolerance : {0.5, 0.05, 0.005}) {
+      FlightOptions options;
+      options.tolerance = tolerance;
+      const auto result = fly(f.body, f.environment, f.release, options);
+      ASSERT_EQ(result.status, FlightStatus::landed);
+      const double miss = (result.position - reference.position).head<2>().norm();
+      EXPECT_LE(miss, tolerance) << "tolerance " << tolerance;
+      EXPECT_NEAR(result.time, reference.time, std::max(1e-3, tolerance));
+      worst_ratio = std::max(worst_ratio, miss / tolerance);
+      if (tolerance == 0.05) steps = result.steps;
+    }
+    if (std::getenv("STREWN_VERBOSE"))
+      std::printf("%3d %-60s ref steps %6ld ours %5ld\n", i, f.description.c_str(), reference.steps, steps);
+    ++landed;
+  }
+  EXPECT_EQ(landed, 120);
+  RecordProperty("worst_miss_over_tolerance", std::to_string(worst_ratio));
+  if (std::getenv("STREWN_VERBOSE")) std::printf("worst miss / tolerance: %.3f\n", worst_ratio);
+}
+
+// Small bodies: the quasi-steady form against the full equations where both apply (a 40 um
+// droplet from 15 m in a light sheared breeze: the full equations are still affordable there).
+TEST(FlightReference, QuasiSteadyFormMatchesFullEquations) {
+  const Medium air = Medium::us1976();
+  const WindProfile wind({{0.0, 0.3, 200.0}, {8.0, 1.0, 250.0}}, 0.0);
+  const Environment environment{&air, {}, &wind, 0.0};
+  const Body drop = test::round_body(DragModel::sphere, 40e-6, 998.2);
+  const ReleaseState release = test::release_at(0, 0, 15.0, 1.0, 0, 0);
+  FlightOptions quasi;
+  FlightOptions full;
+  full.allow_quasi_steady = false;
+  const auto a = fly(drop, environment, release, quasi);
+  const auto b = fly(drop, environment, release, full);
+  ASSERT_EQ(a.status, FlightStatus::landed);
+  ASSERT_EQ(b.status, FlightStatus::landed);
+  EXPECT_TRUE(a.quasi_steady);
+  EXPECT_FALSE(b.quasi_steady);
+  EXPECT_LE((a.position - b.position).head<2>().norm(), quasi.tolerance);
+  EXPECT_NEAR(a.time / b.time, 1.0, 1e-4);
+  EXPECT_LT(a.steps * 20, b.steps);  // and it is what makes such flights affordable
+}
+
+// Convergence order by step halving (fixed steps) on the linear-drag problem, whose exact
+// solution is known: the global error must fall as h^5 (Dormand and Prince 1980), the dense
+// output's as h^4 or better (Hairer, Norsett, Wanner II.6).
+TEST(Integrator, ConvergenceOrderByStepHalving) {
+  const double tau = 0.7, vt = 4.0, wind = 3.0;
+  auto rhs = [&](double, const FlightState& y, FlightState& d) {
+    d.head<3>() = y.tail<3>();
+    d[3] = -(y[3] - wind) / tau;
+    d[4] = -y[4] / tau;
+    d[5] = -y[5] / tau - vt / tau;
+  };
+  auto exact_x = [&](double t) { return wind * t + (10.0 - wind) * tau * (1.0 - std::exp(-t / tau)); };
+  // Returns the error at t = 4 and sets the largest dense-output error over 400 probe times.
+  auto run = [&](double h, double& dense_error) {
+    DormandPrince5<6> stepper(FlightState::Constant(1.0));
+    stepper.set_fixed_step(h);
+    FlightState y0;
+    y0 << 0, 0, 100, 10, 0, 0;
+    stepper.start(rhs, 0.0, y0, h);
+    dense_error = 0.0;
+    int probe = 1;
+    while (stepper.t() < 4.0 - 1e-12) {
+      EXPECT_EQ(stepper.step(rhs, 4.0), StepOutcome::accepted);
+      for (; probe * 0.01 <= stepper.t() && probe < 400; ++probe)
+        dense_error = std::max(dense_error, std::abs(stepper.dense(0, probe * 0.01) - exact_x(probe * 0.01)));
+    }
+    return std::abs(stepper.y()[0] - exact_x(4.0));
+  };
+  double previous = 0.0, previous_dense = 0.0;
+  for (double h : {0.2, 0.1, 0.05, 0.025}) {
+    double dense = 0.0;
+    const double error = run(h, dense);
+    if (previous > 0.0) {
+      const double order = std::log2(previous / error);
+      EXPECT_GT(order, 4.6) << "h " << h;
+      EXPECT_LT(order, 5.6) << "h " << h;
+      EXPECT_GT(std::log2(previous_dense / dense), 3.8) << "dense, h " << h;
+    }
+    previous = error;
+    previous_dense = dense;
+  }
+}
+
+}  // namespace
+}  // namespace strewn

@@ -1,0 +1,119 @@
+#pragma once
+// An independent reference integration of the same physics: Boost.Odeint's Dormand-Prince 5(4)
+// with dense output at a tight tolerance. Only the forces (forces.hpp) are shared with strewn;
+// the stepping, step control, event location (bisection on Odeint's dense output) and stage
+// handling are Odeint's and this file's. Used by the tests and by the benchmark.
+#include <array>
+#include <boost/numeric/odeint.hpp>
+#include <cmath>
+
+#include "flight/flight.hpp"
+
+namespace strewn::test {
+
+using OdeState = std::array<double, 6>;
+
+struct ReferenceImpact {
+  double time = 0.0;
+  Vec3 position = Vec3::Zero();
+  Vec3 velocity = Vec3::Zero();
+  bool landed = false;
+  long steps = 0;
+};
+
+inline ReferenceImpact reference_fly(const Body& body, const Environment& environment,
+                                     const ReleaseState& release, double tolerance = 1e-10,
+                                     double max_time = 1e6) {
+  namespace odeint = boost::numeric::odeint;
+  Forces forces(body, environment);
+  auto rhs = [&forces](const OdeState& x, OdeState& dxdt, double t) {
+    FlightState y = Eigen::Map<const FlightState>(x.data());
+    FlightState d;
+    forces(t, y, d);
+    Eigen::Map<FlightState>(dxdt.data()) = d;
+  };
+  auto stepper = odeint::make_dense_output(tolerance, tolerance, odeint::runge_kutta_dopri5<OdeState>());
+  OdeState x{release.position.x(), release.position.y(), release.position.z(),
+             release.velocity.x(), release.velocity.y(), release.velocity.z()};
+  const double ground = environment.ground;
+  const Canopy& canopy = body.canopy;
+  const bool opens = body.has_canopy && canopy.state != CanopyState::failed;
+  double deploy_time = std::numeric_limits<double>::infinity();
+  bool watch_height = false;
+  if (opens) {
+    if (canopy.trigger == Canopy::Trigger::time) deploy_time = canopy.deploy_after;
+    else if (x[2] - ground <= canopy.deploy_height) deploy_time = 0.0;
+    else watch_height = true;
+  }
+  DragStage stage = DragStage::body;
+  double fill_end = std::numeric_limits<double>::infinity();
+  auto deploy = [&](double when) {
+    if (canopy.fill_time > 0.0) {
+      stage = DragStage::filling;
+      fill_end = when + canopy.fill_time;
+      forces.set_stage(stage, canopy.drag_area, when, canopy.fill_time);
+    } else {
+      stage = DragStage::canopy;
+      forces.set_stage(stage, canopy.drag_area);
+    }
+  };
+  forces.set_stage(DragStage::body);
+  if (deploy_time == 0.0) deploy(0.0);
+  ReferenceImpact impact;
+  stepper.initialize(x, 0.0, 1e-4);
+  // Bisection for the time in [a, b] where the altitude crosses `level`.
+  auto bisect = [&](double a, double b, double level) {
+    OdeState s;
+    for (int i = 0; i < 200 && b - a > 1e-13 * std::max(1.0, b); ++i) {
+      const double m = 0.5 * (a + b);
+      stepper.calc_state(m, s);
+      (s[2] > level ? a : b) = m;
+    }
+    return 0.5 * (a + b);
+  };
+  while (stepper.current_time() < max_time) {
+    const auto [t0, t1] = stepper.do_step(rhs);
+    ++impact.steps;
+    // Events inside (t0, t1], earliest first: ground, deployment height, time events.
+    const double next_time_event = stage == DragStage::body      ? deploy_time
+                                   : stage == DragStage::filling ? fill_end
+                                                                 : std::numeric_limits<double>::infinity();
+    double event_time = std::numeric_limits<double>::infinity();
+    int event = 0;  // 1 ground, 2 deployment height, 3 time event
+    OdeState end = stepper.current_state();
+    if (end[2] <= ground) {
+      event_time = bisect(t0, t1, ground);
+      event = 1;
+    }
+    if (watch_height && stage == DragStage::body && end[2] <= ground + canopy.deploy_height) {
+      const double te = bisect(t0, t1, ground + canopy.deploy_height);
+      if (te < event_time) {
+        event_time = te;
+        event = 2;
+      }
+    }
+    if (next_time_event <= t1 && next_time_event < event_time) {
+      event_time = next_time_event;
+      event = 3;
+    }
+    if (event == 0) continue;
+    OdeState s;
+    stepper.calc_state(event_time, s);
+    if (event == 1) {
+      impact.time = event_time;
+      impact.position = Vec3(s[0], s[1], ground);
+      impact.velocity = Vec3(s[3], s[4], s[5]);
+      impact.landed = true;
+      return impact;
+    }
+    if (stage == DragStage::body) deploy(event_time);
+    else {
+      stage = DragStage::canopy;
+      forces.set_stage(stage, canopy.drag_area);
+    }
+    stepper.initialize(s, event_time, 1e-4);
+  }
+  return impact;
+}
+
+}  // namespace strewn::test
