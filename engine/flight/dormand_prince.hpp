@@ -45,7 +45,7 @@ class DormandPrince5 {
     f(t, y, k1_);
     ++evaluations_;
     h_ = h_initial > 0.0 ? h_initial : initial_step(f);
-    previous_error_ = 1e-4;
+    log_previous_error_ = std::log(1e-4);
     dense_ready_ = false;
   }
 
@@ -75,10 +75,10 @@ class DormandPrince5 {
         accept(h, hits_limit ? t_max : t_ + h);
         // Step-size proposal with the PI controller of Hairer-Norsett-Wanner (II.4 and DOPRI5:
         // exponent 0.2 - 0.75 beta, beta = 0.04), bounded growth and the usual safety factor.
-        const double e = std::max(error, 1e-10);
-        double factor = kSafety * std::pow(e, -kAlpha) * std::pow(previous_error_, kBeta);
+        const double log_error = std::log(std::max(error, 1e-10));
+        double factor = kSafety * std::exp(kBeta * log_previous_error_ - kAlpha * log_error);
         factor = std::clamp(factor, kMinFactor, last_rejected_ ? 1.0 : kMaxFactor);
-        previous_error_ = e;
+        log_previous_error_ = log_error;
         last_rejected_ = false;
         // A step cut short by t_max keeps the larger proposal it had before the cut.
         h_ = hits_limit ? std::max(h_, h * factor) : h * factor;
@@ -96,6 +96,7 @@ class DormandPrince5 {
     t_ = t_previous_;
     y_ = y_previous_;
     k1_ = k1_previous_;
+    dense_ready_ = false;
   }
 
   /// Error per unit step over the reference time T (s); 0 turns it off (error per step).
@@ -115,6 +116,7 @@ class DormandPrince5 {
 
   /// Dense output (order 4) at time t within the last accepted step [t_previous, t].
   [[nodiscard]] State dense(double t) const {
+    prepare_dense();
     const double theta = (t - t_previous_) / (t_ - t_previous_);
     const double theta1 = 1.0 - theta;
     return y_previous_ +
@@ -122,6 +124,7 @@ class DormandPrince5 {
   }
   /// One component of the dense output, cheaper than the whole state (for root finding).
   [[nodiscard]] double dense(int component, double t) const {
+    prepare_dense();
     const double theta = (t - t_previous_) / (t_ - t_previous_);
     const double theta1 = 1.0 - theta;
     return y_previous_[component] +
@@ -173,19 +176,27 @@ class DormandPrince5 {
   }
 
   void accept(double h, double t_new) {
-    // Dense output coefficients for [t_, t_new] (DOPRI5 "CONTD5" form).
-    const State difference = y_new_ - y_;
-    r2_ = difference;
-    r3_ = h * k1_ - difference;
-    r4_ = difference - h * k7_ - r3_;
-    r5_ = h * (d1 * k1_ + d3 * k3_ + d4 * k4_ + d5 * k5_ + d6 * k6_ + d7 * k7_);
     t_previous_ = t_;
     y_previous_ = y_;
     k1_previous_ = k1_;
+    k7_last_ = k7_;
+    h_last_ = h;
     t_ = t_new;
     y_ = y_new_;
     k1_ = k7_;  // first-same-as-last
     ++steps_;
+    dense_ready_ = false;  // the dense output is prepared on first use (most steps never need it)
+  }
+
+  // Dense output coefficients for the last step (DOPRI5 "CONTD5" form).
+  void prepare_dense() const {
+    if (dense_ready_) return;
+    const double h = h_last_;
+    const State difference = y_ - y_previous_;
+    r2_ = difference;
+    r3_ = h * k1_previous_ - difference;
+    r4_ = difference - h * k7_last_ - r3_;
+    r5_ = h * (d1 * k1_previous_ + d3 * k3_ + d4 * k4_ + d5 * k5_ + d6 * k6_ + d7 * k7_last_);
     dense_ready_ = true;
   }
 
@@ -207,12 +218,14 @@ class DormandPrince5 {
 
   State inverse_tolerance_;
   double t_ = 0.0, t_previous_ = 0.0, h_ = 0.0, fixed_step_ = 0.0, reference_time_ = 0.0;
-  double previous_error_ = 1e-4;
-  bool last_rejected_ = false, dense_ready_ = false;
+  double log_previous_error_ = -9.210340371976184;  // log(1e-4), Hairer's DOPRI5 start
+  bool last_rejected_ = false;
+  mutable bool dense_ready_ = false;
+  double h_last_ = 0.0;
   long evaluations_ = 0, steps_ = 0;
   State y_, y_previous_, y_new_, error_;
-  State k1_, k1_previous_, k2_, k3_, k4_, k5_, k6_, k7_;
-  State r2_, r3_, r4_, r5_;
+  State k1_, k1_previous_, k2_, k3_, k4_, k5_, k6_, k7_, k7_last_;
+  mutable State r2_, r3_, r4_, r5_;
 };
 
 }  // namespace strewn

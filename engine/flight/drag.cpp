@@ -100,7 +100,7 @@ DragLaw::DragLaw(const DragSpec& spec) : spec_(spec) {
   }
 }
 
-double DragLaw::coefficient(double speed, const Air& air) const {
+double DragLaw::general_coefficient(double speed, const Air& air) const {
   const double factor = spec_.mach_table ? spec_.mach_table->at(speed / air.sound_speed) : 1.0;
   switch (spec_.model) {
     case DragModel::area: return half_cd_area_ * air.density * speed * factor;

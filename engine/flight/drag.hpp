@@ -79,7 +79,12 @@ class DragLaw {
   explicit DragLaw(const DragSpec& spec);
 
   /// k (kg/s) for air-relative speed |u| (m/s) in the given air, such that F = -k u.
-  [[nodiscard]] double coefficient(double speed, const Air& air) const;
+  [[nodiscard]] double coefficient(double speed, const Air& air) const {
+    // The constant-Cd law without a Mach table is the common case of studies: kept inline.
+    if (spec_.model == DragModel::area && spec_.mach_table == nullptr)
+      return half_cd_area_ * air.density * speed;
+    return general_coefficient(speed, air);
+  }
 
   /// Whether the law reads the viscosity or the speed of sound (to skip them otherwise).
   [[nodiscard]] bool needs_viscosity() const { return needs_viscosity_; }
@@ -97,6 +102,7 @@ class DragLaw {
   [[nodiscard]] const DragSpec& spec() const { return spec_; }
 
  private:
+  [[nodiscard]] double general_coefficient(double speed, const Air& air) const;
   [[nodiscard]] double mach_factor(double mach) const {
     return spec_.mach_table ? spec_.mach_table->at(mach) : 1.0;
   }

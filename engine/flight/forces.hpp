@@ -49,19 +49,23 @@ class Forces {
   /// Full equations of motion: y = (r, v), dydt = (v, a).
   void operator()(double t, const FlightState& y, FlightState& dydt) const {
     const double z = y[2];
+    // r0 / (r0 + z) serves both the inverse-square gravity and the US76 grid coordinate.
+    const double earth_ratio = constants::earth_radius / (constants::earth_radius + z);
     Air air;
     if (needs_full_air_) {
       air = medium_.air(z, conditions_);
     } else {
-      air.density = medium_.density(z, conditions_);
+      air.density = medium_.density_at(medium_.coordinate(z, earth_ratio), conditions_);
       air.viscosity = 0.0;
       air.sound_speed = 0.0;
     }
-    const Eigen::Vector2d w = wind_.at(z);
-    const double ux = y[3] - w.x(), uy = y[4] - w.y(), uz = y[5];
+    double wind_east, wind_north;
+    wind_.at(z, wind_east, wind_north);
+    const double ux = y[3] - wind_east, uy = y[4] - wind_north, uz = y[5];
     const double speed = std::sqrt(ux * ux + uy * uy + uz * uz);
     const double k = drag_coefficient(t, speed, air) * inverse_mass_;
-    const double g = gravity_at(z) * (1.0 - air.density * inverse_body_density_);
+    const double g = (constant_gravity_ ? constants::g0 : constants::g0 * earth_ratio * earth_ratio) *
+                     (1.0 - air.density * inverse_body_density_);
     dydt[0] = y[3];
     dydt[1] = y[4];
     dydt[2] = y[5];

@@ -30,9 +30,10 @@ Medium Medium::us1976(double bottom, double top, double step) {
     const double h = h_bottom + static_cast<double>(i) * step;
     const double z = constants::earth_radius * h / (constants::earth_radius - h);  // geometric
     const auto s = us1976::at(std::clamp(z, us1976::lowest_altitude, us1976::highest_altitude));
-    m.nodes_.push_back({s.temperature, s.pressure});
+    m.nodes_.push_back({s.temperature, s.pressure, s.pressure / (kGasConstant * s.temperature)});
   }
   m.last_index_ = static_cast<double>(count - 1);
+  m.last_cell_ = count - 2;
   return m;
 }
 
@@ -71,9 +72,10 @@ Medium Medium::profile(const std::vector<SoundingLevel>& levels, double step) {
     const double f = std::clamp((z - a.altitude) / (b.altitude - a.altitude), 0.0, 1.0);
     const double t = a.temperature + f * (b.temperature - a.temperature);
     const double p = std::exp(std::log(a.pressure) + f * (std::log(b.pressure) - std::log(a.pressure)));
-    m.nodes_.push_back({t, p});
+    m.nodes_.push_back({t, p, p / (kGasConstant * t)});
   }
   m.last_index_ = static_cast<double>(count - 1);
+  m.last_cell_ = count - 2;
   return m;
 }
 
@@ -96,8 +98,8 @@ Air Medium::air(double altitude, const MediumConditions& c) const {
     return {c.density_factor * uniform_density_, uniform_viscosity_, uniform_sound_speed_};
   const Node n = interpolate(altitude);
   const double t = n.temperature + c.temperature_offset;
-  return {c.density_factor * n.pressure / (kGasConstant * t), us1976::sutherland_viscosity(t),
-          us1976::sound_speed(t)};
+  // Density by the same path as density(), so every drag model sees the same air.
+  return {density(altitude, c), us1976::sutherland_viscosity(t), us1976::sound_speed(t)};
 }
 
 double Medium::temperature(double altitude, const MediumConditions& c) const {

@@ -16,6 +16,7 @@
 // level spacing.
 #include <limits>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "core/constants.hpp"
@@ -68,9 +69,31 @@ class Medium {
 
   /// Density only (the cheap query of the area drag model), kg/m^3.
   [[nodiscard]] double density(double altitude, const MediumConditions& c) const {
+    return density_at(coordinate(altitude), c);
+  }
+  /// The same from the grid coordinate (see coordinate()), so a caller that has the ratio
+  /// r0 / (r0 + z) for gravity anyway need not divide again.
+  [[nodiscard]] double density_at(double grid_coordinate, const MediumConditions& c) const {
     if (kind_ == Kind::uniform) return c.density_factor * uniform_density_;
-    const Node n = interpolate(altitude);
-    return c.density_factor * n.pressure / (kGasConstant * (n.temperature + c.temperature_offset));
+    const auto [i, f] = cell(grid_coordinate);
+    const Node& a = nodes_[i];
+    const Node& b = nodes_[i + 1];
+    if (c.temperature_offset == 0.0)  // a standard day: the tabulated density itself
+      return c.density_factor * (a.density + f * (b.density - a.density));
+    const double t = a.temperature + f * (b.temperature - a.temperature) + c.temperature_offset;
+    const double p = a.pressure + f * (b.pressure - a.pressure);
+    return c.density_factor * p / (kGasConstant * t);
+  }
+  /// The grid coordinate of an altitude: geopotential altitude r0 z / (r0 + z) for US76,
+  /// the altitude itself otherwise.
+  [[nodiscard]] double coordinate(double altitude) const {
+    return geopotential_grid_
+               ? constants::earth_radius * altitude / (constants::earth_radius + altitude)
+               : altitude;
+  }
+  /// The same when r0 / (r0 + z) is known.
+  [[nodiscard]] double coordinate(double altitude, double earth_ratio) const {
+    return geopotential_grid_ ? altitude * earth_ratio : altitude;
   }
 
   /// Density, viscosity and speed of sound.
@@ -85,28 +108,32 @@ class Medium {
   struct Node {
     double temperature;
     double pressure;
+    double density;  // at the tabulated temperature (no offset)
   };
   Medium() = default;
-  [[nodiscard]] Node interpolate(double altitude) const {
-    const double coordinate =
-        geopotential_grid_ ? constants::earth_radius * altitude / (constants::earth_radius + altitude)
-                           : altitude;
+  // Index of the grid cell holding the coordinate and the fraction across it (clamped to the
+  // table's ends).
+  [[nodiscard]] std::pair<std::size_t, double> cell(double coordinate) const {
     double x = (coordinate - grid_origin_) * inverse_step_;
     if (x < 0.0) x = 0.0;
     if (x > last_index_) x = last_index_;
     auto i = static_cast<std::size_t>(x);
-    if (i + 1 >= nodes_.size()) i = nodes_.size() - 2;
-    const double f = x - static_cast<double>(i);
+    if (i > last_cell_) i = last_cell_;
+    return {i, x - static_cast<double>(i)};
+  }
+  [[nodiscard]] Node interpolate(double altitude) const {
+    const auto [i, f] = cell(coordinate(altitude));
     const Node& a = nodes_[i];
     const Node& b = nodes_[i + 1];
     return {a.temperature + f * (b.temperature - a.temperature),
-            a.pressure + f * (b.pressure - a.pressure)};
+            a.pressure + f * (b.pressure - a.pressure), a.density + f * (b.density - a.density)};
   }
 
   Kind kind_ = Kind::us1976;
   double bottom_ = 0.0, top_ = 0.0;  // geometric altitude range, m
   bool geopotential_grid_ = false;    // grid coordinate: geopotential (US76) or geometric altitude
   double grid_origin_ = 0.0, inverse_step_ = 1.0, last_index_ = 0.0;
+  std::size_t last_cell_ = 0;  // index of the last cell (nodes - 2)
   std::vector<Node> nodes_;
   double uniform_density_ = 0.0, uniform_viscosity_ = 0.0;
   double uniform_sound_speed_ = std::numeric_limits<double>::infinity();

@@ -19,7 +19,10 @@ WindProfile::WindProfile(const std::vector<WindLayer>& layers, double ground) : 
     if (i > 0 && !(l.altitude > layers[i - 1].altitude))
       throw std::invalid_argument("wind layers must have strictly increasing altitudes");
     altitude_.push_back(l.altitude);
-    velocity_.push_back(wind_from(l.speed, l.from));
+    const Eigen::Vector2d v = wind_from(l.speed, l.from);
+    east_.push_back(v.x());
+    north_.push_back(v.y());
+    inverse_thickness_.push_back(i == 0 ? 0.0 : 1.0 / (l.altitude - layers[i - 1].altitude));
     max_speed_ = std::max(max_speed_, l.speed);
   }
   power_law_ = !altitude_.empty() && altitude_.front() - ground_ > kPowerLawFloor;
@@ -27,19 +30,14 @@ WindProfile::WindProfile(const std::vector<WindLayer>& layers, double ground) : 
   kinks_.insert(kinks_.end(), altitude_.begin(), altitude_.end());
 }
 
-Eigen::Vector2d WindProfile::at(double z) const {
-  if (altitude_.empty()) return Eigen::Vector2d::Zero();
-  if (z >= altitude_.back()) return velocity_.back();
-  if (z <= altitude_.front()) {
-    if (!power_law_) return velocity_.front();
-    const double height = std::max(z - ground_, kPowerLawFloor);
-    return velocity_.front() *
-           std::pow(height / (altitude_.front() - ground_), kPowerLawExponent);
-  }
-  const auto upper = std::upper_bound(altitude_.begin(), altitude_.end(), z);
-  const auto i = static_cast<std::size_t>(upper - altitude_.begin());
-  const double f = (z - altitude_[i - 1]) / (altitude_[i] - altitude_[i - 1]);
-  return velocity_[i - 1] + f * (velocity_[i] - velocity_[i - 1]);
+void WindProfile::below_lowest(double z, double& east, double& north) const {
+  east = east_.front();
+  north = north_.front();
+  if (!power_law_) return;
+  const double height = std::max(z - ground_, kPowerLawFloor);
+  const double factor = std::pow(height / (altitude_.front() - ground_), kPowerLawExponent);
+  east *= factor;
+  north *= factor;
 }
 
 }  // namespace strewn

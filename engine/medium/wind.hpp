@@ -9,6 +9,7 @@
 // below 10 m above the ground; otherwise the lowest layer's wind holds down to the ground.
 // There is no vertical wind.
 #include <Eigen/Core>
+#include <cstddef>
 #include <vector>
 
 namespace strewn {
@@ -28,7 +29,34 @@ class WindProfile {
   WindProfile(const std::vector<WindLayer>& layers, double ground);
 
   /// Wind velocity (east, north), m/s, at altitude z (m above mean sea level).
-  [[nodiscard]] Eigen::Vector2d at(double altitude) const;
+  [[nodiscard]] Eigen::Vector2d at(double altitude) const {
+    double east = 0.0, north = 0.0;
+    at(altitude, east, north);
+    return {east, north};
+  }
+  /// The same into two numbers (the force loop's form: no vector temporaries).
+  void at(double z, double& east, double& north) const {
+    const std::size_t n = altitude_.size();
+    if (n == 0) {
+      east = north = 0.0;
+      return;
+    }
+    if (z >= altitude_[n - 1]) {
+      east = east_[n - 1];
+      north = north_[n - 1];
+      return;
+    }
+    if (z <= altitude_[0]) {
+      below_lowest(z, east, north);
+      return;
+    }
+    // Profiles have few layers: a linear scan beats a binary search.
+    std::size_t i = 1;
+    while (z > altitude_[i]) ++i;
+    const double f = (z - altitude_[i - 1]) * inverse_thickness_[i];
+    east = east_[i - 1] + f * (east_[i] - east_[i - 1]);
+    north = north_[i - 1] + f * (north_[i] - north_[i - 1]);
+  }
 
   [[nodiscard]] bool calm() const { return altitude_.empty(); }
   /// Largest wind speed anywhere in the profile, m/s.
@@ -43,8 +71,9 @@ class WindProfile {
   static constexpr double kPowerLawFloor = 10.0;  ///< m above ground below which it is constant
 
  private:
+  void below_lowest(double z, double& east, double& north) const;
   std::vector<double> altitude_;
-  std::vector<Eigen::Vector2d> velocity_;
+  std::vector<double> east_, north_, inverse_thickness_;
   std::vector<double> kinks_;
   double ground_ = 0.0;
   double max_speed_ = 0.0;

@@ -1,9 +1,10 @@
 #pragma once
 // An independent reference integration of the same physics: Boost.Odeint's Dormand-Prince 5(4)
 // with dense output at a tight tolerance. Only the forces (forces.hpp) are shared with strewn;
-// the stepping, step control, event location (bisection on Odeint's dense output) and stage
-// handling are Odeint's and this file's. Used by the tests and by the benchmark.
+// the stepping, step control, event location (TOMS 748 from Boost.Math on Odeint's dense output)
+// and stage handling are Odeint's and this file's. Used by the tests and by the benchmark.
 #include <array>
+#include <boost/math/tools/toms748_solve.hpp>
 #include <boost/numeric/odeint.hpp>
 #include <cmath>
 
@@ -61,15 +62,20 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
   if (deploy_time == 0.0) deploy(0.0);
   ReferenceImpact impact;
   stepper.initialize(x, 0.0, 1e-4);
-  // Bisection for the time in [a, b] where the altitude crosses `level`.
+  // The time in [a, b] where the altitude crosses `level`, on Odeint's dense output.
   auto bisect = [&](double a, double b, double level) {
     OdeState s;
-    for (int i = 0; i < 200 && b - a > 1e-13 * std::max(1.0, b); ++i) {
-      const double m = 0.5 * (a + b);
-      stepper.calc_state(m, s);
-      (s[2] > level ? a : b) = m;
-    }
-    return 0.5 * (a + b);
+    auto offset = [&](double t) {
+      stepper.calc_state(t, s);
+      return s[2] - level;
+    };
+    const double fa = offset(a), fb = offset(b);
+    if (fb == 0.0) return b;
+    if ((fa > 0.0) == (fb > 0.0)) return a;
+    std::uintmax_t iterations = 100;
+    const auto root = boost::math::tools::toms748_solve(
+        offset, a, b, fa, fb, boost::math::tools::eps_tolerance<double>(50), iterations);
+    return 0.5 * (root.first + root.second);
   };
   while (stepper.current_time() < max_time) {
     const auto [t0, t1] = stepper.do_step(rhs);

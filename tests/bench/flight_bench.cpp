@@ -1,0 +1,95 @@
+// One bundle flight (area model, 2.7 km fall through a 4-layer wind, US76) with strewn's
+// integrator, and the same forces integrated with Boost.Odeint's dense-output Dormand-Prince at the
+// same accuracy, side by side. Each reports its impact error against a tolerance-1e-11 reference.
+#include <benchmark/benchmark.h>
+
+#include <cmath>
+
+#include "../unit/reference_flight.hpp"
+#include "flight/flight.hpp"
+
+namespace strewn {
+namespace {
+
+struct BundleDrop {
+  Medium medium = Medium::us1976();
+  WindProfile wind{{{540.0, 3.0, 240.0}, {1500.0, 8.0, 255.0}, {2500.0, 11.0, 265.0}, {3500.0, 14.0, 275.0}},
+                   540.0};
+  Body body;
+  Environment environment;
+  ReleaseState release;
+  Vec3 reference;
+  BundleDrop() {
+    body.mass = 95.0;
+    body.drag.model = DragModel::area;
+    body.drag.cd = 1.05;
+    body.drag.area = 0.55;
+    environment = Environment{&medium, {}, &wind, 540.0};
+    release.position = Vec3(0.0, 0.0, 540.0 + 2700.0);
+    release.velocity = Vec3(62.0, 0.0, 0.0);
+    reference = test::reference_fly(body, environment, release, 1e-11).position;
+  }
+};
+
+const BundleDrop& bundle() {
+  static const BundleDrop drop;
+  return drop;
+}
+
+double miss(const Vec3& impact) { return (impact - bundle().reference).head<2>().norm(); }
+
+void BM_BundleFlight_strewn(benchmark::State& state) {
+  const auto& b = bundle();
+  FlightOptions options;  // default tolerance 0.05 m
+  FlightResult result;
+  for (auto _ : state) {
+    result = fly(b.body, b.environment, b.release, options);
+    benchmark::DoNotOptimize(result);
+  }
+  state.counters["impact_error_m"] = miss(result.position);
+  state.counters["steps"] = static_cast<double>(result.steps);
+  state.counters["evaluations"] = static_cast<double>(result.evaluations);
+}
+BENCHMARK(BM_BundleFlight_strewn)->Unit(benchmark::kMicrosecond);
+
+// Odeint at the loosest tolerance (a factor-2 ladder) whose impact error is no worse than
+// strewn's at the default tolerance: the same accuracy, for a fair comparison of cost.
+void BM_BundleFlight_odeint_dopri5(benchmark::State& state) {
+  const auto& b = bundle();
+  const double target = miss(fly(b.body, b.environment, b.release).position);
+  double tolerance = 1e-1;
+  while (tolerance > 1e-12 &&
+         miss(test::reference_fly(b.body, b.environment, b.release, tolerance).position) > target)
+    tolerance /= 2.0;
+  test::ReferenceImpact result;
+  for (auto _ : state) {
+    result = test::reference_fly(b.body, b.environment, b.release, tolerance);
+    benchmark::DoNotOptimize(result);
+  }
+  state.counters["impact_error_m"] = miss(result.position);
+  state.counters["steps"] = static_cast<double>(result.steps);
+  state.counters["odeint_tolerance"] = tolerance;
+}
+BENCHMARK(BM_BundleFlight_odeint_dopri5)->Unit(benchmark::kMicrosecond);
+
+// The cost of one evaluation of the forces, for reading the flight cost.
+void BM_ForcesEvaluation(benchmark::State& state) {
+  const auto& b = bundle();
+  const Forces forces(b.body, b.environment);
+  FlightState y;
+  y << 100.0, 20.0, 2000.0, 30.0, 5.0, -40.0;
+  FlightState d;
+  double t = 0.0;
+  for (auto _ : state) {
+    forces(t, y, d);
+    benchmark::DoNotOptimize(d);
+    y[2] -= 0.37;
+    if (y[2] < 600.0) y[2] = 3000.0;
+  }
+}
+BENCHMARK(BM_ForcesEvaluation)->Unit(benchmark::kNanosecond);
+
+}  // namespace
+}  // namespace strewn
+
+BENCHMARK_MAIN();
