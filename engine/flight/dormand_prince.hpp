@@ -75,8 +75,10 @@ class DormandPrince5 {
         accept(h, hits_limit ? t_max : t_ + h);
         // Step-size proposal with the PI controller of Hairer-Norsett-Wanner (II.4 and DOPRI5:
         // exponent 0.2 - 0.75 beta, beta = 0.04), bounded growth and the usual safety factor.
-        const double log_error = std::log(std::max(error, 1e-10));
-        double factor = kSafety * std::exp(kBeta * log_previous_error_ - kAlpha * log_error);
+        // Single precision is ample for choosing a step (and deterministic like the rest).
+        const double log_error = std::log(static_cast<float>(std::max(error, 1e-10)));
+        double factor =
+            kSafety * std::exp(static_cast<float>(kBeta * log_previous_error_ - kAlpha * log_error));
         factor = std::clamp(factor, kMinFactor, last_rejected_ ? 1.0 : kMaxFactor);
         log_previous_error_ = log_error;
         last_rejected_ = false;
@@ -122,15 +124,18 @@ class DormandPrince5 {
     return y_previous_ +
            theta * (r2_ + theta1 * (r3_ + theta * (r4_ + theta1 * r5_)));
   }
-  /// One component of the dense output, cheaper than the whole state (for root finding).
-  [[nodiscard]] double dense(int component, double t) const {
-    prepare_dense();
+  /// One component of the dense output, from the stages directly (cheaper than preparing the
+  /// whole state when only the altitude is wanted, as in root finding).
+  [[nodiscard]] double dense(int i, double t) const {
+    const double h = h_last_;
     const double theta = (t - t_previous_) / (t_ - t_previous_);
     const double theta1 = 1.0 - theta;
-    return y_previous_[component] +
-           theta * (r2_[component] +
-                    theta1 * (r3_[component] +
-                              theta * (r4_[component] + theta1 * r5_[component])));
+    const double difference = y_[i] - y_previous_[i];
+    const double r3 = h * k1_previous_[i] - difference;
+    const double r4 = difference - h * k7_last_[i] - r3;
+    const double r5 = h * (d1 * k1_previous_[i] + d3 * k3_[i] + d4 * k4_[i] + d5 * k5_[i] +
+                           d6 * k6_[i] + d7 * k7_last_[i]);
+    return y_previous_[i] + theta * (difference + theta1 * (r3 + theta * (r4 + theta1 * r5)));
   }
 
  private:
@@ -161,15 +166,23 @@ class DormandPrince5 {
                           d4 = -10690763975.0 / 1880347072.0, d5 = 701980252875.0 / 199316789632.0,
                           d6 = -1453857185.0 / 822651844.0, d7 = 69997945.0 / 29380423.0;
 
+  // One trial step. Each stage's input is written as a partial sum of the older stages plus the
+  // newest stage's term: the partial sum does not wait for the newest force evaluation, so the
+  // chain from one evaluation to the next is a single multiply-add.
   template <class Rhs>
   void trial(Rhs& f, double h) {
     const double t = t_;
-    f(t + c2 * h, y_ + h * (a21 * k1_), k2_);
-    f(t + c3 * h, y_ + h * (a31 * k1_ + a32 * k2_), k3_);
-    f(t + c4 * h, y_ + h * (a41 * k1_ + a42 * k2_ + a43 * k3_), k4_);
-    f(t + c5 * h, y_ + h * (a51 * k1_ + a52 * k2_ + a53 * k3_ + a54 * k4_), k5_);
-    f(t + h, y_ + h * (a61 * k1_ + a62 * k2_ + a63 * k3_ + a64 * k4_ + a65 * k5_), k6_);
-    y_new_ = y_ + h * (a71 * k1_ + a73 * k3_ + a74 * k4_ + a75 * k5_ + a76 * k6_);
+    f(t + c2 * h, y_ + (h * a21) * k1_, k2_);
+    partial_ = y_ + (h * a31) * k1_;
+    f(t + c3 * h, partial_ + (h * a32) * k2_, k3_);
+    partial_ = y_ + h * (a41 * k1_ + a42 * k2_);
+    f(t + c4 * h, partial_ + (h * a43) * k3_, k4_);
+    partial_ = y_ + h * (a51 * k1_ + a52 * k2_ + a53 * k3_);
+    f(t + c5 * h, partial_ + (h * a54) * k4_, k5_);
+    partial_ = y_ + h * (a61 * k1_ + a62 * k2_ + a63 * k3_ + a64 * k4_);
+    f(t + h, partial_ + (h * a65) * k5_, k6_);
+    partial_ = y_ + h * (a71 * k1_ + a73 * k3_ + a74 * k4_ + a75 * k5_);
+    y_new_ = partial_ + (h * a76) * k6_;
     f(t + h, y_new_, k7_);
     evaluations_ += 6;
     error_ = e1 * k1_ + e3 * k3_ + e4 * k4_ + e5 * k5_ + e6 * k6_ + e7 * k7_;
@@ -223,7 +236,7 @@ class DormandPrince5 {
   mutable bool dense_ready_ = false;
   double h_last_ = 0.0;
   long evaluations_ = 0, steps_ = 0;
-  State y_, y_previous_, y_new_, error_;
+  State y_, y_previous_, y_new_, error_, partial_;
   State k1_, k1_previous_, k2_, k3_, k4_, k5_, k6_, k7_, k7_last_;
   mutable State r2_, r3_, r4_, r5_;
 };

@@ -33,7 +33,10 @@ class Forces {
         inverse_mass_(1.0 / body.mass),
         inverse_body_density_(body.volume > 0.0 ? body.volume / body.mass : 0.0),
         needs_full_air_(drag_.needs_viscosity() || drag_.needs_sound_speed()),
-        constant_gravity_(environment.constant_gravity) {}
+        constant_gravity_(environment.constant_gravity),
+        // Constant Cd without a Mach table: k / m = (Cd A / 2m) rho |u|, the common case.
+        constant_cd_(body.drag.model == DragModel::area && body.drag.mach_table == nullptr),
+        half_cd_area_per_mass_(0.5 * body.drag.cd * body.drag.area / body.mass) {}
 
   /// Sets the drag stage; `fill_start` and `fill_time` matter for `filling`, `canopy_drag_area`
   /// (Cd S, m^2) for `filling` and `canopy`.
@@ -49,13 +52,11 @@ class Forces {
   /// Full equations of motion: y = (r, v), dydt = (v, a).
   void operator()(double t, const FlightState& y, FlightState& dydt) const {
     const double z = y[2];
-    // r0 / (r0 + z) serves both the inverse-square gravity and the US76 grid coordinate.
-    const double earth_ratio = constants::earth_radius / (constants::earth_radius + z);
     Air air;
     if (needs_full_air_) {
       air = medium_.air(z, conditions_);
     } else {
-      air.density = medium_.density_at(medium_.coordinate(z, earth_ratio), conditions_);
+      air.density = medium_.density(z, conditions_);
       air.viscosity = 0.0;
       air.sound_speed = 0.0;
     }
@@ -63,9 +64,11 @@ class Forces {
     wind_.at(z, wind_east, wind_north);
     const double ux = y[3] - wind_east, uy = y[4] - wind_north, uz = y[5];
     const double speed = std::sqrt(ux * ux + uy * uy + uz * uz);
-    const double k = drag_coefficient(t, speed, air) * inverse_mass_;
-    const double g = (constant_gravity_ ? constants::g0 : constants::g0 * earth_ratio * earth_ratio) *
-                     (1.0 - air.density * inverse_body_density_);
+    // The density comes last in the product: it ends the longest chain of the evaluation.
+    const double k = constant_cd_ && stage_ == DragStage::body
+                         ? (half_cd_area_per_mass_ * speed) * air.density
+                         : drag_coefficient(t, speed, air) * inverse_mass_;
+    const double g = gravity_at(z) * (1.0 - air.density * inverse_body_density_);
     dydt[0] = y[3];
     dydt[1] = y[4];
     dydt[2] = y[5];
@@ -129,6 +132,8 @@ class Forces {
   double mass_, inverse_mass_, inverse_body_density_;
   bool needs_full_air_;
   bool constant_gravity_;
+  bool constant_cd_;
+  double half_cd_area_per_mass_;
   DragStage stage_ = DragStage::body;
   double half_canopy_drag_area_ = 0.0, fill_start_ = 0.0, inverse_fill_time_ = 0.0;
 };

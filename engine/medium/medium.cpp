@@ -9,6 +9,49 @@
 
 namespace strewn {
 
+template <class Model>
+void Medium::tabulate(const Model& model, double step, const std::vector<double>& kinks) {
+  const auto count = static_cast<std::size_t>(std::ceil((top_ - bottom_) / step - 1e-9));
+  const double h = (top_ - bottom_) / static_cast<double>(count);
+  inverse_step_ = 1.0 / h;
+  last_index_ = static_cast<double>(count);
+  last_cell_ = count - 1;
+  cells_.resize(count);
+  struct Point {
+    double t, p, rho;
+  };
+  auto at = [&](double z) {
+    const auto [t, p] = model(std::clamp(z, bottom_, top_));
+    return Point{t, p, p / (kGasConstant * t)};
+  };
+  auto piece = [](Cell& c, int k, const Point& a, const Point& b, double width) {
+    c.temperature[k] = a.t;
+    c.temperature_slope[k] = (b.t - a.t) / width;
+    c.pressure[k] = a.p;
+    c.pressure_slope[k] = (b.p - a.p) / width;
+    c.density[k] = a.rho;
+    c.density_slope[k] = (b.rho - a.rho) / width;
+  };
+  for (std::size_t i = 0; i < count; ++i) {
+    const double z0 = bottom_ + static_cast<double>(i) * h;
+    const double z1 = i + 1 == count ? top_ : bottom_ + static_cast<double>(i + 1) * h;
+    const Point a = at(z0), b = at(z1);
+    Cell& c = cells_[i];
+    c.split = 2.0;
+    piece(c, 0, a, b, 1.0);
+    piece(c, 1, a, b, 1.0);
+    for (double kink : kinks) {
+      const double s = (kink - z0) / h;
+      if (!(s > 1e-9 && s < 1.0 - 1e-9)) continue;
+      const Point k = at(kink);
+      c.split = s;
+      piece(c, 0, a, k, s);
+      piece(c, 1, k, b, 1.0 - s);
+      break;  // the grid is fine enough that no cell holds two kinks
+    }
+  }
+}
+
 Medium Medium::us1976(double bottom, double top, double step) {
   if (!(bottom >= us1976::lowest_altitude && top <= us1976::highest_altitude && bottom < top &&
         step > 0.0))
@@ -17,23 +60,16 @@ Medium Medium::us1976(double bottom, double top, double step) {
   m.kind_ = Kind::us1976;
   m.bottom_ = bottom;
   m.top_ = top;
-  m.geopotential_grid_ = true;
-  // Nodes at whole multiples of the step in geopotential altitude: the layer bases (0, 11, 20,
-  // 32, 47, 51, 71 km') are multiples of 25 m' and so fall on nodes.
-  const double h_bottom = std::floor(us1976::geopotential(bottom) / step) * step;
-  const double h_top = std::ceil(us1976::geopotential(top) / step) * step;
-  const auto count = static_cast<std::size_t>(std::llround((h_top - h_bottom) / step)) + 1;
-  m.grid_origin_ = h_bottom;
-  m.inverse_step_ = 1.0 / step;
-  m.nodes_.reserve(count);
-  for (std::size_t i = 0; i < count; ++i) {
-    const double h = h_bottom + static_cast<double>(i) * step;
-    const double z = constants::earth_radius * h / (constants::earth_radius - h);  // geometric
-    const auto s = us1976::at(std::clamp(z, us1976::lowest_altitude, us1976::highest_altitude));
-    m.nodes_.push_back({s.temperature, s.pressure, s.pressure / (kGasConstant * s.temperature)});
-  }
-  m.last_index_ = static_cast<double>(count - 1);
-  m.last_cell_ = count - 2;
+  // The bases of the standard's layers are round geopotential altitudes; geometric z = r0 H / (r0 - H).
+  std::vector<double> kinks;
+  for (double base : {11000.0, 20000.0, 32000.0, 47000.0, 51000.0, 71000.0})
+    kinks.push_back(constants::earth_radius * base / (constants::earth_radius - base));
+  m.tabulate(
+      [](double z) {
+        const auto s = us1976::at(z);
+        return std::pair{s.temperature, s.pressure};
+      },
+      step, kinks);
   return m;
 }
 
@@ -53,29 +89,27 @@ Medium Medium::profile(const std::vector<SoundingLevel>& levels, double step) {
   m.kind_ = Kind::profile;
   m.bottom_ = levels.front().altitude;
   m.top_ = levels.back().altitude;
-  m.grid_origin_ = m.bottom_;
-  // The grid is fine enough to resolve every level: at most `step`, and at most a tenth of the
-  // closest spacing of the levels.
+  // Every level is a kink of the temperature; cells at most half the closest level spacing hold
+  // at most one.
   double h = step;
-  for (std::size_t i = 1; i < levels.size(); ++i)
-    h = std::min(h, (levels[i].altitude - levels[i - 1].altitude) / 10.0);
-  const auto count = static_cast<std::size_t>(std::ceil((m.top_ - m.bottom_) / h)) + 1;
-  h = (m.top_ - m.bottom_) / static_cast<double>(count - 1);
-  m.inverse_step_ = 1.0 / h;
-  m.nodes_.reserve(count);
-  std::size_t j = 0;
-  for (std::size_t i = 0; i < count; ++i) {
-    const double z = std::min(m.bottom_ + static_cast<double>(i) * h, m.top_);
-    while (j + 2 < levels.size() && z > levels[j + 1].altitude) ++j;
-    const auto& a = levels[j];
-    const auto& b = levels[j + 1];
-    const double f = std::clamp((z - a.altitude) / (b.altitude - a.altitude), 0.0, 1.0);
-    const double t = a.temperature + f * (b.temperature - a.temperature);
-    const double p = std::exp(std::log(a.pressure) + f * (std::log(b.pressure) - std::log(a.pressure)));
-    m.nodes_.push_back({t, p, p / (kGasConstant * t)});
+  std::vector<double> kinks;
+  for (std::size_t i = 1; i < levels.size(); ++i) {
+    h = std::min(h, (levels[i].altitude - levels[i - 1].altitude) / 2.0);
+    kinks.push_back(levels[i - 1].altitude);
   }
-  m.last_index_ = static_cast<double>(count - 1);
-  m.last_cell_ = count - 2;
+  // Between levels: temperature linear, pressure linear in log (the hydrostatic law for a layer
+  // of constant temperature, the usual reading of a sounding).
+  m.tabulate(
+      [&levels](double z) {
+        std::size_t j = 0;
+        while (j + 2 < levels.size() && z > levels[j + 1].altitude) ++j;
+        const auto& a = levels[j];
+        const auto& b = levels[j + 1];
+        const double f = std::clamp((z - a.altitude) / (b.altitude - a.altitude), 0.0, 1.0);
+        return std::pair{a.temperature + f * (b.temperature - a.temperature),
+                         std::exp(std::log(a.pressure) + f * (std::log(b.pressure) - std::log(a.pressure)))};
+      },
+      h, kinks);
   return m;
 }
 
@@ -96,20 +130,21 @@ Medium Medium::uniform(double density, double viscosity, double sound_speed) {
 Air Medium::air(double altitude, const MediumConditions& c) const {
   if (kind_ == Kind::uniform)
     return {c.density_factor * uniform_density_, uniform_viscosity_, uniform_sound_speed_};
-  const Node n = interpolate(altitude);
-  const double t = n.temperature + c.temperature_offset;
+  const double t = temperature(altitude, c);
   // Density by the same path as density(), so every drag model sees the same air.
   return {density(altitude, c), us1976::sutherland_viscosity(t), us1976::sound_speed(t)};
 }
 
 double Medium::temperature(double altitude, const MediumConditions& c) const {
   if (kind_ == Kind::uniform) return std::numeric_limits<double>::quiet_NaN();
-  return interpolate(altitude).temperature + c.temperature_offset;
+  const auto [cell, piece, f] = locate(altitude);
+  return cell.temperature[piece] + f * cell.temperature_slope[piece] + c.temperature_offset;
 }
 
 double Medium::pressure(double altitude) const {
   if (kind_ == Kind::uniform) return std::numeric_limits<double>::quiet_NaN();
-  return interpolate(altitude).pressure;
+  const auto [cell, piece, f] = locate(altitude);
+  return cell.pressure[piece] + f * cell.pressure_slope[piece];
 }
 
 }  // namespace strewn

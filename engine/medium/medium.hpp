@@ -8,12 +8,12 @@
 // Sutherland's law and the speed of sound sqrt(gamma R T'), both at T'. A uniform medium (liquids,
 // test tanks) has constant density, viscosity and, optionally, speed of sound.
 //
-// Interpolation: linear for T and p. The US76 grid is uniform in geopotential altitude with 25 m'
-// steps, so every base of the standard's layers (at round geopotential altitudes) is a node and
-// the piecewise-linear temperature is exact; what remains is the linear interpolation of
-// pressure, a relative density error below 3e-6 (bounded by tests/unit/medium_test.cpp).
-// Soundings are gridded in geometric altitude at most 25 m apart and a tenth of the closest
-// level spacing.
+// Interpolation: linear in geometric altitude on a uniform grid (25 m), for temperature, pressure
+// and density. Where the temperature profile has a kink inside a cell (a base of a US76 layer, a
+// level of a sounding), the cell is split there into two linear pieces, so the kinks of the model
+// are reproduced exactly and a query is still one index computation without division. What
+// remains is the linear interpolation of the exponential pressure and density, a relative error
+// below 3e-6 (bounded by tests/unit/medium_test.cpp).
 #include <limits>
 #include <string>
 #include <utility>
@@ -69,31 +69,13 @@ class Medium {
 
   /// Density only (the cheap query of the area drag model), kg/m^3.
   [[nodiscard]] double density(double altitude, const MediumConditions& c) const {
-    return density_at(coordinate(altitude), c);
-  }
-  /// The same from the grid coordinate (see coordinate()), so a caller that has the ratio
-  /// r0 / (r0 + z) for gravity anyway need not divide again.
-  [[nodiscard]] double density_at(double grid_coordinate, const MediumConditions& c) const {
     if (kind_ == Kind::uniform) return c.density_factor * uniform_density_;
-    const auto [i, f] = cell(grid_coordinate);
-    const Node& a = nodes_[i];
-    const Node& b = nodes_[i + 1];
+    const auto [cell, piece, f] = locate(altitude);
     if (c.temperature_offset == 0.0)  // a standard day: the tabulated density itself
-      return c.density_factor * (a.density + f * (b.density - a.density));
-    const double t = a.temperature + f * (b.temperature - a.temperature) + c.temperature_offset;
-    const double p = a.pressure + f * (b.pressure - a.pressure);
-    return c.density_factor * p / (kGasConstant * t);
-  }
-  /// The grid coordinate of an altitude: geopotential altitude r0 z / (r0 + z) for US76,
-  /// the altitude itself otherwise.
-  [[nodiscard]] double coordinate(double altitude) const {
-    return geopotential_grid_
-               ? constants::earth_radius * altitude / (constants::earth_radius + altitude)
-               : altitude;
-  }
-  /// The same when r0 / (r0 + z) is known.
-  [[nodiscard]] double coordinate(double altitude, double earth_ratio) const {
-    return geopotential_grid_ ? altitude * earth_ratio : altitude;
+      return c.density_factor * (cell.density[piece] + f * cell.density_slope[piece]);
+    const double t = cell.temperature[piece] + f * cell.temperature_slope[piece];
+    const double p = cell.pressure[piece] + f * cell.pressure_slope[piece];
+    return c.density_factor * p / (kGasConstant * (t + c.temperature_offset));
   }
 
   /// Density, viscosity and speed of sound.
@@ -105,36 +87,44 @@ class Medium {
 
  private:
   static constexpr double kGasConstant = constants::air_specific_gas_constant;  // R*/M0, US76
-  struct Node {
-    double temperature;
-    double pressure;
-    double density;  // at the tabulated temperature (no offset)
+  // One grid cell: up to two linear pieces (split where the temperature has a kink). Piece 0 runs
+  // from the cell's bottom to `split` (a fraction of the cell; 2 when the cell is not split),
+  // piece 1 from `split` to the top; each holds its value at its own start and the change per unit
+  // fraction of the cell.
+  struct Cell {
+    double split;
+    double temperature[2], temperature_slope[2];
+    double pressure[2], pressure_slope[2];
+    double density[2], density_slope[2];
   };
-  Medium() = default;
-  // Index of the grid cell holding the coordinate and the fraction across it (clamped to the
-  // table's ends).
-  [[nodiscard]] std::pair<std::size_t, double> cell(double coordinate) const {
-    double x = (coordinate - grid_origin_) * inverse_step_;
+  struct Location {
+    const Cell& cell;
+    int piece;
+    double f;  // fraction of the cell measured from the piece's start
+  };
+  [[nodiscard]] Location locate(double altitude) const {
+    double x = (altitude - bottom_) * inverse_step_;
     if (x < 0.0) x = 0.0;
     if (x > last_index_) x = last_index_;
     auto i = static_cast<std::size_t>(x);
     if (i > last_cell_) i = last_cell_;
-    return {i, x - static_cast<double>(i)};
+    const Cell& cell = cells_[i];
+    double f = x - static_cast<double>(i);
+    const int piece = f >= cell.split ? 1 : 0;
+    if (piece) f -= cell.split;
+    return {cell, piece, f};
   }
-  [[nodiscard]] Node interpolate(double altitude) const {
-    const auto [i, f] = cell(coordinate(altitude));
-    const Node& a = nodes_[i];
-    const Node& b = nodes_[i + 1];
-    return {a.temperature + f * (b.temperature - a.temperature),
-            a.pressure + f * (b.pressure - a.pressure), a.density + f * (b.density - a.density)};
-  }
+  // Builds the cells from an exact model (T, p at an altitude) and its kinks (altitudes).
+  template <class Model>
+  void tabulate(const Model& model, double step, const std::vector<double>& kinks);
+
+  Medium() = default;
 
   Kind kind_ = Kind::us1976;
   double bottom_ = 0.0, top_ = 0.0;  // geometric altitude range, m
-  bool geopotential_grid_ = false;    // grid coordinate: geopotential (US76) or geometric altitude
-  double grid_origin_ = 0.0, inverse_step_ = 1.0, last_index_ = 0.0;
-  std::size_t last_cell_ = 0;  // index of the last cell (nodes - 2)
-  std::vector<Node> nodes_;
+  double inverse_step_ = 1.0, last_index_ = 0.0;
+  std::size_t last_cell_ = 0;
+  std::vector<Cell> cells_;
   double uniform_density_ = 0.0, uniform_viscosity_ = 0.0;
   double uniform_sound_speed_ = std::numeric_limits<double>::infinity();
 };
