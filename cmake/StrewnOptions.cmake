@@ -4,6 +4,9 @@ target_compile_options(strewn_options INTERFACE -Wall -Wextra -Wpedantic -Wshado
                                                 -Wno-sign-conversion)
 # strewn never reads errno, so math functions need not set it (sqrt becomes one instruction).
 target_compile_options(strewn_options INTERFACE -fno-math-errno)
+if(STREWN_WERROR)
+  target_compile_options(strewn_options INTERFACE -Werror)
+endif()
 if(STREWN_SANITIZE)
   target_compile_options(strewn_options INTERFACE -fsanitize=address,undefined -fno-omit-frame-pointer
                                                   -fno-sanitize-recover=all)

@@ -25,25 +25,30 @@ int run_trace(const TraceArguments& a, std::ostream& out) {
   const Scenario scenario = load_scenario(a.scenario);
   const World world = build_world(scenario);
   const TraceRecord trace = trace_body(scenario, world, a.body);
-  if (a.json) out << trace_json(trace).dump(2) << '\n';
-  else if (a.csv) write_trace_csv(out, trace);
-  else write_trace_text(out, trace);
+  if (a.json)
+    out << trace_json(trace).dump(2) << '\n';
+  else if (a.csv)
+    write_trace_csv(out, trace);
+  else
+    write_trace_text(out, trace);
   return trace.result.status == FlightStatus::landed ? kExitDone : kExitFailure;
 }
 
 }  // namespace
 
 int run_command_line(int argc, const char* const* argv, std::ostream& out, std::ostream& err) {
-  CLI::App app{"strewn: Monte Carlo engine for drop and drift safety studies.\n"
-               "Results are engineering estimates; exclusion zones are set by the responsible "
-               "authority under local rules.",
-               "strewn"};
+  CLI::App app{
+      "strewn: Monte Carlo engine for drop and drift safety studies.\n"
+      "Results are engineering estimates; exclusion zones are set by the responsible "
+      "authority under local rules.",
+      "strewn"};
   app.set_version_flag("--version", std::string("strewn ") + kEngineVersion);
   app.require_subcommand(1);
 
   TraceArguments trace;
-  auto* trace_cmd = app.add_subcommand("trace", "Fly one body with every input at its median and "
-                                                "report its impact, trajectory and drag regime");
+  auto* trace_cmd = app.add_subcommand("trace",
+                                       "Fly one body with every input at its median and "
+                                       "report its impact, trajectory and drag regime");
   trace_cmd->add_option("SCENARIO", trace.scenario, "Scenario file (TOML)")->required();
   trace_cmd->add_option("--body", trace.body, "Name of the body to fly (default: the first)");
   auto* json_flag = trace_cmd->add_flag("--json", trace.json, "Print JSON");

@@ -12,12 +12,18 @@ namespace strewn {
 
 const char* to_string(DistributionKind kind) {
   switch (kind) {
-    case DistributionKind::fixed: return "fixed";
-    case DistributionKind::normal: return "normal";
-    case DistributionKind::lognormal: return "lognormal";
-    case DistributionKind::uniform: return "uniform";
-    case DistributionKind::triangular: return "triangular";
-    case DistributionKind::choice: return "choice";
+    case DistributionKind::fixed:
+      return "fixed";
+    case DistributionKind::normal:
+      return "normal";
+    case DistributionKind::lognormal:
+      return "lognormal";
+    case DistributionKind::uniform:
+      return "uniform";
+    case DistributionKind::triangular:
+      return "triangular";
+    case DistributionKind::choice:
+      return "choice";
   }
   return "?";
 }
@@ -112,7 +118,9 @@ std::vector<std::pair<std::string, std::string>> Uncertain::problems() const {
     if (lower_ >= upper_) out.emplace_back("min", "must be below max");
   };
   switch (kind_) {
-    case DistributionKind::fixed: finite("value", p1_); break;
+    case DistributionKind::fixed:
+      finite("value", p1_);
+      break;
     case DistributionKind::normal:
       finite("mean", p1_);
       if (finite("sd", p2_) && !(p2_ > 0.0)) out.emplace_back("sd", "must be positive");
@@ -134,8 +142,10 @@ std::vector<std::pair<std::string, std::string>> Uncertain::problems() const {
       break;
     case DistributionKind::triangular:
       if (finite("min", p1_) && finite("mode", p2_) && finite("max", p3_)) {
-        if (!(p1_ < p3_)) out.emplace_back("min", "must be below max");
-        else if (!(p1_ <= p2_ && p2_ <= p3_)) out.emplace_back("mode", "must lie in [min, max]");
+        if (!(p1_ < p3_))
+          out.emplace_back("min", "must be below max");
+        else if (!(p1_ <= p2_ && p2_ <= p3_))
+          out.emplace_back("mode", "must lie in [min, max]");
       }
       break;
     case DistributionKind::choice: {
@@ -163,11 +173,14 @@ std::vector<std::pair<std::string, std::string>> Uncertain::problems() const {
 double Uncertain::quantile(double p) const {
   p = std::clamp(p, 0.0, 1.0);
   switch (kind_) {
-    case DistributionKind::fixed: return p1_;
-    case DistributionKind::normal: return truncated_quantile(Normal(p1_, p2_), p, lower_, upper_);
+    case DistributionKind::fixed:
+      return p1_;
+    case DistributionKind::normal:
+      return truncated_quantile(Normal(p1_, p2_), p, lower_, upper_);
     case DistributionKind::lognormal:
       return truncated_quantile(LogNormal(std::log(p1_), p2_), p, lower_, upper_);
-    case DistributionKind::uniform: return p1_ + p * (p2_ - p1_);
+    case DistributionKind::uniform:
+      return p1_ + p * (p2_ - p1_);
     case DistributionKind::triangular:
       return boost::math::quantile(boost::math::triangular_distribution<double>(p1_, p2_, p3_), p);
     case DistributionKind::choice: {
@@ -207,11 +220,14 @@ double truncated_cdf(const Dist& dist, double x, double lower, double upper) {
 
 double Uncertain::probability_below(double x) const {
   switch (kind_) {
-    case DistributionKind::fixed: return p1_ < x ? 1.0 : 0.0;
-    case DistributionKind::normal: return truncated_cdf(Normal(p1_, p2_), x, lower_, upper_);
+    case DistributionKind::fixed:
+      return p1_ < x ? 1.0 : 0.0;
+    case DistributionKind::normal:
+      return truncated_cdf(Normal(p1_, p2_), x, lower_, upper_);
     case DistributionKind::lognormal:
       return truncated_cdf(LogNormal(std::log(p1_), p2_), x, lower_, upper_);
-    case DistributionKind::uniform: return std::clamp((x - p1_) / (p2_ - p1_), 0.0, 1.0);
+    case DistributionKind::uniform:
+      return std::clamp((x - p1_) / (p2_ - p1_), 0.0, 1.0);
     case DistributionKind::triangular:
       if (x <= p1_) return 0.0;
       if (x >= p3_) return 1.0;
@@ -231,7 +247,8 @@ double Uncertain::probability_below(double x) const {
 
 double Uncertain::probability_above(double x) const {
   switch (kind_) {
-    case DistributionKind::fixed: return p1_ > x ? 1.0 : 0.0;
+    case DistributionKind::fixed:
+      return p1_ > x ? 1.0 : 0.0;
     case DistributionKind::choice: {
       double above = 0.0, total = 0.0;
       for (std::size_t i = 0; i < values_.size(); ++i) {
@@ -241,30 +258,41 @@ double Uncertain::probability_above(double x) const {
       }
       return above / total;
     }
-    default: return 1.0 - probability_below(x);  // continuous: P(X = x) = 0
+    default:
+      return 1.0 - probability_below(x);  // continuous: P(X = x) = 0
   }
 }
 
 double Uncertain::lowest() const {
   switch (kind_) {
-    case DistributionKind::fixed: return p1_;
-    case DistributionKind::normal: return lower_;
-    case DistributionKind::lognormal: return std::max(lower_, 0.0);
+    case DistributionKind::fixed:
+      return p1_;
+    case DistributionKind::normal:
+      return lower_;
+    case DistributionKind::lognormal:
+      return std::max(lower_, 0.0);
     case DistributionKind::uniform:
-    case DistributionKind::triangular: return p1_;
-    case DistributionKind::choice: return *std::min_element(values_.begin(), values_.end());
+    case DistributionKind::triangular:
+      return p1_;
+    case DistributionKind::choice:
+      return *std::min_element(values_.begin(), values_.end());
   }
   return p1_;
 }
 
 double Uncertain::highest() const {
   switch (kind_) {
-    case DistributionKind::fixed: return p1_;
+    case DistributionKind::fixed:
+      return p1_;
     case DistributionKind::normal:
-    case DistributionKind::lognormal: return upper_;
-    case DistributionKind::uniform: return p2_;
-    case DistributionKind::triangular: return p3_;
-    case DistributionKind::choice: return *std::max_element(values_.begin(), values_.end());
+    case DistributionKind::lognormal:
+      return upper_;
+    case DistributionKind::uniform:
+      return p2_;
+    case DistributionKind::triangular:
+      return p3_;
+    case DistributionKind::choice:
+      return *std::max_element(values_.begin(), values_.end());
   }
   return p1_;
 }

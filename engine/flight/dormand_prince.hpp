@@ -16,7 +16,9 @@
 // A rejected step is a return value, never an exception; retries are capped.
 #include <Eigen/Core>
 #include <algorithm>
+#include <bit>
 #include <cmath>
+#include <cstdint>
 
 namespace strewn {
 
@@ -45,7 +47,7 @@ class DormandPrince5 {
     f(t, y, k1_);
     ++evaluations_;
     h_ = h_initial > 0.0 ? h_initial : initial_step(f);
-    log_previous_error_ = std::log(1e-4);
+    log_previous_error_ = rough_log2(1e-4);
     dense_ready_ = false;
   }
 
@@ -60,8 +62,7 @@ class DormandPrince5 {
         h = t_max - t_;
         hits_limit = true;
       }
-      if (!(h > kMinRelativeStep * std::max(1.0, std::abs(t_))))
-        return StepOutcome::step_too_small;
+      if (!(h > kMinRelativeStep * std::max(1.0, std::abs(t_)))) return StepOutcome::step_too_small;
       trial(f, h);
       if (!(y_new_.allFinite() && k7_.allFinite())) {
         // Treat as a failed step first: a too-large step can leave the domain of the forces.
@@ -75,10 +76,10 @@ class DormandPrince5 {
         accept(h, hits_limit ? t_max : t_ + h);
         // Step-size proposal with the PI controller of Hairer-Norsett-Wanner (II.4 and DOPRI5:
         // exponent 0.2 - 0.75 beta, beta = 0.04), bounded growth and the usual safety factor.
-        // Single precision is ample for choosing a step (and deterministic like the rest).
-        const double log_error = std::log(static_cast<float>(std::max(error, 1e-10)));
-        double factor =
-            kSafety * std::exp(static_cast<float>(kBeta * log_previous_error_ - kAlpha * log_error));
+        // A few digits are ample for choosing a step: short polynomial forms of log2 and 2^x keep
+        // the controller off the critical path between steps (and are deterministic).
+        const double log_error = rough_log2(std::max(error, 1e-10));
+        double factor = kSafety * rough_exp2(kBeta * log_previous_error_ - kAlpha * log_error);
         factor = std::clamp(factor, kMinFactor, last_rejected_ ? 1.0 : kMaxFactor);
         log_previous_error_ = log_error;
         last_rejected_ = false;
@@ -121,8 +122,7 @@ class DormandPrince5 {
     prepare_dense();
     const double theta = (t - t_previous_) / (t_ - t_previous_);
     const double theta1 = 1.0 - theta;
-    return y_previous_ +
-           theta * (r2_ + theta1 * (r3_ + theta * (r4_ + theta1 * r5_)));
+    return y_previous_ + theta * (r2_ + theta1 * (r3_ + theta * (r4_ + theta1 * r5_)));
   }
   /// One component of the dense output, from the stages directly (cheaper than preparing the
   /// whole state when only the altitude is wanted, as in root finding).
@@ -137,6 +137,52 @@ class DormandPrince5 {
                            d6 * k6_[i] + d7 * k7_last_[i]);
     return y_previous_[i] + theta * (difference + theta1 * (r3 + theta * (r4 + theta1 * r5)));
   }
+
+  /// Time derivative of one component of the dense output (the exact derivative of its
+  /// polynomial), for Newton steps on it.
+  [[nodiscard]] double dense_rate(int i, double t) const {
+    const double h = h_last_;
+    const double theta = (t - t_previous_) / (t_ - t_previous_);
+    const double theta1 = 1.0 - theta;
+    const double difference = y_[i] - y_previous_[i];
+    const double r3 = h * k1_previous_[i] - difference;
+    const double r4 = difference - h * k7_last_[i] - r3;
+    const double r5 = h * (d1 * k1_previous_[i] + d3 * k3_[i] + d4 * k4_[i] + d5 * k5_[i] +
+                           d6 * k6_[i] + d7 * k7_last_[i]);
+    // P = theta Q, Q = difference + theta1 R, R = r3 + theta S, S = r4 + theta1 r5.
+    const double s = r4 + theta1 * r5;
+    const double r = r3 + theta * s;
+    const double q = difference + theta1 * r;
+    const double dr = s - theta * r5;
+    const double dq = -r + theta1 * dr;
+    return (q + theta * dq) / (t_ - t_previous_);
+  }
+
+ private:
+  // log2 of a positive normal number to within 1.4e-3: its exponent plus a cubic in the mantissa
+  // (least-squares fit of log2(1 + m) on [0, 1)).
+  static double rough_log2(double x) {
+    const auto bits = std::bit_cast<std::uint64_t>(x);
+    const double exponent = static_cast<double>(static_cast<int>((bits >> 52) & 0x7ff) - 1023);
+    const double m =
+        std::bit_cast<double>((bits & 0x000fffffffffffffULL) | 0x3ff0000000000000ULL) - 1.0;
+    return exponent + m * (1.4234853 + m * (-0.5877338 + m * 0.1655588));
+  }
+  // 2^x to within 1.3e-4 relative for |x| < 1000: an integer power by the exponent bits times a
+  // cubic for the fraction (least-squares fit of 2^f - 1 on [0, 1)).
+  static double rough_exp2(double x) {
+    x = std::clamp(x, -1000.0, 1000.0);
+    const double whole = std::floor(x);
+    const double f = x - whole;
+    const double fraction = 1.0 + f * (0.6954300 + f * (0.2269401 + f * 0.0773806));
+    const auto exponent = static_cast<std::uint64_t>(static_cast<int>(whole) + 1023) << 52;
+    return fraction * std::bit_cast<double>(exponent);
+  }
+
+ public:
+  /// The controller's log2 and 2^x (exposed for their accuracy test).
+  static double step_log2(double x) { return rough_log2(x); }
+  static double step_exp2(double x) { return rough_exp2(x); }
 
  private:
   static constexpr int kMaxRejections = 60;
@@ -171,21 +217,33 @@ class DormandPrince5 {
   // chain from one evaluation to the next is a single multiply-add.
   template <class Rhs>
   void trial(Rhs& f, double h) {
+    // Stages in local variables (no aliasing with the members while the chain runs), stored into
+    // the members once at the end for the error estimate and the dense output.
     const double t = t_;
-    f(t + c2 * h, y_ + (h * a21) * k1_, k2_);
-    partial_ = y_ + (h * a31) * k1_;
-    f(t + c3 * h, partial_ + (h * a32) * k2_, k3_);
-    partial_ = y_ + h * (a41 * k1_ + a42 * k2_);
-    f(t + c4 * h, partial_ + (h * a43) * k3_, k4_);
-    partial_ = y_ + h * (a51 * k1_ + a52 * k2_ + a53 * k3_);
-    f(t + c5 * h, partial_ + (h * a54) * k4_, k5_);
-    partial_ = y_ + h * (a61 * k1_ + a62 * k2_ + a63 * k3_ + a64 * k4_);
-    f(t + h, partial_ + (h * a65) * k5_, k6_);
-    partial_ = y_ + h * (a71 * k1_ + a73 * k3_ + a74 * k4_ + a75 * k5_);
-    y_new_ = partial_ + (h * a76) * k6_;
-    f(t + h, y_new_, k7_);
+    const State y = y_;
+    const State k1 = k1_;
+    State k2, k3, k4, k5, k6, k7, partial;
+    f(t + c2 * h, State(y + (h * a21) * k1), k2);
+    partial = y + (h * a31) * k1;
+    f(t + c3 * h, State(partial + (h * a32) * k2), k3);
+    partial = y + h * (a41 * k1 + a42 * k2);
+    f(t + c4 * h, State(partial + (h * a43) * k3), k4);
+    partial = y + h * (a51 * k1 + a52 * k2 + a53 * k3);
+    f(t + c5 * h, State(partial + (h * a54) * k4), k5);
+    partial = y + h * (a61 * k1 + a62 * k2 + a63 * k3 + a64 * k4);
+    f(t + h, State(partial + (h * a65) * k5), k6);
+    partial = y + h * (a71 * k1 + a73 * k3 + a74 * k4 + a75 * k5);
+    const State y_new = partial + (h * a76) * k6;
+    f(t + h, y_new, k7);
     evaluations_ += 6;
-    error_ = e1 * k1_ + e3 * k3_ + e4 * k4_ + e5 * k5_ + e6 * k6_ + e7 * k7_;
+    y_new_ = y_new;
+    k2_ = k2;
+    k3_ = k3;
+    k4_ = k4;
+    k5_ = k5;
+    k6_ = k6;
+    k7_ = k7;
+    error_ = e1 * k1 + e3 * k3 + e4 * k4 + e5 * k5 + e6 * k6 + e7 * k7;
   }
 
   void accept(double h, double t_new) {
@@ -225,18 +283,18 @@ class DormandPrince5 {
     const double d2 = ((k - k1_).cwiseProduct(inverse_tolerance_)).cwiseAbs().maxCoeff() / h0;
     const double dmax = std::max(d1n, d2);
     const double h1 =
-        dmax <= 1e-15 ? std::max(1e-6, h0 * 1e-3) : std::pow(0.01 / dmax, 1.0 / 5.0);
+        dmax <= 1e-15 ? std::max(1e-6, h0 * 1e-3) : rough_exp2(0.2 * rough_log2(0.01 / dmax));
     return std::min(100.0 * h0, h1);
   }
 
   State inverse_tolerance_;
   double t_ = 0.0, t_previous_ = 0.0, h_ = 0.0, fixed_step_ = 0.0, reference_time_ = 0.0;
-  double log_previous_error_ = -9.210340371976184;  // log(1e-4), Hairer's DOPRI5 start
+  double log_previous_error_ = -13.28771237954945;  // log2(1e-4), Hairer's DOPRI5 start
   bool last_rejected_ = false;
   mutable bool dense_ready_ = false;
   double h_last_ = 0.0;
   long evaluations_ = 0, steps_ = 0;
-  State y_, y_previous_, y_new_, error_, partial_;
+  State y_, y_previous_, y_new_, error_;
   State k1_, k1_previous_, k2_, k3_, k4_, k5_, k6_, k7_, k7_last_;
   mutable State r2_, r3_, r4_, r5_;
 };

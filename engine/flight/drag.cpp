@@ -10,10 +10,14 @@ namespace strewn {
 
 const char* to_string(DragModel model) {
   switch (model) {
-    case DragModel::sphere: return "sphere";
-    case DragModel::shape: return "shape";
-    case DragModel::area: return "area";
-    case DragModel::stokes: return "stokes";
+    case DragModel::sphere:
+      return "sphere";
+    case DragModel::shape:
+      return "shape";
+    case DragModel::area:
+      return "area";
+    case DragModel::stokes:
+      return "stokes";
   }
   return "?";
 }
@@ -58,9 +62,13 @@ double morrison_cd_re(double re) {
   return 24.0 + re * rest;
 }
 
-double morrison_cd(double re) { return morrison_cd_re(re) / re; }
+double morrison_cd(double re) {
+  return morrison_cd_re(re) / re;
+}
 
-double schiller_naumann_cd(double re) { return 24.0 / re * (1.0 + 0.15 * std::pow(re, 0.687)); }
+double schiller_naumann_cd(double re) {
+  return 24.0 / re * (1.0 + 0.15 * std::pow(re, 0.687));
+}
 
 HaiderLevenspiel::HaiderLevenspiel(double phi)
     : a(std::exp(2.3288 - 6.4581 * phi + 2.4486 * phi * phi)),
@@ -72,7 +80,9 @@ double HaiderLevenspiel::cd_re(double re) const {
   return 24.0 * (1.0 + a * std::pow(re, b)) + c * re * re / (re + d);
 }
 
-double HaiderLevenspiel::cd(double re) const { return cd_re(re) / re; }
+double HaiderLevenspiel::cd(double re) const {
+  return cd_re(re) / re;
+}
 
 }  // namespace drag
 
@@ -103,7 +113,8 @@ DragLaw::DragLaw(const DragSpec& spec) : spec_(spec) {
 double DragLaw::general_coefficient(double speed, const Air& air) const {
   const double factor = spec_.mach_table ? spec_.mach_table->at(speed / air.sound_speed) : 1.0;
   switch (spec_.model) {
-    case DragModel::area: return half_cd_area_ * air.density * speed * factor;
+    case DragModel::area:
+      return half_cd_area_ * air.density * speed * factor;
     case DragModel::sphere: {
       // k = 1/2 rho A |u| Cd = (A mu / 2D) (Cd Re), finite at |u| = 0.
       const double re = air.density * speed * length_ / air.viscosity;
@@ -113,7 +124,8 @@ double DragLaw::general_coefficient(double speed, const Air& air) const {
       const double re = air.density * speed * length_ / air.viscosity;
       return viscous_factor_ * air.viscosity * shape_.cd_re(re) * factor;
     }
-    case DragModel::stokes: return stokes_factor_ * air.viscosity;
+    case DragModel::stokes:
+      return stokes_factor_ * air.viscosity;
   }
   return 0.0;
 }
@@ -121,10 +133,14 @@ double DragLaw::general_coefficient(double speed, const Air& air) const {
 double DragLaw::cd(double re, double mach) const {
   const double m = mach_factor(mach);
   switch (spec_.model) {
-    case DragModel::area: return spec_.cd * m;
-    case DragModel::sphere: return drag::morrison_cd(re) * m;
-    case DragModel::shape: return shape_.cd(re) * m;
-    case DragModel::stokes: return 24.0 / re;
+    case DragModel::area:
+      return spec_.cd * m;
+    case DragModel::sphere:
+      return drag::morrison_cd(re) * m;
+    case DragModel::shape:
+      return shape_.cd(re) * m;
+    case DragModel::stokes:
+      return 24.0 / re;
   }
   return 0.0;
 }
@@ -132,10 +148,14 @@ double DragLaw::cd(double re, double mach) const {
 double DragLaw::quadratic_cd(double re, double mach) const {
   const double m = mach_factor(mach);
   switch (spec_.model) {
-    case DragModel::area: return spec_.cd * m;
-    case DragModel::sphere: return (drag::morrison_cd_re(re) - 24.0) / re * m;
-    case DragModel::shape: return (shape_.cd_re(re) - 24.0) / re * m;
-    case DragModel::stokes: return 0.0;
+    case DragModel::area:
+      return spec_.cd * m;
+    case DragModel::sphere:
+      return (drag::morrison_cd_re(re) - 24.0) / re * m;
+    case DragModel::shape:
+      return (shape_.cd_re(re) - 24.0) / re * m;
+    case DragModel::stokes:
+      return 0.0;
   }
   return 0.0;
 }

@@ -46,7 +46,8 @@ double schiller_naumann_cd(double reynolds);
 
 /// Coefficients A, B, C, D of Haider and Levenspiel (1989), Powder Technol. 58:63-70, eq. (10).
 struct HaiderLevenspiel {
-  double a, b, c, d;
+  double a = 0.0, b = 0.0, c = 0.0, d = 0.0;
+  HaiderLevenspiel() = default;  // unset: only `shape` bodies compute the coefficients
   explicit HaiderLevenspiel(double sphericity);
   [[nodiscard]] double cd(double reynolds) const;
   /// Cd Re = 24 (1 + A Re^B) + C Re^2 / (Re + D); finite as Re -> 0 (tends to 24).
@@ -56,8 +57,8 @@ struct HaiderLevenspiel {
 inline constexpr double kMorrisonMaxReynolds = 1.0e6;
 inline constexpr double kHaiderLevenspielMaxReynolds = 2.6e5;
 inline constexpr double kHaiderLevenspielMinSphericity = 0.026;
-inline constexpr double kStokesMaxReynolds = 1.0;   // common practice
-inline constexpr double kAreaMinReynolds = 1.0e3;   // Newton regime, common practice
+inline constexpr double kStokesMaxReynolds = 1.0;      // common practice
+inline constexpr double kAreaMinReynolds = 1.0e3;      // Newton regime, common practice
 inline constexpr double kIncompressibleMaxMach = 0.3;  // common practice
 }  // namespace drag
 
@@ -108,10 +109,10 @@ class DragLaw {
   }
   DragSpec spec_;
   double area_ = 0.0, length_ = 0.0;
-  double half_cd_area_ = 0.0;     // area: Cd A / 2
-  double viscous_factor_ = 0.0;   // sphere, shape: A / (2 D), so k = factor mu (Cd Re)
-  double stokes_factor_ = 0.0;    // stokes: 3 pi D
-  drag::HaiderLevenspiel shape_{1.0};
+  double half_cd_area_ = 0.0;    // area: Cd A / 2
+  double viscous_factor_ = 0.0;  // sphere, shape: A / (2 D), so k = factor mu (Cd Re)
+  double stokes_factor_ = 0.0;   // stokes: 3 pi D
+  drag::HaiderLevenspiel shape_;
   bool needs_viscosity_ = false;
 };
 

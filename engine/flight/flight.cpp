@@ -10,42 +10,69 @@ namespace strewn {
 
 const char* to_string(FlightStatus status) {
   switch (status) {
-    case FlightStatus::landed: return "landed";
-    case FlightStatus::step_limit: return "step_limit";
-    case FlightStatus::time_limit: return "time_limit";
-    case FlightStatus::step_too_small: return "step_too_small";
-    case FlightStatus::non_finite: return "non_finite";
+    case FlightStatus::landed:
+      return "landed";
+    case FlightStatus::step_limit:
+      return "step_limit";
+    case FlightStatus::time_limit:
+      return "time_limit";
+    case FlightStatus::step_too_small:
+      return "step_too_small";
+    case FlightStatus::non_finite:
+      return "non_finite";
   }
   return "?";
 }
 
 const char* to_string(CanopyState state) {
   switch (state) {
-    case CanopyState::none: return "none";
-    case CanopyState::full: return "full";
-    case CanopyState::partial: return "partial";
-    case CanopyState::failed: return "failed";
+    case CanopyState::none:
+      return "none";
+    case CanopyState::full:
+      return "full";
+    case CanopyState::partial:
+      return "partial";
+    case CanopyState::failed:
+      return "failed";
   }
   return "?";
 }
 
 namespace {
 
-// Time within the last step at which the altitude reaches `level`, by TOMS 748 (Boost.Math) on
-// the dense output. The caller knows the step began on one side of the level and ended on the
-// other (or on it).
+// The time in [a, b] at which the altitude of the dense-output polynomial reaches `level`, given
+// its offsets fa, fb from the level at the ends (of opposite signs). Newton steps with the
+// polynomial's exact derivative, kept inside the bracket (a bisection when a step leaves it), to
+// `precision` seconds. The bracket may lie beyond the last step: the polynomial then extrapolates.
 template <class Stepper>
-double locate_level(const Stepper& stepper, double level) {
-  auto height = [&](double t) { return stepper.dense(2, t) - level; };
-  const double a = stepper.t_previous(), b = stepper.t();
-  const double fa = stepper.y_previous()[2] - level;
-  const double fb = stepper.y()[2] - level;
+double solve_level(const Stepper& stepper, double level, double a, double b, double fa, double fb,
+                   double precision) {
   if (fb == 0.0) return b;
   if (fa == 0.0 || (fa > 0.0) == (fb > 0.0)) return a;
-  std::uintmax_t iterations = 80;
-  const auto root = boost::math::tools::toms748_solve(
-      height, a, b, fa, fb, boost::math::tools::eps_tolerance<double>(50), iterations);
-  return 0.5 * (root.first + root.second);
+  double t = a + (b - a) * fa / (fa - fb);  // regula falsi start
+  for (int i = 0; i < 60; ++i) {
+    const double f = stepper.dense(2, t) - level;
+    if (f == 0.0) return t;
+    if ((f > 0.0) == (fa > 0.0)) {
+      a = t;
+      fa = f;
+    } else {
+      b = t;
+    }
+    double next = t - f / stepper.dense_rate(2, t);
+    if (!(next > a && next < b)) next = 0.5 * (a + b);
+    if (std::abs(next - t) <= precision || b - a <= precision) return next;
+    t = next;
+  }
+  return t;
+}
+
+// Time within the last step at which the altitude reaches `level` (to a few ulps of the time).
+template <class Stepper>
+double locate_level(const Stepper& stepper, double level) {
+  return solve_level(stepper, level, stepper.t_previous(), stepper.t(),
+                     stepper.y_previous()[2] - level, stepper.y()[2] - level,
+                     4.0 * std::numeric_limits<double>::epsilon() * std::max(1.0, stepper.t()));
 }
 
 class FlightRun {
@@ -141,12 +168,9 @@ class FlightRun {
     // of their own.
     consider(ground_ - 0.5 * sliver);
     if (std::isnan(target)) return kNone;
-    auto offset = [&](double t) { return stepper.dense(2, t) - target; };
-    std::uintmax_t iterations = 40;
-    const auto root = boost::math::tools::toms748_solve(
-        offset, stepper.t(), t_end, z - target, z_end - target,
-        boost::math::tools::eps_tolerance<double>(30), iterations);
-    return 0.5 * (root.first + root.second);
+    // The prediction need only be good to a small share of the step.
+    return solve_level(stepper, target, stepper.t(), t_end, z - target, z_end - target,
+                       1e-6 * (t_end - stepper.t()));
   }
 
   // Mach number of a full state.
@@ -248,8 +272,10 @@ FlightRun::Next FlightRun::integrate(Stepper& stepper, State& y, double& t, doub
       y = stepper.y();
       return Next::stop;
     }
-    if (stepper.t() >= kink_stop_) kink_stop_ = std::numeric_limits<double>::infinity();
-    else if (retake_to_kink(stepper)) continue;
+    if (stepper.t() >= kink_stop_)
+      kink_stop_ = std::numeric_limits<double>::infinity();
+    else if (retake_to_kink(stepper))
+      continue;
     const double z = stepper.y()[2];
     if (observer_ && options_.record_interval > 0.0) {
       for (; next_record_ < stepper.t(); next_record_ += options_.record_interval) {
@@ -301,9 +327,12 @@ FlightResult FlightRun::run(const ReleaseState& release) {
   double deploy_time = std::numeric_limits<double>::infinity();
   bool watch_height = false;
   if (opens) {
-    if (canopy.trigger == Canopy::Trigger::time) deploy_time = std::max(0.0, canopy.deploy_after);
-    else if (y[2] - ground_ <= canopy.deploy_height) deploy_time = 0.0;  // released below it
-    else watch_height = true;
+    if (canopy.trigger == Canopy::Trigger::time)
+      deploy_time = std::max(0.0, canopy.deploy_after);
+    else if (y[2] - ground_ <= canopy.deploy_height)
+      deploy_time = 0.0;  // released below it
+    else
+      watch_height = true;
   }
 
   FlightState tolerance;
@@ -350,8 +379,7 @@ FlightResult FlightRun::run(const ReleaseState& release) {
     } else if (stage == DragStage::filling) {
       t_stop = std::min(t_stop, fill_end);
     }
-    const Next next =
-        integrate(stepper, y, t, t_stop, watch_height && stage == DragStage::body);
+    const Next next = integrate(stepper, y, t, t_stop, watch_height && stage == DragStage::body);
     evaluations += stepper.evaluations();
     if (next == Next::ground || next == Next::stop) break;
     if (t >= options_.max_time) {

@@ -58,12 +58,12 @@ struct FlightOptions {
 
 struct FlightResult {
   FlightStatus status = FlightStatus::landed;
-  double time = 0.0;                ///< s from release to impact (or to the end)
-  Vec3 position = Vec3::Zero();     ///< impact point (m; z is the ground elevation)
-  Vec3 velocity = Vec3::Zero();     ///< ground-relative velocity at impact, m/s
-  double speed = 0.0;               ///< |velocity|, m/s
-  double energy = 0.0;              ///< 1/2 m speed^2, J
-  double angle = 0.0;               ///< degrees below the horizontal at impact
+  double time = 0.0;             ///< s from release to impact (or to the end)
+  Vec3 position = Vec3::Zero();  ///< impact point (m; z is the ground elevation)
+  Vec3 velocity = Vec3::Zero();  ///< ground-relative velocity at impact, m/s
+  double speed = 0.0;            ///< |velocity|, m/s
+  double energy = 0.0;           ///< 1/2 m speed^2, J
+  double angle = 0.0;            ///< degrees below the horizontal at impact
   double deploy_time = std::numeric_limits<double>::quiet_NaN();  ///< s, NaN: no deployment
   long steps = 0;
   long evaluations = 0;

@@ -8,15 +8,18 @@ namespace strewn {
 double Forces::terminal_speed(double z) const {
   const double weight = mass_ * effective_gravity(z);
   if (!(weight > 0.0)) return std::numeric_limits<double>::quiet_NaN();
+  if (drag_.spec().model == DragModel::area && !drag_.needs_sound_speed()) {
+    // Newton's law with constant Cd: v_t = sqrt(m g_eff / (1/2 rho Cd A)); only the density.
+    const Air air{medium_.density(z, conditions_), 0.0, 0.0};
+    return std::sqrt(weight / drag_.coefficient(1.0, air));
+  }
   const Air air = medium_.air(z, conditions_);
   switch (drag_.spec().model) {
-    case DragModel::stokes: return weight / drag_.coefficient(0.0, air);
-    case DragModel::area: {
-      // Newton's law with constant Cd; a Mach table is evaluated by the root search below.
-      if (drag_.needs_sound_speed()) break;
-      return std::sqrt(weight / drag_.coefficient(1.0, air));
-    }
-    default: break;
+    case DragModel::stokes:
+      return weight / drag_.coefficient(0.0, air);
+    case DragModel::area:  // with a Mach table: the root search below
+    default:
+      break;
   }
   // Force balance k(v) v = m g_eff, solved by bracketing. The drag force grows with speed and is
   // at least the Stokes force for the diameter models (Cd Re >= 24), so the Stokes settling
@@ -28,9 +31,9 @@ double Forces::terminal_speed(double z) const {
   for (int i = 0; i < 200 && balance(high) < 0.0; ++i) high *= 2.0;
   if (!(balance(high) >= 0.0)) return std::numeric_limits<double>::quiet_NaN();
   std::uintmax_t iterations = 100;
-  const auto root = boost::math::tools::toms748_solve(
-      balance, 0.0, high, -weight, balance(high), boost::math::tools::eps_tolerance<double>(48),
-      iterations);
+  const auto root =
+      boost::math::tools::toms748_solve(balance, 0.0, high, -weight, balance(high),
+                                        boost::math::tools::eps_tolerance<double>(48), iterations);
   return 0.5 * (root.first + root.second);
 }
 

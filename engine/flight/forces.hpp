@@ -50,7 +50,8 @@ class Forces {
   [[nodiscard]] DragStage stage() const { return stage_; }
 
   /// Full equations of motion: y = (r, v), dydt = (v, a).
-  void operator()(double t, const FlightState& y, FlightState& dydt) const {
+  [[gnu::always_inline]] inline void operator()(double t, const FlightState& y,
+                                                FlightState& dydt) const {
     const double z = y[2];
     Air air;
     if (needs_full_air_) {
@@ -80,8 +81,10 @@ class Forces {
   /// Drag k (kg/s) at time t for air-relative speed `speed` in `air` (F = -k u).
   [[nodiscard]] double drag_coefficient(double t, double speed, const Air& air) const {
     switch (stage_) {
-      case DragStage::body: return drag_.coefficient(speed, air);
-      case DragStage::canopy: return half_canopy_drag_area_ * air.density * speed;
+      case DragStage::body:
+        return drag_.coefficient(speed, air);
+      case DragStage::canopy:
+        return half_canopy_drag_area_ * air.density * speed;
       case DragStage::filling: {
         const double s = std::clamp((t - fill_start_) * inverse_fill_time_, 0.0, 1.0);
         return (1.0 - s) * drag_.coefficient(speed, air) +

@@ -71,12 +71,12 @@ std::vector<std::string> TrajectoryRecorder::warnings(const FlightResult& result
     out.push_back("Mach number reached " + number(mach_.max) +
                   ", beyond the Mach table; its last factor was held");
   if (left_medium_)
-    out.push_back("the flight left the altitude range of the medium (" +
-                  number(medium_bottom_) + " .. " + number(medium_top_) +
-                  " m); the end values were held");
+    out.push_back("the flight left the altitude range of the medium (" + number(medium_bottom_) +
+                  " .. " + number(medium_top_) + " m); the end values were held");
   if (result.quasi_steady)
-    out.push_back("the quasi-steady (terminal-velocity) form was used after the release "
-                  "transient: the body relaxes to its settling speed almost at once");
+    out.push_back(
+        "the quasi-steady (terminal-velocity) form was used after the release "
+        "transient: the body relaxes to its settling speed almost at once");
   return out;
 }
 

@@ -11,12 +11,12 @@ namespace strewn {
 
 struct RecordedPoint {
   TrajectoryPoint point;
-  double reynolds;            ///< rho |u| L / mu with the body's drag length L
-  double mach;                ///< |u| / a (0 where the medium has no speed of sound)
-  double quadratic_to_linear; ///< (1/2 rho Cq A |u|^2) / (3 pi mu L |u|) = Re Cq / 24
-  double air_speed;           ///< |u|, m/s
-  double density;             ///< kg/m^3
-  Eigen::Vector2d wind;       ///< m/s
+  double reynolds;             ///< rho |u| L / mu with the body's drag length L
+  double mach;                 ///< |u| / a (0 where the medium has no speed of sound)
+  double quadratic_to_linear;  ///< (1/2 rho Cq A |u|^2) / (3 pi mu L |u|) = Re Cq / 24
+  double air_speed;            ///< |u|, m/s
+  double density;              ///< kg/m^3
+  Eigen::Vector2d wind;        ///< m/s
 };
 
 struct Range {

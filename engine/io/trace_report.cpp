@@ -12,9 +12,12 @@ namespace strewn {
 namespace {
 const char* stage_name(DragStage stage) {
   switch (stage) {
-    case DragStage::body: return "body";
-    case DragStage::filling: return "filling";
-    case DragStage::canopy: return "canopy";
+    case DragStage::body:
+      return "body";
+    case DragStage::filling:
+      return "filling";
+    case DragStage::canopy:
+      return "canopy";
   }
   return "?";
 }
@@ -82,24 +85,30 @@ nlohmann::json trace_json(const TraceRecord& t) {
   j["body"] = t.scenario->bodies[t.body_index].name;
   j["inputs"] = "nominal (every distribution at its median; canopy fully open; no burst velocity)";
   j["status"] = to_string(r.status);
-  j["impact"] = {{"time", r.time},         {"east", r.position.x()},
-                 {"north", r.position.y()}, {"speed", r.speed},
-                 {"energy", r.energy},     {"angle", r.angle},
+  j["impact"] = {{"time", r.time},
+                 {"east", r.position.x()},
+                 {"north", r.position.y()},
+                 {"speed", r.speed},
+                 {"energy", r.energy},
+                 {"angle", r.angle},
                  {"velocity", {r.velocity.x(), r.velocity.y(), r.velocity.z()}},
-                 {"downrange", downrange}, {"crossrange", crossrange}};
+                 {"downrange", downrange},
+                 {"crossrange", crossrange}};
   const auto& rel = t.inputs.release;
   j["release"] = {{"east", rel.position.x()},
                   {"north", rel.position.y()},
                   {"altitude", rel.position.z()},
                   {"velocity", {rel.velocity.x(), rel.velocity.y(), rel.velocity.z()}}};
-  j["deploy_time"] = std::isnan(r.deploy_time) ? nlohmann::json(nullptr) : nlohmann::json(r.deploy_time);
+  j["deploy_time"] =
+      std::isnan(r.deploy_time) ? nlohmann::json(nullptr) : nlohmann::json(r.deploy_time);
   j["regime"] = {{"reynolds", range_json(t.recorder.reynolds())},
                  {"mach", range_json(t.recorder.mach())},
                  {"quadratic_to_linear", range_json(t.recorder.quadratic_to_linear())},
                  {"drag_model", to_string(t.inputs.body.drag.model)},
                  {"quasi_steady", r.quasi_steady},
                  {"warnings", t.recorder.warnings(r)}};
-  j["integration"] = {{"tolerance", t.tolerance}, {"steps", r.steps}, {"evaluations", r.evaluations}};
+  j["integration"] = {
+      {"tolerance", t.tolerance}, {"steps", r.steps}, {"evaluations", r.evaluations}};
   nlohmann::json points = nlohmann::json::array();
   const double ground = t.scenario->site.ground;
   for (const auto& p : t.recorder.points()) {
@@ -144,7 +153,8 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
       << " m (right of track)\n";
   out << "          speed " << fixed(r.speed, 2) << " m/s   energy " << general(r.energy)
       << " J   angle " << fixed(r.angle, 1) << " deg below horizontal\n";
-  if (!std::isnan(r.deploy_time)) out << "canopy    deployed at " << fixed(r.deploy_time, 2) << " s\n";
+  if (!std::isnan(r.deploy_time))
+    out << "canopy    deployed at " << fixed(r.deploy_time, 2) << " s\n";
   const auto& rec = t.recorder;
   out << "regime    drag model " << to_string(t.inputs.body.drag.model);
   if (!rec.reynolds().empty())

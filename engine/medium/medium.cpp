@@ -60,7 +60,8 @@ Medium Medium::us1976(double bottom, double top, double step) {
   m.kind_ = Kind::us1976;
   m.bottom_ = bottom;
   m.top_ = top;
-  // The bases of the standard's layers are round geopotential altitudes; geometric z = r0 H / (r0 - H).
+  // The bases of the standard's layers are round geopotential altitudes; geometric z = r0 H / (r0 -
+  // H).
   std::vector<double> kinks;
   for (double base : {11000.0, 20000.0, 32000.0, 47000.0, 51000.0, 71000.0})
     kinks.push_back(constants::earth_radius * base / (constants::earth_radius - base));
@@ -82,8 +83,9 @@ Medium Medium::profile(const std::vector<SoundingLevel>& levels, double step) {
       throw std::invalid_argument("sounding level " + std::to_string(i + 1) +
                                   ": temperature and pressure must be positive and finite");
     if (i > 0 && !(l.altitude > levels[i - 1].altitude))
-      throw std::invalid_argument("sounding levels must have strictly increasing altitudes (level " +
-                                  std::to_string(i + 1) + ")");
+      throw std::invalid_argument(
+          "sounding levels must have strictly increasing altitudes (level " +
+          std::to_string(i + 1) + ")");
   }
   Medium m;
   m.kind_ = Kind::profile;
@@ -106,8 +108,9 @@ Medium Medium::profile(const std::vector<SoundingLevel>& levels, double step) {
         const auto& a = levels[j];
         const auto& b = levels[j + 1];
         const double f = std::clamp((z - a.altitude) / (b.altitude - a.altitude), 0.0, 1.0);
-        return std::pair{a.temperature + f * (b.temperature - a.temperature),
-                         std::exp(std::log(a.pressure) + f * (std::log(b.pressure) - std::log(a.pressure)))};
+        return std::pair{
+            a.temperature + f * (b.temperature - a.temperature),
+            std::exp(std::log(a.pressure) + f * (std::log(b.pressure) - std::log(a.pressure)))};
       },
       h, kinks);
   return m;
@@ -137,14 +140,14 @@ Air Medium::air(double altitude, const MediumConditions& c) const {
 
 double Medium::temperature(double altitude, const MediumConditions& c) const {
   if (kind_ == Kind::uniform) return std::numeric_limits<double>::quiet_NaN();
-  const auto [cell, piece, f] = locate(altitude);
-  return cell.temperature[piece] + f * cell.temperature_slope[piece] + c.temperature_offset;
+  const auto [cell, f] = locate(altitude);
+  return on_cell(cell.temperature, cell.temperature_slope, f, cell.split) + c.temperature_offset;
 }
 
 double Medium::pressure(double altitude) const {
   if (kind_ == Kind::uniform) return std::numeric_limits<double>::quiet_NaN();
-  const auto [cell, piece, f] = locate(altitude);
-  return cell.pressure[piece] + f * cell.pressure_slope[piece];
+  const auto [cell, f] = locate(altitude);
+  return on_cell(cell.pressure, cell.pressure_slope, f, cell.split);
 }
 
 }  // namespace strewn

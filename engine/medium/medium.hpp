@@ -14,6 +14,9 @@
 // are reproduced exactly and a query is still one index computation without division. What
 // remains is the linear interpolation of the exponential pressure and density, a relative error
 // below 3e-6 (bounded by tests/unit/medium_test.cpp).
+#include <algorithm>
+#include <bit>
+#include <cstdint>
 #include <limits>
 #include <string>
 #include <utility>
@@ -70,11 +73,11 @@ class Medium {
   /// Density only (the cheap query of the area drag model), kg/m^3.
   [[nodiscard]] double density(double altitude, const MediumConditions& c) const {
     if (kind_ == Kind::uniform) return c.density_factor * uniform_density_;
-    const auto [cell, piece, f] = locate(altitude);
+    const auto [cell, f] = locate(altitude);
     if (c.temperature_offset == 0.0)  // a standard day: the tabulated density itself
-      return c.density_factor * (cell.density[piece] + f * cell.density_slope[piece]);
-    const double t = cell.temperature[piece] + f * cell.temperature_slope[piece];
-    const double p = cell.pressure[piece] + f * cell.pressure_slope[piece];
+      return c.density_factor * on_cell(cell.density, cell.density_slope, f, cell.split);
+    const double t = on_cell(cell.temperature, cell.temperature_slope, f, cell.split);
+    const double p = on_cell(cell.pressure, cell.pressure_slope, f, cell.split);
     return c.density_factor * p / (kGasConstant * (t + c.temperature_offset));
   }
 
@@ -99,20 +102,31 @@ class Medium {
   };
   struct Location {
     const Cell& cell;
-    int piece;
-    double f;  // fraction of the cell measured from the piece's start
+    double f;  // fraction across the cell, [0, 1]
   };
   [[nodiscard]] Location locate(double altitude) const {
     double x = (altitude - bottom_) * inverse_step_;
-    if (x < 0.0) x = 0.0;
-    if (x > last_index_) x = last_index_;
-    auto i = static_cast<std::size_t>(x);
-    if (i > last_cell_) i = last_cell_;
-    const Cell& cell = cells_[i];
-    double f = x - static_cast<double>(i);
-    const int piece = f >= cell.split ? 1 : 0;
-    if (piece) f -= cell.split;
-    return {cell, piece, f};
+    x = std::clamp(x, 0.0, last_index_);
+    // The cell index without a float-integer-float round trip: adding 1.5 * 2^52 rounds x - 0.5
+    // to an integer held in the low bits (exact for the table's sizes). That integer is floor(x),
+    // or x - 1 when x is whole; either way f = x - i lies in [0, 1].
+    constexpr double kRound = 6755399441055744.0;  // 1.5 * 2^52
+    const double shifted = (x - 0.5) + kRound;
+    auto i =
+        static_cast<std::size_t>(static_cast<std::uint32_t>(std::bit_cast<std::uint64_t>(shifted)));
+    double f = x - (shifted - kRound);
+    if (i > last_cell_) {  // only at the very top of the table
+      i = last_cell_;
+      f = 1.0;
+    }
+    return {cells_[i], f};
+  }
+  // A value on a cell: both pieces are evaluated and one is chosen (no load waits on the choice).
+  static double on_cell(const double (&value)[2], const double (&slope)[2], double f,
+                        double split) {
+    const double low = value[0] + f * slope[0];
+    const double high = value[1] + (f - split) * slope[1];
+    return f >= split ? high : low;
   }
   // Builds the cells from an exact model (T, p at an altitude) and its kinks (altitudes).
   template <class Model>

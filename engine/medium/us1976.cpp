@@ -51,7 +51,9 @@ std::array<Base, 7> compute_bases() {
 const std::array<Base, 7> kBases = compute_bases();
 }  // namespace
 
-double geopotential(double z) { return constants::earth_radius * z / (constants::earth_radius + z); }
+double geopotential(double z) {
+  return constants::earth_radius * z / (constants::earth_radius + z);
+}
 
 double sutherland_viscosity(double temperature) {
   return constants::sutherland_beta * temperature * std::sqrt(temperature) /

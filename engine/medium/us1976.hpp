@@ -7,7 +7,7 @@
 // kinetic temperature differs by at most 0.04 percent there (M/M0 >= 0.99961 at 86 km).
 namespace strewn::us1976 {
 
-inline constexpr double lowest_altitude = -5000.0;  ///< m, bottom of the standard's tables
+inline constexpr double lowest_altitude = -5000.0;   ///< m, bottom of the standard's tables
 inline constexpr double highest_altitude = 86000.0;  ///< m, top of the lower-atmosphere model
 
 struct State {

@@ -18,19 +18,26 @@ using namespace scenario_detail;
 
 const char* to_string(WindUncertaintyModel model) {
   switch (model) {
-    case WindUncertaintyModel::none: return "none";
-    case WindUncertaintyModel::bias: return "bias";
-    case WindUncertaintyModel::layered: return "layered";
-    case WindUncertaintyModel::ensemble: return "ensemble";
+    case WindUncertaintyModel::none:
+      return "none";
+    case WindUncertaintyModel::bias:
+      return "bias";
+    case WindUncertaintyModel::layered:
+      return "layered";
+    case WindUncertaintyModel::ensemble:
+      return "ensemble";
   }
   return "?";
 }
 
 const char* to_string(SamplingPlan plan) {
   switch (plan) {
-    case SamplingPlan::random: return "random";
-    case SamplingPlan::latin: return "latin";
-    case SamplingPlan::sobol: return "sobol";
+    case SamplingPlan::random:
+      return "random";
+    case SamplingPlan::latin:
+      return "latin";
+    case SamplingPlan::sobol:
+      return "sobol";
   }
   return "?";
 }
@@ -73,8 +80,10 @@ class Loader {
     }
     Table top(diagnostics_, &root, "", 1);
     if (const toml::node* n = top.node("title")) {
-      if (const auto* s = n->as_string()) scenario_.title = s->get();
-      else diagnostics_.add("title", n, "expected a string");
+      if (const auto* s = n->as_string())
+        scenario_.title = s->get();
+      else
+        diagnostics_.add("title", n, "expected a string");
     }
     read_site(top.table("site"));
     read_medium(top.table("medium"));
@@ -120,11 +129,13 @@ class Loader {
     m.model = model == "profile"   ? Medium::Kind::profile
               : model == "uniform" ? Medium::Kind::uniform
                                    : Medium::Kind::us1976;
-    m.density_factor = sampled("medium.density_factor", medium.uncertain("density_factor", 1.0, kPositive));
+    m.density_factor =
+        sampled("medium.density_factor", medium.uncertain("density_factor", 1.0, kPositive));
     const bool gas = m.model != Medium::Kind::uniform;
     if (gas) {
-      m.temperature_offset = sampled("medium.temperature_offset",
-                                     medium.uncertain("temperature_offset", 0.0, kTemperatureOffset));
+      m.temperature_offset =
+          sampled("medium.temperature_offset",
+                  medium.uncertain("temperature_offset", 0.0, kTemperatureOffset));
     }
     if (m.model == Medium::Kind::profile) {
       if (auto file = medium.text("profile", {}, true)) {
@@ -139,16 +150,16 @@ class Loader {
     }
     // Keys of the other models are named as such rather than as unknown.
     const std::map<std::string, std::string> owner{{"profile", "profile"},
-                                                    {"density", "uniform"},
-                                                    {"viscosity", "uniform"},
-                                                    {"sound_speed", "uniform"},
-                                                    {"temperature_offset", "us1976 or profile"}};
+                                                   {"density", "uniform"},
+                                                   {"viscosity", "uniform"},
+                                                   {"sound_speed", "uniform"},
+                                                   {"temperature_offset", "us1976 or profile"}};
     for (const auto& [key, models] : owner) {
       if (medium.has(key) && !medium_uses(m.model, key)) {
         medium.mark(key);
-        diagnostics_.add(medium.key_path(key), medium.line_of(key),
-                         "is used only by model " + models + ", not by \"" +
-                             model.value_or("us1976") + "\"");
+        diagnostics_.add(
+            medium.key_path(key), medium.line_of(key),
+            "is used only by model " + models + ", not by \"" + model.value_or("us1976") + "\"");
       }
     }
     medium.finish();
@@ -164,32 +175,38 @@ class Loader {
     try {
       const auto table = read_table_file(file, {"altitude_m", "temperature_K", "pressure_Pa"});
       std::vector<SoundingLevel> levels;
-      for (const auto& row : table.rows) levels.push_back({row.values[0], row.values[1], row.values[2]});
+      for (const auto& row : table.rows)
+        levels.push_back({row.values[0], row.values[1], row.values[2]});
       for (std::size_t i = 0; i < levels.size(); ++i) {
         const auto& l = levels[i];
         const long row_line = table.rows[i].line;
         if (!(l.temperature > 0.0 && l.pressure > 0.0))
-          diagnostics_.add(key, line, file + ":" + std::to_string(row_line) +
-                                          ": temperature and pressure must be positive");
+          diagnostics_.add(key, line,
+                           file + ":" + std::to_string(row_line) +
+                               ": temperature and pressure must be positive");
         if (i > 0 && !(l.altitude > levels[i - 1].altitude))
-          diagnostics_.add(key, line, file + ":" + std::to_string(row_line) +
-                                          ": altitudes must increase strictly down the file");
+          diagnostics_.add(key, line,
+                           file + ":" + std::to_string(row_line) +
+                               ": altitudes must increase strictly down the file");
       }
-      if (levels.size() < 2) diagnostics_.add(key, line, file + ": a sounding needs at least two levels");
+      if (levels.size() < 2)
+        diagnostics_.add(key, line, file + ": a sounding needs at least two levels");
       scenario_.medium.profile = std::move(levels);
     } catch (const TableFileError& error) {
       diagnostics_.add(key, line, error.what());
     }
   }
 
-  std::vector<WindLayer> read_wind_file(const std::string& file, const std::string& key, long line) {
+  std::vector<WindLayer> read_wind_file(const std::string& file, const std::string& key,
+                                        long line) {
     std::vector<WindLayer> layers;
     try {
       const auto table = read_table_file(file, {"altitude_m", "speed_ms", "from_deg"});
       for (const auto& row : table.rows) {
         const WindLayer layer{row.values[0], row.values[1], row.values[2]};
         const std::string where = file + ":" + std::to_string(row.line) + ": ";
-        if (!(layer.speed >= 0.0)) diagnostics_.add(key, line, where + "speed must be zero or more");
+        if (!(layer.speed >= 0.0))
+          diagnostics_.add(key, line, where + "speed must be zero or more");
         if (!(layer.from >= 0.0 && layer.from <= 360.0))
           diagnostics_.add(key, line, where + "direction must be in [0, 360] degrees");
         if (!layers.empty() && !(layer.altitude > layers.back().altitude))
@@ -210,7 +227,8 @@ class Loader {
         const toml::node* item = layers->get(i);
         const std::string path = wind.key_path("layers") + "[" + std::to_string(i) + "]";
         if (!item->is_table()) {
-          diagnostics_.add(path, item, "expected a table { altitude = ..., speed = ..., from = ... }");
+          diagnostics_.add(path, item,
+                           "expected a table { altitude = ..., speed = ..., from = ... }");
           continue;
         }
         Table layer(diagnostics_, item->as_table(), path, line_of(item));
@@ -263,9 +281,11 @@ class Loader {
           w.members.push_back(name);
           w.member_layers.push_back(read_wind_file(resolve(name), path, line_of(item)));
         }
-        if (members->empty()) diagnostics_.add(u.key_path("members"), u.line_of("members"), "lists no profile");
+        if (members->empty())
+          diagnostics_.add(u.key_path("members"), u.line_of("members"), "lists no profile");
       } else {
-        diagnostics_.add(u.key_path("members"), u.line(), "is required for model \"ensemble\" (a list of wind files)");
+        diagnostics_.add(u.key_path("members"), u.line(),
+                         "is required for model \"ensemble\" (a list of wind files)");
       }
     }
     for (const char* key : {"speed_sd", "correlation_length", "members"}) {
@@ -281,7 +301,8 @@ class Loader {
   }
 
   static bool u_uses(WindUncertaintyModel m, const std::string& key) {
-    if (key == "speed_sd") return m == WindUncertaintyModel::bias || m == WindUncertaintyModel::layered;
+    if (key == "speed_sd")
+      return m == WindUncertaintyModel::bias || m == WindUncertaintyModel::layered;
     if (key == "correlation_length") return m == WindUncertaintyModel::layered;
     return m == WindUncertaintyModel::ensemble;
   }
@@ -307,7 +328,8 @@ class Loader {
     Table burst = release.table("burst");
     if (burst.present()) {
       r.has_burst = true;
-      r.burst_speed = sampled("release.burst.speed", burst.uncertain("speed", kNonNegative, true).value_or(0.0));
+      r.burst_speed = sampled("release.burst.speed",
+                              burst.uncertain("speed", kNonNegative, true).value_or(0.0));
     }
     burst.finish();
     release.finish();
@@ -327,7 +349,8 @@ class Loader {
     if (name && (name->empty() || name->find_first_of(". \t/") != std::string::npos))
       diagnostics_.add(t.key_path("name"), t.line_of("name"),
                        "must be a non-empty name without dots, spaces or slashes (it names the "
-                       "body's inputs, e.g. \"" + b.name + ".mass\")");
+                       "body's inputs, e.g. \"" +
+                           b.name + ".mass\")");
     if (scenario_.body_index(b.name) >= 0 && name)
       diagnostics_.add(t.key_path("name"), t.line_of("name"),
                        "duplicate body name \"" + b.name + "\": each [[body]] needs its own name");
@@ -336,9 +359,11 @@ class Loader {
     if (auto mass = t.uncertain("mass", kPositive, true)) b.mass = sampled(prefix + "mass", *mass);
 
     Table drag = t.table("drag");
-    if (!drag.present()) diagnostics_.add(t.key_path("drag"), t.line(), "is required ([body.drag] with a model)");
-    const auto model = drag.present() ? drag.text("model", {"sphere", "shape", "area", "stokes"}, true)
-                                      : std::nullopt;
+    if (!drag.present())
+      diagnostics_.add(t.key_path("drag"), t.line(), "is required ([body.drag] with a model)");
+    const auto model = drag.present()
+                           ? drag.text("model", {"sphere", "shape", "area", "stokes"}, true)
+                           : std::nullopt;
     b.drag_model = model == "sphere"   ? DragModel::sphere
                    : model == "shape"  ? DragModel::shape
                    : model == "stokes" ? DragModel::stokes
@@ -348,12 +373,14 @@ class Loader {
       if (auto cd = drag.uncertain("cd", kPositive, true)) b.cd = sampled(dp + "cd", *cd);
       if (auto area = drag.uncertain("area", kPositive, true)) b.area = sampled(dp + "area", *area);
     } else if (model) {
-      if (auto d = drag.uncertain("diameter", kPositive, true)) b.diameter = sampled(dp + "diameter", *d);
+      if (auto d = drag.uncertain("diameter", kPositive, true))
+        b.diameter = sampled(dp + "diameter", *d);
       if (model == "shape")
         if (auto phi = drag.uncertain("sphericity", kSphericity, true))
           b.sphericity = sampled(dp + "sphericity", *phi);
     }
-    if (model == "area") b.volume = sampled(dp + "volume", drag.uncertain("volume", 0.0, kPositive));
+    if (model == "area")
+      b.volume = sampled(dp + "volume", drag.uncertain("volume", 0.0, kPositive));
     if (const toml::array* table = drag.array("mach_table")) {
       if (model == "stokes")
         diagnostics_.add(drag.key_path("mach_table"), drag.line_of("mach_table"),
@@ -370,9 +397,9 @@ class Loader {
         const auto& used = uses.at(*model);
         if (drag.has(key) && std::find(used.begin(), used.end(), key) == used.end()) {
           drag.mark(key);
-          diagnostics_.add(drag.key_path(key), drag.line_of(key),
-                           "is not used by drag model \"" + *model + "\" (it takes " +
-                               join(used) + ")");
+          diagnostics_.add(
+              drag.key_path(key), drag.line_of(key),
+              "is not used by drag model \"" + *model + "\" (it takes " + join(used) + ")");
         }
       }
     }
@@ -442,14 +469,17 @@ class Loader {
                        "is required (s after release), or deploy_height (m above ground)");
     if (by_time) {
       p.trigger = Canopy::Trigger::time;
-      p.deploy_after = sampled(prefix + "deploy_after", c.uncertain("deploy_after", 0.0, kNonNegative));
+      p.deploy_after =
+          sampled(prefix + "deploy_after", c.uncertain("deploy_after", 0.0, kNonNegative));
     }
     if (by_height) {
       p.trigger = Canopy::Trigger::height;
-      p.deploy_height = sampled(prefix + "deploy_height", c.uncertain("deploy_height", 0.0, kPositive));
+      p.deploy_height =
+          sampled(prefix + "deploy_height", c.uncertain("deploy_height", 0.0, kPositive));
     }
     p.fill_time = sampled(prefix + "fill_time", c.uncertain("fill_time", 0.0, kNonNegative));
-    if (auto area = c.uncertain("drag_area", kPositive, true)) p.drag_area = sampled(prefix + "drag_area", *area);
+    if (auto area = c.uncertain("drag_area", kPositive, true))
+      p.drag_area = sampled(prefix + "drag_area", *area);
     p.partial_probability = c.number("partial_probability", 0.0, kProbability);
     p.failure_probability = c.number("failure_probability", 0.0, kProbability);
     if (p.partial_probability + p.failure_probability > 1.0)
@@ -457,10 +487,12 @@ class Loader {
                        "partial_probability + failure_probability must not exceed 1 (got " +
                            format_number(p.partial_probability + p.failure_probability) + ")");
     if (c.has("partial_drag_area")) {
-      p.partial_drag_area = sampled(prefix + "partial_drag_area", c.uncertain("partial_drag_area", 0.0, kPositive));
+      p.partial_drag_area =
+          sampled(prefix + "partial_drag_area", c.uncertain("partial_drag_area", 0.0, kPositive));
     } else if (p.partial_probability > 0.0) {
-      diagnostics_.add(c.key_path("partial_drag_area"), c.line(),
-                       "is required when partial_probability is above 0 (Cd S of a partly open canopy, m^2)");
+      diagnostics_.add(
+          c.key_path("partial_drag_area"), c.line(),
+          "is required when partial_probability is above 0 (Cd S of a partly open canopy, m^2)");
     }
     return p;
   }
@@ -470,20 +502,29 @@ class Loader {
     st.samples = s.integer("samples", 1, 2000000000L).value_or(st.samples);
     if (const toml::node* n = s.node("seed")) {
       const auto* i = n->as_integer();
-      if (!i || i->get() < 0) diagnostics_.add(s.key_path("seed"), n, "expected a whole number, zero or more");
-      else st.seed = static_cast<std::uint64_t>(i->get());
+      if (!i || i->get() < 0)
+        diagnostics_.add(s.key_path("seed"), n, "expected a whole number, zero or more");
+      else
+        st.seed = static_cast<std::uint64_t>(i->get());
     }
     const auto plan = s.text("sampling", {"random", "latin", "sobol"});
-    st.sampling = plan == "latin" ? SamplingPlan::latin : plan == "sobol" ? SamplingPlan::sobol : SamplingPlan::random;
+    st.sampling = plan == "latin"   ? SamplingPlan::latin
+                  : plan == "sobol" ? SamplingPlan::sobol
+                                    : SamplingPlan::random;
     if (auto levels = s.numbers("levels", kOpenUnit)) {
-      if (levels->empty()) diagnostics_.add(s.key_path("levels"), s.line_of("levels"), "lists no level");
-      else st.levels = *levels;
+      if (levels->empty())
+        diagnostics_.add(s.key_path("levels"), s.line_of("levels"), "lists no level");
+      else
+        st.levels = *levels;
     }
     st.confidence = s.number("confidence", st.confidence, kOpenUnit);
     if (const toml::node* n = s.node("centre")) {
       if (const auto* text = n->as_string()) {
-        if (text->get() == "mean" || text->get() == "nominal") st.centre = text->get();
-        else diagnostics_.add(s.key_path("centre"), n, "expected \"mean\", \"nominal\" or { east = ..., north = ... }");
+        if (text->get() == "mean" || text->get() == "nominal")
+          st.centre = text->get();
+        else
+          diagnostics_.add(s.key_path("centre"), n,
+                           "expected \"mean\", \"nominal\" or { east = ..., north = ... }");
       } else if (n->is_table()) {
         Table point = s.table("centre");
         st.centre = "point";
@@ -491,10 +532,12 @@ class Loader {
         st.centre_north = point.number("north", kAny, true).value_or(0.0);
         point.finish();
       } else {
-        diagnostics_.add(s.key_path("centre"), n, "expected \"mean\", \"nominal\" or { east = ..., north = ... }");
+        diagnostics_.add(s.key_path("centre"), n,
+                         "expected \"mean\", \"nominal\" or { east = ..., north = ... }");
       }
     }
-    st.tolerance = s.number("tolerance", st.tolerance, Bounds{1e-6, 100.0, false, false, "a tolerance from 1e-6 to 100 m"});
+    st.tolerance = s.number("tolerance", st.tolerance,
+                            Bounds{1e-6, 100.0, false, false, "a tolerance from 1e-6 to 100 m"});
     st.energy_threshold = s.number("energy_threshold", st.energy_threshold, kNonNegative);
     st.grid = s.number("grid", st.grid, kPositive);
     if (auto w = s.number("target_width", kOpenUnit)) st.target_width = w;
@@ -511,7 +554,8 @@ class Loader {
     if (auto v = r.number("max_exceed", kProbability)) rules.max_exceed = v;
     auto pair = [&](const char* a, const char* b, bool has_a, bool has_b) {
       if (has_a != has_b)
-        diagnostics_.add(r.key_path(has_a ? b : a), r.line(), std::string("goes with ") + (has_a ? a : b) + ": give both");
+        diagnostics_.add(r.key_path(has_a ? b : a), r.line(),
+                         std::string("goes with ") + (has_a ? a : b) + ": give both");
     };
     pair("zone_radius", "max_outside", r.has("zone_radius"), r.has("max_outside"));
     pair("energy_limit", "max_exceed", r.has("energy_limit"), r.has("max_exceed"));
@@ -530,8 +574,10 @@ class Loader {
       const toml::array* between = c.array("between");
       if (!between) {
         diagnostics_.add(c.key_path("between"), c.line(), "is required: two sampled input names");
-      } else if (between->size() != 2 || !between->get(0)->is_string() || !between->get(1)->is_string()) {
-        diagnostics_.add(c.key_path("between"), line_of(between), "expected two sampled input names");
+      } else if (between->size() != 2 || !between->get(0)->is_string() ||
+                 !between->get(1)->is_string()) {
+        diagnostics_.add(c.key_path("between"), line_of(between),
+                         "expected two sampled input names");
       } else {
         spec.first = between->get(0)->as_string()->get();
         spec.second = between->get(1)->as_string()->get();
@@ -548,7 +594,8 @@ class Loader {
     const auto& r = scenario_.release;
     const double ground = scenario_.site.ground;
     // Release below the ground: refused when any real share of the release altitudes is.
-    if (r.altitude.probability_below(ground + 1e-9) > kOutsideTolerance || r.altitude.nominal() <= ground)
+    if (r.altitude.probability_below(ground + 1e-9) > kOutsideTolerance ||
+        r.altitude.nominal() <= ground)
       diagnostics_.add("release.altitude", line_for("release", "altitude"),
                        "the release (nominal " + format_number(r.altitude.nominal()) +
                            " m) must be above the ground at " + format_number(ground) +
@@ -570,12 +617,16 @@ class Loader {
         if (std::find(names.begin(), names.end(), *name) != names.end()) continue;
         std::string message = "\"" + *name + "\" is not a sampled input";
         const std::string guess = closest_match(*name, names);
-        if (!guess.empty()) message += "; did you mean \"" + guess + "\"?";
-        else message += " (sampled inputs are those given as distributions; `strewn check` lists them)";
+        if (!guess.empty())
+          message += "; did you mean \"" + guess + "\"?";
+        else
+          message +=
+              " (sampled inputs are those given as distributions; `strewn check` lists them)";
         diagnostics_.add(correlation_paths_[i], correlation_lines_[i], message);
       }
       if (c.first == c.second)
-        diagnostics_.add(correlation_paths_[i], correlation_lines_[i], "names the same input twice");
+        diagnostics_.add(correlation_paths_[i], correlation_lines_[i],
+                         "names the same input twice");
     }
   }
 
@@ -590,8 +641,10 @@ class Loader {
       ++number;
       const auto first = line.find_first_not_of(" \t");
       if (first == std::string::npos) continue;
-      if (line[first] == '[') inside = line.compare(first, header.size(), header) == 0;
-      else if (inside && line.compare(first, std::string(key).size(), key) == 0) return number;
+      if (line[first] == '[')
+        inside = line.compare(first, header.size(), header) == 0;
+      else if (inside && line.compare(first, std::string(key).size(), key) == 0)
+        return number;
     }
     return 0;
   }
@@ -620,7 +673,9 @@ Scenario load_scenario(const std::string& path) {
   std::ostringstream buffer;
   buffer << in.rdbuf();
   const std::string text = buffer.str();
-  if (text.empty()) throw ScenarioError({{path, "", 0, "is empty: a scenario needs at least [release] and a [[body]]"}});
+  if (text.empty())
+    throw ScenarioError(
+        {{path, "", 0, "is empty: a scenario needs at least [release] and a [[body]]"}});
   if (text.find('\0') != std::string::npos)
     throw ScenarioError({{path, "", 0, "is a binary file, not a TOML scenario"}});
   return parse_scenario(text, path);

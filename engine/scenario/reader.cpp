@@ -38,7 +38,9 @@ Table::Table(Diagnostics& diagnostics, const toml::table* table, std::string pat
   if (table_ && line_ == 0) line_ = scenario_detail::line_of(table_);
 }
 
-bool Table::has(std::string_view key) const { return table_ && table_->contains(key); }
+bool Table::has(std::string_view key) const {
+  return table_ && table_->contains(key);
+}
 
 std::string Table::key_path(std::string_view key) const {
   return path_.empty() ? std::string(key) : path_ + "." + std::string(key);
@@ -57,16 +59,24 @@ const toml::node* Table::node(std::string_view key) {
 
 std::string Table::type_name(const toml::node& node) const {
   switch (node.type()) {
-    case toml::node_type::string: return "a string";
-    case toml::node_type::integer: return "an integer";
-    case toml::node_type::floating_point: return "a number";
-    case toml::node_type::boolean: return "a boolean";
-    case toml::node_type::table: return "a table";
-    case toml::node_type::array: return "an array";
+    case toml::node_type::string:
+      return "a string";
+    case toml::node_type::integer:
+      return "an integer";
+    case toml::node_type::floating_point:
+      return "a number";
+    case toml::node_type::boolean:
+      return "a boolean";
+    case toml::node_type::table:
+      return "a table";
+    case toml::node_type::array:
+      return "an array";
     case toml::node_type::date:
     case toml::node_type::time:
-    case toml::node_type::date_time: return "a date or time";
-    default: return "something else";
+    case toml::node_type::date_time:
+      return "a date or time";
+    default:
+      return "something else";
   }
 }
 
@@ -82,7 +92,8 @@ std::optional<double> Table::number(std::string_view key, const Bounds& bounds, 
     return std::nullopt;
   }
   if (!std::isfinite(*value)) {
-    diagnostics_.add(key_path(key), n, "must be a finite number (got " + format_number(*value) + ")");
+    diagnostics_.add(key_path(key), n,
+                     "must be a finite number (got " + format_number(*value) + ")");
     return std::nullopt;
   }
   if (!bounds.contains(*value)) {
@@ -126,8 +137,8 @@ std::optional<bool> Table::boolean(std::string_view key) {
   return std::nullopt;
 }
 
-std::optional<std::string> Table::text(std::string_view key, const std::vector<std::string>& allowed,
-                                       bool required) {
+std::optional<std::string> Table::text(std::string_view key,
+                                       const std::vector<std::string>& allowed, bool required) {
   const toml::node* n = node(key);
   auto choices = [&] {
     std::string out;
@@ -136,8 +147,9 @@ std::optional<std::string> Table::text(std::string_view key, const std::vector<s
   };
   if (!n) {
     if (required)
-      diagnostics_.add(key_path(key), line_,
-                       allowed.empty() ? "is required (a string)" : "is required: one of " + choices());
+      diagnostics_.add(
+          key_path(key), line_,
+          allowed.empty() ? "is required (a string)" : "is required: one of " + choices());
     return std::nullopt;
   }
   const auto* s = n->as_string();
@@ -184,8 +196,9 @@ std::optional<Uncertain> Table::uncertain(std::string_view key, const Bounds& bo
   const toml::node* n = node(key);
   const std::string path = key_path(key);
   if (!n) {
-    if (required) diagnostics_.add(path, line_, "is required (" + bounds.describe() +
-                                                    ", or a distribution table)");
+    if (required)
+      diagnostics_.add(path, line_,
+                       "is required (" + bounds.describe() + ", or a distribution table)");
     return std::nullopt;
   }
   if (as_number(*n)) {
@@ -204,11 +217,13 @@ std::optional<Uncertain> Table::uncertain(std::string_view key, const Bounds& bo
   if (!t) {
     diagnostics_.add(path, n,
                      "expected a number or a distribution table such as { dist = \"normal\", "
-                     "mean = ..., sd = ... }, got " + type_name(*n));
+                     "mean = ..., sd = ... }, got " +
+                         type_name(*n));
     return std::nullopt;
   }
   Table dist(diagnostics_, t, path, scenario_detail::line_of(n));
-  const auto kind = dist.text("dist", {"normal", "lognormal", "uniform", "triangular", "choice"}, true);
+  const auto kind =
+      dist.text("dist", {"normal", "lognormal", "uniform", "triangular", "choice"}, true);
   std::optional<Uncertain> result;
   constexpr double inf = std::numeric_limits<double>::infinity();
   if (kind == "normal") {
@@ -232,13 +247,16 @@ std::optional<Uncertain> Table::uncertain(std::string_view key, const Bounds& bo
     if (lo && mode && hi) result = Uncertain::triangular(*lo, *mode, *hi);
   } else if (kind == "choice") {
     auto values = dist.numbers("values", kAny);
-    if (!dist.has("values")) diagnostics_.add(path + ".values", dist.line(), "is required (a list of numbers)");
+    if (!dist.has("values"))
+      diagnostics_.add(path + ".values", dist.line(), "is required (a list of numbers)");
     auto weights = dist.numbers("weights", kAny);
     if (values) result = Uncertain::choice(*values, weights.value_or(std::vector<double>{}));
   }
   // Unknown keys are reported only once the kind is known (its own keys are then marked read).
-  if (kind) dist.finish();
-  else dist.finish({"mean", "sd", "min", "max", "median", "sigma", "mode", "values", "weights"});
+  if (kind)
+    dist.finish();
+  else
+    dist.finish({"mean", "sd", "min", "max", "median", "sigma", "mode", "values", "weights"});
   if (!result) return std::nullopt;
   const auto problems = result->problems();
   for (const auto& [parameter, message] : problems)
@@ -274,7 +292,8 @@ std::optional<std::vector<double>> Table::numbers(std::string_view key, const Bo
       ok = false;
     } else if (!std::isfinite(*v) || !bounds.contains(*v)) {
       diagnostics_.add(item_path, &item,
-                       "must be " + (std::isfinite(*v) ? bounds.describe() : std::string("finite")) +
+                       "must be " +
+                           (std::isfinite(*v) ? bounds.describe() : std::string("finite")) +
                            " (got " + format_number(*v) + ")");
       ok = false;
     } else {
@@ -301,9 +320,9 @@ std::vector<Table> Table::tables(std::string_view key) {
   if (!n) return out;
   const auto* a = n->as_array();
   if (!a) {
-    diagnostics_.add(key_path(key), n,
-                     "expected an array of tables ([[" + std::string(key) + "]]), got " +
-                         type_name(*n));
+    diagnostics_.add(
+        key_path(key), n,
+        "expected an array of tables ([[" + std::string(key) + "]]), got " + type_name(*n));
     return out;
   }
   for (std::size_t i = 0; i < a->size(); ++i) {

@@ -1,13 +1,13 @@
 #pragma once
 // Reading checked values out of toml++ tables, collecting every problem with its key path and
 // line instead of stopping at the first. Internal to the scenario module.
+#include <toml++/toml.h>
 #include <functional>
 #include <limits>
 #include <optional>
 #include <set>
 #include <string>
 #include <string_view>
-#include <toml++/toml.h>
 #include <vector>
 
 #include "core/errors.hpp"
@@ -74,7 +74,8 @@ class Table {
   double number(std::string_view key, double fallback, const Bounds& bounds);
   std::optional<long> integer(std::string_view key, long low, long high, bool required = false);
   std::optional<bool> boolean(std::string_view key);
-  std::optional<std::string> text(std::string_view key, const std::vector<std::string>& allowed = {},
+  std::optional<std::string> text(std::string_view key,
+                                  const std::vector<std::string>& allowed = {},
                                   bool required = false);
   /// A number or a distribution table; checked against `bounds` (fixed values exactly,
   /// distributions by the probability they put outside).

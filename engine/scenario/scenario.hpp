@@ -40,8 +40,8 @@ struct WindSpec {
   std::vector<WindLayer> layers;
   std::string file;  ///< when the layers came from a CSV file
   WindUncertaintyModel uncertainty = WindUncertaintyModel::none;
-  double speed_sd = 0.0;            ///< m/s, per horizontal component
-  double correlation_length = 0.0;  ///< m, "layered"
+  double speed_sd = 0.0;             ///< m/s, per horizontal component
+  double correlation_length = 0.0;   ///< m, "layered"
   std::vector<std::string> members;  ///< "ensemble": profile files, as written
   std::vector<std::vector<WindLayer>> member_layers;
 };
@@ -49,9 +49,9 @@ struct WindSpec {
 struct ReleaseSpec {
   Uncertain altitude = 0.0;  ///< m above mean sea level
   Uncertain east = 0.0, north = 0.0;
-  Uncertain speed = 0.0;  ///< carrier ground speed, m/s
-  Uncertain track = 0.0;  ///< degrees clockwise from north
-  Uncertain climb = 0.0;  ///< m/s, up positive
+  Uncertain speed = 0.0;                           ///< carrier ground speed, m/s
+  Uncertain track = 0.0;                           ///< degrees clockwise from north
+  Uncertain climb = 0.0;                           ///< m/s, up positive
   Uncertain along_error = 0.0, cross_error = 0.0;  ///< m
   Uncertain delay = 0.0;                           ///< s
   bool has_burst = false;
@@ -74,11 +74,11 @@ struct BodySpec {
   long count = 1;
   Uncertain mass = 1.0;  ///< kg
   DragModel drag_model = DragModel::area;
-  Uncertain cd = 1.0;          ///< "area"
-  Uncertain area = 1.0;        ///< "area", m^2
-  Uncertain diameter = 0.0;    ///< "sphere", "shape", "stokes", m
-  Uncertain sphericity = 1.0;  ///< "shape"
-  Uncertain volume = 0.0;      ///< m^3 for "area" bodies (0: unknown, no buoyancy)
+  Uncertain cd = 1.0;                           ///< "area"
+  Uncertain area = 1.0;                         ///< "area", m^2
+  Uncertain diameter = 0.0;                     ///< "sphere", "shape", "stokes", m
+  Uncertain sphericity = 1.0;                   ///< "shape"
+  Uncertain volume = 0.0;                       ///< m^3 for "area" bodies (0: unknown, no buoyancy)
   std::shared_ptr<const MachTable> mach_table;  ///< null: none (shared, immutable)
   std::optional<ParachuteSpec> parachute;
 };
@@ -99,17 +99,17 @@ struct StudySpec {
   double confidence = 0.95;
   std::string centre = "mean";  ///< "mean" | "nominal" | "point"
   double centre_east = 0.0, centre_north = 0.0;
-  double tolerance = 0.05;        ///< m
+  double tolerance = 0.05;         ///< m
   double energy_threshold = 15.0;  ///< J
-  double grid = 10.0;             ///< m
+  double grid = 10.0;              ///< m
   std::optional<double> target_width;
   long max_samples = 2000000;
   double max_failed = 0.001;
 };
 
 struct RulesSpec {
-  std::optional<double> zone_radius;  ///< m
-  std::optional<double> max_outside;  ///< probability
+  std::optional<double> zone_radius;   ///< m
+  std::optional<double> max_outside;   ///< probability
   std::optional<double> energy_limit;  ///< J
   std::optional<double> max_exceed;    ///< probability
 };

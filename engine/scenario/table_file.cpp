@@ -43,12 +43,14 @@ TableFile read_table_file(const std::string& path, const std::vector<std::string
         for (std::size_t i = 0; i < cells.size(); ++i)
           if (cells[i] == column) found = i;
         if (found == cells.size())
-          throw TableFileError(path + ":" + std::to_string(number) + ": the header lacks column \"" +
-                               column + "\" (expected columns: " + [&] {
+          throw TableFileError(path + ":" + std::to_string(number) +
+                               ": the header lacks column \"" + column + "\" (expected columns: " +
+                               [&] {
                                  std::string all;
                                  for (const auto& c : columns) all += (all.empty() ? "" : ", ") + c;
                                  return all;
-                               }() + ")");
+                               }() +
+                               ")");
         index.push_back(found);
       }
       continue;

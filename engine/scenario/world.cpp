@@ -9,10 +9,12 @@ namespace strewn {
 World build_world(const Scenario& s) {
   Medium medium = [&] {
     switch (s.medium.model) {
-      case Medium::Kind::profile: return Medium::profile(s.medium.profile);
+      case Medium::Kind::profile:
+        return Medium::profile(s.medium.profile);
       case Medium::Kind::uniform:
         return Medium::uniform(s.medium.density, s.medium.viscosity, s.medium.sound_speed);
-      case Medium::Kind::us1976: break;
+      case Medium::Kind::us1976:
+        break;
     }
     return Medium::us1976();
   }();

@@ -13,8 +13,9 @@ namespace {
 
 struct BundleDrop {
   Medium medium = Medium::us1976();
-  WindProfile wind{{{540.0, 3.0, 240.0}, {1500.0, 8.0, 255.0}, {2500.0, 11.0, 265.0}, {3500.0, 14.0, 275.0}},
-                   540.0};
+  WindProfile wind{
+      {{540.0, 3.0, 240.0}, {1500.0, 8.0, 255.0}, {2500.0, 11.0, 265.0}, {3500.0, 14.0, 275.0}},
+      540.0};
   Body body;
   Environment environment;
   ReleaseState release;
@@ -36,7 +37,9 @@ const BundleDrop& bundle() {
   return drop;
 }
 
-double miss(const Vec3& impact) { return (impact - bundle().reference).head<2>().norm(); }
+double miss(const Vec3& impact) {
+  return (impact - bundle().reference).head<2>().norm();
+}
 
 void BM_BundleFlight_strewn(benchmark::State& state) {
   const auto& b = bundle();

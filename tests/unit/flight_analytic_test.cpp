@@ -81,7 +81,8 @@ TEST(FlightAnalytic, QuadraticDragVerticalFall) {
        {std::tuple{0.05, 1e-4, 2e-3}, std::tuple{1e-5, 1e-7, 1e-6}}) {
     FlightOptions options;
     options.tolerance = tolerance;
-    const auto result = fly(box, tank.environment(), test::release_at(0, 0, height, 0, 0, 0), options);
+    const auto result =
+        fly(box, tank.environment(), test::release_at(0, 0, height, 0, 0, 0), options);
     ASSERT_EQ(result.status, FlightStatus::landed);
     EXPECT_NEAR(result.time, t, time_error);
     EXPECT_NEAR(-result.velocity.z(), vt * std::tanh(g * t / vt), speed_error);
@@ -127,7 +128,8 @@ TEST(FlightAnalytic, DriftAtTerminalVelocityIsWindTimesFallTime) {
 TEST(FlightAnalytic, WaterDropTerminalVelocityGunnKinzer) {
   const double t_air = 293.15, p_air = 101300.0;
   const double rho = p_air / (constants::air_specific_gas_constant * t_air);
-  const double mu = constants::sutherland_beta * std::pow(t_air, 1.5) / (t_air + constants::sutherland_s);
+  const double mu =
+      constants::sutherland_beta * std::pow(t_air, 1.5) / (t_air + constants::sutherland_s);
   Tank tank{Medium::uniform(rho, mu), WindProfile()};
   int checked = 0;
   for (const auto& row : test::read_reference("water_drop_terminal_velocity.csv")) {

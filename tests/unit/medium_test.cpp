@@ -74,7 +74,8 @@ TEST(MediumTable, TemperatureOffsetAndDensityFactor) {
   const MediumConditions hot{15.0, 1.1};
   for (double z : {0.0, 1234.0, 11000.0, 30000.0}) {
     const auto s = us1976::at(z);
-    const double expected = 1.1 * s.pressure / (constants::air_specific_gas_constant * (s.temperature + 15.0));
+    const double expected =
+        1.1 * s.pressure / (constants::air_specific_gas_constant * (s.temperature + 15.0));
     EXPECT_NEAR(table.density(z, hot) / expected, 1.0, 2e-6);
     EXPECT_NEAR(table.air(z, hot).sound_speed, us1976::sound_speed(s.temperature + 15.0), 1e-4);
   }

@@ -33,7 +33,8 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
     forces(t, y, d);
     Eigen::Map<FlightState>(dxdt.data()) = d;
   };
-  auto stepper = odeint::make_dense_output(tolerance, tolerance, odeint::runge_kutta_dopri5<OdeState>());
+  auto stepper =
+      odeint::make_dense_output(tolerance, tolerance, odeint::runge_kutta_dopri5<OdeState>());
   OdeState x{release.position.x(), release.position.y(), release.position.z(),
              release.velocity.x(), release.velocity.y(), release.velocity.z()};
   const double ground = environment.ground;
@@ -42,9 +43,12 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
   double deploy_time = std::numeric_limits<double>::infinity();
   bool watch_height = false;
   if (opens) {
-    if (canopy.trigger == Canopy::Trigger::time) deploy_time = canopy.deploy_after;
-    else if (x[2] - ground <= canopy.deploy_height) deploy_time = 0.0;
-    else watch_height = true;
+    if (canopy.trigger == Canopy::Trigger::time)
+      deploy_time = canopy.deploy_after;
+    else if (x[2] - ground <= canopy.deploy_height)
+      deploy_time = 0.0;
+    else
+      watch_height = true;
   }
   DragStage stage = DragStage::body;
   double fill_end = std::numeric_limits<double>::infinity();
@@ -81,9 +85,10 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
     const auto [t0, t1] = stepper.do_step(rhs);
     ++impact.steps;
     // Events inside (t0, t1], earliest first: ground, deployment height, time events.
-    const double next_time_event = stage == DragStage::body      ? deploy_time
-                                   : stage == DragStage::filling ? fill_end
-                                                                 : std::numeric_limits<double>::infinity();
+    const double next_time_event = stage == DragStage::body ? deploy_time
+                                   : stage == DragStage::filling
+                                       ? fill_end
+                                       : std::numeric_limits<double>::infinity();
     double event_time = std::numeric_limits<double>::infinity();
     int event = 0;  // 1 ground, 2 deployment height, 3 time event
     OdeState end = stepper.current_state();
@@ -112,7 +117,8 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
       impact.landed = true;
       return impact;
     }
-    if (stage == DragStage::body) deploy(event_time);
+    if (stage == DragStage::body)
+      deploy(event_time);
     else {
       stage = DragStage::canopy;
       forces.set_stage(stage, canopy.drag_area);

@@ -1,0 +1,32 @@
+# Shared by the scripts in scripts/: package installation and the CMake build.
+# Source it; it sets STREWN_ROOT to the repository root.
+set -euo pipefail
+STREWN_ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/../.." && pwd)"
+export STREWN_ROOT
+
+# Installs the packages listed in scripts/packages.txt that are missing (apt-get, idempotent).
+install_packages() {
+  local wanted missing=()
+  wanted=$(grep -v '^\s*#' "$STREWN_ROOT/scripts/packages.txt" | grep -v '^\s*$')
+  for package in $wanted; do
+    dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" ||
+      missing+=("$package")
+  done
+  if ((${#missing[@]} == 0)); then
+    echo "packages: all present"
+    return
+  fi
+  echo "packages: installing ${missing[*]}"
+  local sudo=""
+  [[ $(id -u) -eq 0 ]] || sudo="sudo"
+  $sudo apt-get update -q
+  DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -q --no-install-recommends "${missing[@]}"
+}
+
+# Configures and builds into the folder $1 with extra CMake arguments after it.
+build_in() {
+  local folder="$1"
+  shift
+  cmake -S "$STREWN_ROOT" -B "$STREWN_ROOT/$folder" -G Ninja "$@" >/dev/null
+  cmake --build "$STREWN_ROOT/$folder" --parallel "$(nproc)"
+}

@@ -1,0 +1,123 @@
+// The command line end to end (app/commands.cpp, the code behind the strewn binary): exit codes,
+// messages, and `trace --json` on every shipped and test scenario against an independent
+// tight-tolerance integration of the same physics (Boost.Odeint, reference_flight.hpp).
+#include <gtest/gtest.h>
+
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <sstream>
+
+#include "app/commands.hpp"
+#include "reference_flight.hpp"
+#include "scenario/world.hpp"
+
+namespace strewn {
+namespace {
+
+struct CommandResult {
+  int status;
+  std::string out, err;
+};
+
+CommandResult run(std::vector<std::string> args) {
+  args.insert(args.begin(), "strewn");
+  std::vector<const char*> argv;
+  for (const auto& a : args) argv.push_back(a.c_str());
+  std::ostringstream out, err;
+  const int status = run_command_line(static_cast<int>(argv.size()), argv.data(), out, err);
+  return {status, out.str(), err.str()};
+}
+
+std::vector<std::string> scenarios() {
+  std::vector<std::string> files;
+  for (const char* folder : {"/inputs", "/tests/data"})
+    for (const auto& entry :
+         std::filesystem::directory_iterator(STREWN_SOURCE_DIR + std::string(folder)))
+      if (entry.path().extension() == ".toml") files.push_back(entry.path().string());
+  std::sort(files.begin(), files.end());
+  return files;
+}
+
+// Acceptance: `strewn trace --json` on any scenario lands within 0.05 m (the default tolerance)
+// of an independent tight-tolerance integration of the same physics.
+TEST(Cli, TraceJsonLandsOnTheIndependentReference) {
+  const auto files = scenarios();
+  ASSERT_GE(files.size(), 5u);
+  for (const auto& file : files) {
+    SCOPED_TRACE(file);
+    const Scenario scenario = load_scenario(file);
+    for (const auto& body : scenario.bodies) {
+      const CommandResult r = run({"trace", file, "--body", body.name, "--json"});
+      ASSERT_EQ(r.status, 0) << r.err;
+      const auto json = nlohmann::json::parse(r.out);
+      for (const char* key : {"time", "east", "north", "speed", "energy"})
+        ASSERT_TRUE(json["impact"].contains(key)) << key;
+      ASSERT_FALSE(json["trajectory"].empty());
+      ASSERT_TRUE(json["regime"].contains("reynolds"));
+      const World world = build_world(scenario);
+      const FlightInputs in =
+          nominal_flight(scenario, static_cast<std::size_t>(scenario.body_index(body.name)));
+      const Environment env{&world.medium, in.conditions, &world.wind, scenario.site.ground};
+      const auto reference = test::reference_fly(in.body, env, in.release);
+      ASSERT_TRUE(reference.landed);
+      const double miss =
+          std::hypot(json["impact"]["east"].get<double>() - reference.position.x(),
+                     json["impact"]["north"].get<double>() - reference.position.y());
+      EXPECT_LE(miss, 0.05) << body.name;
+      EXPECT_NEAR(json["impact"]["time"].get<double>(), reference.time, 1e-2);
+      EXPECT_NEAR(json["impact"]["speed"].get<double>(), reference.velocity.norm(), 1e-2);
+    }
+  }
+}
+
+TEST(Cli, TraceFormats) {
+  const std::string file = STREWN_SOURCE_DIR "/inputs/ridge-drop.toml";
+  const CommandResult text = run({"trace", file});
+  EXPECT_EQ(text.status, 0);
+  EXPECT_NE(text.out.find("impact"), std::string::npos);
+  EXPECT_NE(text.out.find("responsible authority"), std::string::npos);  // the cautions
+  const CommandResult csv = run({"trace", file, "--csv"});
+  EXPECT_EQ(csv.status, 0);
+  EXPECT_EQ(csv.out.rfind("time_s,east_m,north_m,altitude_m", 0), 0u);
+  EXPECT_GT(std::count(csv.out.begin(), csv.out.end(), '\n'), 50);
+  EXPECT_EQ(run({"trace", file, "--csv", "--json"}).status, 2);  // one format at a time
+}
+
+TEST(Cli, BadInputExitsWithStatusTwoAndNamesKeyAndLine) {
+  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-test";
+  std::filesystem::create_directories(dir);
+  const auto file = (dir / "negative-mass.toml").string();
+  std::ofstream(file) << "[release]\naltitude = 100.0\n[[body]]\nmass = -2.0\n[body.drag]\n"
+                         "model = \"area\"\ncd = 1.0\narea = 0.1\n";
+  const CommandResult r = run({"trace", file});
+  EXPECT_EQ(r.status, 2);
+  EXPECT_NE(r.err.find(file + ":4: body[0].mass: must be positive"), std::string::npos) << r.err;
+  EXPECT_TRUE(r.out.empty());
+  EXPECT_EQ(run({"trace", "/nonexistent.toml"}).status, 2);
+  EXPECT_EQ(run({"trace", STREWN_SOURCE_DIR "/inputs/ridge-drop.toml", "--body", "nope"}).status,
+            2);
+  EXPECT_EQ(run({}).status, 2);
+  EXPECT_EQ(run({"fly"}).status, 2);
+  std::filesystem::remove_all(dir);
+}
+
+TEST(Cli, VersionAndAtmosphere) {
+  const CommandResult v = run({"--version"});
+  EXPECT_EQ(v.status, 0);
+  EXPECT_NE(v.out.find("strewn 0."), std::string::npos);
+  const CommandResult a = run({"atmosphere", "--csv", "--top", "11000", "--step", "1000"});
+  EXPECT_EQ(a.status, 0);
+  std::istringstream lines(a.out);
+  std::string header, sea_level;
+  std::getline(lines, header);
+  std::getline(lines, sea_level);
+  EXPECT_EQ(header.rfind("altitude_m,temperature_K,pressure_Pa,density_kg_m3", 0), 0u);
+  // Sea level of the U.S. Standard Atmosphere 1976: 288.15 K, 101325 Pa, 1.225 kg/m^3.
+  EXPECT_EQ(sea_level.rfind("0.000,288.150,101325,1.225", 0), 0u) << sea_level;
+  EXPECT_EQ(std::count(a.out.begin(), a.out.end(), '\n'), 13);
+  EXPECT_EQ(run({"atmosphere", "--top", "90000"}).status, 2);
+}
+
+}  // namespace
+}  // namespace strewn

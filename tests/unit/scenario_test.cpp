@@ -1,0 +1,183 @@
+// Scenario loading: the resolved model of a good file, and bad input refused with the key path,
+// the line and what was expected, all problems in one pass.
+#include <gtest/gtest.h>
+
+#include "core/errors.hpp"
+#include "scenario/scenario.hpp"
+#include "scenario/world.hpp"
+
+namespace strewn {
+namespace {
+
+const std::string kGood = R"(title = "t"
+[site]
+ground = 540.0
+[wind]
+layers = [ { altitude = 540.0, speed = 3.0, from = 240.0 }, { altitude = 1500.0, speed = 8.0, from = 255.0 } ]
+[release]
+altitude = 2400.0
+speed = 62.0
+track = 90.0
+[[body]]
+name = "bundle"
+mass = { dist = "normal", mean = 95.0, sd = 4.0, min = 80.0 }
+[body.drag]
+model = "area"
+cd = { dist = "uniform", min = 0.9, max = 1.2 }
+area = 0.55
+)";
+
+// Replaces the first occurrence of `from` in the good scenario by `to`.
+std::string edit(const std::string& from, const std::string& to) {
+  std::string text = kGood;
+  const auto at = text.find(from);
+  EXPECT_NE(at, std::string::npos) << from;
+  return text.replace(at, from.size(), to);
+}
+
+// The problems reported for a scenario text (empty when it loads).
+std::vector<Problem> problems_of(const std::string& text) {
+  try {
+    parse_scenario(text, "bad.toml");
+  } catch (const ScenarioError& e) {
+    return e.problems();
+  }
+  return {};
+}
+
+void expect_problem(const std::string& text, const std::string& key, long line,
+                    const std::string& fragment) {
+  const auto problems = problems_of(text);
+  ASSERT_FALSE(problems.empty()) << "accepted:\n" << text;
+  bool found = false;
+  for (const auto& p : problems) {
+    if (p.key_path == key && p.line == line && p.message.find(fragment) != std::string::npos)
+      found = true;
+  }
+  std::string all;
+  for (const auto& p : problems) all += p.describe() + "\n";
+  EXPECT_TRUE(found) << "wanted " << key << " at line " << line << " with \"" << fragment
+                     << "\", got:\n"
+                     << all;
+  for (const auto& p : problems) EXPECT_EQ(p.file, "bad.toml");
+}
+
+TEST(Scenario, GoodFileResolvesEveryInput) {
+  const Scenario s = parse_scenario(kGood, "good.toml");
+  ASSERT_EQ(s.bodies.size(), 1u);
+  EXPECT_EQ(s.bodies[0].name, "bundle");
+  EXPECT_EQ(s.site.ground, 540.0);
+  EXPECT_EQ(s.wind.layers.size(), 2u);
+  EXPECT_EQ(s.study.tolerance, 0.05);  // the documented default
+  ASSERT_EQ(s.sampled_inputs.size(), 2u);
+  EXPECT_EQ(s.sampled_inputs[0].name, "bundle.mass");
+  EXPECT_EQ(s.sampled_inputs[1].name, "bundle.drag.cd");
+  const FlightInputs nominal = nominal_flight(s, 0);
+  // The median of a normal truncated 3.75 sd below the mean is above the mean by a hair.
+  EXPECT_NEAR(nominal.body.mass, 95.0, 1e-3);
+  EXPECT_GT(nominal.body.mass, 95.0);
+  EXPECT_DOUBLE_EQ(nominal.body.drag.cd, 1.05);            // uniform median
+  EXPECT_NEAR(nominal.release.velocity.x(), 62.0, 1e-12);  // track 90: due east
+  EXPECT_NEAR(nominal.release.velocity.y(), 0.0, 1e-12);
+}
+
+TEST(Scenario, ReleaseErrorsMoveTheReleasePoint) {
+  // Track 0 (north): along is north, crossrange (right of track) is east; a delay of 2 s at
+  // 50 m/s is 100 m further along.
+  const ReleaseState r = release_state(1000.0, 10.0, 20.0, 50.0, 0.0, 0.0, 5.0, 3.0, 2.0);
+  EXPECT_NEAR(r.position.x(), 13.0, 1e-12);
+  EXPECT_NEAR(r.position.y(), 20.0 + 5.0 + 100.0, 1e-12);
+}
+
+TEST(ScenarioBadInput, WrongType) {
+  expect_problem(
+      edit("mass = { dist = \"normal\", mean = 95.0, sd = 4.0, min = 80.0 }", "mass = \"heavy\""),
+      "body[0].mass", 12, "expected a number or a distribution table");
+}
+
+TEST(ScenarioBadInput, NegativeMass) {
+  expect_problem(
+      edit("mass = { dist = \"normal\", mean = 95.0, sd = 4.0, min = 80.0 }", "mass = -3.0"),
+      "body[0].mass", 12, "must be positive");
+}
+
+TEST(ScenarioBadInput, UnknownKeyWithSuggestion) {
+  expect_problem(edit("mass = {", "mas = {"), "body[0].mas", 12, "did you mean \"mass\"?");
+  expect_problem(edit("track = 90.0", "trak = 90.0"), "release.trak", 9, "did you mean \"track\"?");
+  expect_problem(edit("[wind]", "[wnid]"), "wnid", 4, "did you mean \"wind\"?");
+}
+
+TEST(ScenarioBadInput, ReleaseBelowTheGround) {
+  expect_problem(edit("altitude = 2400.0", "altitude = 500.0"), "release.altitude", 7,
+                 "must be above the ground");
+}
+
+TEST(ScenarioBadInput, TomlSyntaxError) {
+  expect_problem(edit("[release]", "[release"), "", 6, "TOML syntax error");
+}
+
+TEST(ScenarioBadInput, InvalidDistributions) {
+  expect_problem(edit("sd = 4.0", "sd = -4.0"), "body[0].mass.sd", 12, "must be positive");
+  expect_problem(edit("min = 0.9, max = 1.2", "min = 1.9, max = 1.2"), "body[0].drag.cd.min", 15,
+                 "must be below max");
+  expect_problem(edit("dist = \"uniform\"", "dist = \"uniforn\""), "body[0].drag.cd.dist", 15,
+                 "did you mean \"uniform\"?");
+  // A normal that puts real probability below zero on a positive quantity.
+  expect_problem(edit("min = 80.0 }", "sd = 60.0 }").replace(kGood.find("sd = 4.0, "), 10, ""),
+                 "body[0].mass", 12, "of its probability outside positive");
+}
+
+TEST(ScenarioBadInput, WindLayersOutOfOrder) {
+  expect_problem(edit("altitude = 1500.0", "altitude = 300.0"), "wind.layers[1].altitude", 5,
+                 "sorted by increasing altitude");
+  expect_problem(edit("altitude = 1500.0", "altitude = 540.0"), "wind.layers[1].altitude", 5,
+                 "duplicated altitude");
+  expect_problem(edit("from = 240.0", "from = 400.0"), "wind.layers[0].from", 5, "[0, 360]");
+}
+
+TEST(ScenarioBadInput, ModelSpecificKeys) {
+  expect_problem(edit("area = 0.55", "area = 0.55\ndiameter = 0.3"), "body[0].drag.diameter", 17,
+                 "is not used by drag model \"area\"");
+  expect_problem(edit("model = \"area\"", "model = \"spere\""), "body[0].drag.model", 14,
+                 "did you mean \"sphere\"?");
+}
+
+TEST(ScenarioBadInput, MissingSections) {
+  const std::string no_release =
+      edit("[release]\naltitude = 2400.0\nspeed = 62.0\ntrack = 90.0\n", "");
+  expect_problem(no_release, "release", 0, "is required");
+  expect_problem(kGood.substr(0, kGood.find("[[body]]")), "body", 0, "at least one [[body]]");
+}
+
+TEST(ScenarioBadInput, ParachuteProbabilitiesAndCorrelations) {
+  const std::string chute = kGood + R"([body.parachute]
+deploy_after = 3.0
+drag_area = 45.0
+partial_probability = 0.7
+partial_drag_area = 6.0
+failure_probability = 0.4
+[[correlation]]
+between = ["bundle.mass", "bundle.drag.cdd"]
+rho = 0.3
+)";
+  expect_problem(chute, "body[0].parachute.failure_probability", 22, "must not exceed 1");
+  expect_problem(chute, "correlation[0].between", 24, "did you mean \"bundle.drag.cd\"?");
+}
+
+// All problems are reported in one pass, not just the first.
+TEST(ScenarioBadInput, EveryProblemInOnePass) {
+  std::string text = edit("mass = {", "mas = {");
+  text = text.replace(text.find("track = 90.0"), 12, "track = \"east\"");
+  text = text.replace(text.find("cd = {"), 6, "cd = -1.0 #");
+  const auto problems = problems_of(text);
+  EXPECT_GE(problems.size(), 4u);  // mas unknown, mass missing, track type, cd sign
+}
+
+TEST(ScenarioBadInput, FilesThatAreNotScenarios) {
+  EXPECT_THROW(load_scenario("/nonexistent/strewn.toml"), ScenarioError);
+  EXPECT_THROW(load_scenario(STREWN_SOURCE_DIR "/tests"), ScenarioError);
+  EXPECT_THROW(parse_scenario("", "empty.toml"), ScenarioError);
+}
+
+}  // namespace
+}  // namespace strewn
