@@ -82,14 +82,22 @@ using quiet_policy = boost::math::policies::policy<
 using Normal = boost::math::normal_distribution<double, quiet_policy>;
 using LogNormal = boost::math::lognormal_distribution<double, quiet_policy>;
 
-// Quantile of a continuous distribution truncated to [lower, upper]:
-// F^-1(F(lower) + p (F(upper) - F(lower))).
+// The cumulative probabilities F(lower) and F(upper) of a truncation window (0 and 1 where the
+// window is open on that side or reaches past the support).
 template <class Dist>
-double truncated_quantile(const Dist& dist, double p, double lower, double upper) {
+std::pair<double, double> window(const Dist& dist, double lower, double upper) {
   const double f_low = std::isfinite(lower) && lower > boost::math::support(dist).first
                            ? boost::math::cdf(dist, lower)
                            : 0.0;
   const double f_high = std::isfinite(upper) ? boost::math::cdf(dist, upper) : 1.0;
+  return {f_low, f_high};
+}
+
+// Quantile of a continuous distribution truncated to [lower, upper]:
+// F^-1(F(lower) + p (F(upper) - F(lower))).
+template <class Dist>
+double truncated_quantile(const Dist& dist, double p, double lower, double upper) {
+  const auto [f_low, f_high] = window(dist, lower, upper);
   const double q = f_low + p * (f_high - f_low);
   if (q <= 0.0) return std::max(lower, boost::math::support(dist).first);
   if (q >= 1.0) return upper;
@@ -98,10 +106,7 @@ double truncated_quantile(const Dist& dist, double p, double lower, double upper
 
 template <class Dist>
 double window_probability(const Dist& dist, double lower, double upper) {
-  const double f_low = std::isfinite(lower) && lower > boost::math::support(dist).first
-                           ? boost::math::cdf(dist, lower)
-                           : 0.0;
-  const double f_high = std::isfinite(upper) ? boost::math::cdf(dist, upper) : 1.0;
+  const auto [f_low, f_high] = window(dist, lower, upper);
   return f_high - f_low;
 }
 }  // namespace
@@ -209,12 +214,9 @@ template <class Dist>
 double truncated_cdf(const Dist& dist, double x, double lower, double upper) {
   if (x <= lower) return 0.0;
   if (x >= upper) return 1.0;
-  const double window = window_probability(dist, lower, upper);
-  const double f_low = std::isfinite(lower) && lower > boost::math::support(dist).first
-                           ? boost::math::cdf(dist, lower)
-                           : 0.0;
+  const auto [f_low, f_high] = window(dist, lower, upper);
   const double fx = x <= boost::math::support(dist).first ? 0.0 : boost::math::cdf(dist, x);
-  return std::clamp((fx - f_low) / window, 0.0, 1.0);
+  return std::clamp((fx - f_low) / (f_high - f_low), 0.0, 1.0);
 }
 }  // namespace
 

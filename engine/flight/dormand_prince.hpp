@@ -127,35 +127,21 @@ class DormandPrince5 {
   /// One component of the dense output, from the stages directly (cheaper than preparing the
   /// whole state when only the altitude is wanted, as in root finding).
   [[nodiscard]] double dense(int i, double t) const {
-    const double h = h_last_;
-    const double theta = (t - t_previous_) / (t_ - t_previous_);
-    const double theta1 = 1.0 - theta;
-    const double difference = y_[i] - y_previous_[i];
-    const double r3 = h * k1_previous_[i] - difference;
-    const double r4 = difference - h * k7_last_[i] - r3;
-    const double r5 = h * (d1 * k1_previous_[i] + d3 * k3_[i] + d4 * k4_[i] + d5 * k5_[i] +
-                           d6 * k6_[i] + d7 * k7_last_[i]);
-    return y_previous_[i] + theta * (difference + theta1 * (r3 + theta * (r4 + theta1 * r5)));
+    const Interpolant p = interpolant(i, t);
+    return y_previous_[i] +
+           p.theta * (p.difference + p.theta1 * (p.r3 + p.theta * (p.r4 + p.theta1 * p.r5)));
   }
 
   /// Time derivative of one component of the dense output (the exact derivative of its
   /// polynomial), for Newton steps on it.
   [[nodiscard]] double dense_rate(int i, double t) const {
-    const double h = h_last_;
-    const double theta = (t - t_previous_) / (t_ - t_previous_);
-    const double theta1 = 1.0 - theta;
-    const double difference = y_[i] - y_previous_[i];
-    const double r3 = h * k1_previous_[i] - difference;
-    const double r4 = difference - h * k7_last_[i] - r3;
-    const double r5 = h * (d1 * k1_previous_[i] + d3 * k3_[i] + d4 * k4_[i] + d5 * k5_[i] +
-                           d6 * k6_[i] + d7 * k7_last_[i]);
+    const Interpolant p = interpolant(i, t);
     // P = theta Q, Q = difference + theta1 R, R = r3 + theta S, S = r4 + theta1 r5.
-    const double s = r4 + theta1 * r5;
-    const double r = r3 + theta * s;
-    const double q = difference + theta1 * r;
-    const double dr = s - theta * r5;
-    const double dq = -r + theta1 * dr;
-    return (q + theta * dq) / (t_ - t_previous_);
+    const double s = p.r4 + p.theta1 * p.r5;
+    const double r = p.r3 + p.theta * s;
+    const double q = p.difference + p.theta1 * r;
+    const double dq = -r + p.theta1 * (s - p.theta * p.r5);
+    return (q + p.theta * dq) / (t_ - t_previous_);
   }
 
  private:
@@ -257,6 +243,21 @@ class DormandPrince5 {
     k1_ = k7_;  // first-same-as-last
     ++steps_;
     dense_ready_ = false;  // the dense output is prepared on first use (most steps never need it)
+  }
+
+  // One component's dense-output coefficients (DOPRI5 "CONTD5" form) and the position in the step.
+  struct Interpolant {
+    double theta, theta1, difference, r3, r4, r5;
+  };
+  [[nodiscard]] Interpolant interpolant(int i, double t) const {
+    const double h = h_last_;
+    const double theta = (t - t_previous_) / (t_ - t_previous_);
+    const double difference = y_[i] - y_previous_[i];
+    const double r3 = h * k1_previous_[i] - difference;
+    const double r4 = difference - h * k7_last_[i] - r3;
+    const double r5 = h * (d1 * k1_previous_[i] + d3 * k3_[i] + d4 * k4_[i] + d5 * k5_[i] +
+                           d6 * k6_[i] + d7 * k7_last_[i]);
+    return {theta, 1.0 - theta, difference, r3, r4, r5};
   }
 
   // Dense output coefficients for the last step (DOPRI5 "CONTD5" form).

@@ -1,8 +1,8 @@
 #include "flight/trajectory.hpp"
 
 #include <cmath>
+#include <cstdio>
 
-#include "core/text.hpp"
 
 namespace strewn {
 
@@ -40,7 +40,11 @@ std::vector<std::string> TrajectoryRecorder::warnings(const FlightResult& result
     out.push_back(std::string("the flight did not land: ") + to_string(result.status));
   if (reynolds_.empty()) return out;
   const DragSpec& spec = drag_;
-  auto number = [](double v) { return format_number(std::round(v * 1000.0) / 1000.0); };
+  auto number = [](double v) {  // three significant figures
+    char text[32];
+    std::snprintf(text, sizeof text, "%.3g", v);
+    return std::string(text);
+  };
   switch (spec.model) {
     case DragModel::sphere:
       if (reynolds_.max > drag::kMorrisonMaxReynolds)
@@ -73,10 +77,6 @@ std::vector<std::string> TrajectoryRecorder::warnings(const FlightResult& result
   if (left_medium_)
     out.push_back("the flight left the altitude range of the medium (" + number(medium_bottom_) +
                   " .. " + number(medium_top_) + " m); the end values were held");
-  if (result.quasi_steady)
-    out.push_back(
-        "the quasi-steady (terminal-velocity) form was used after the release "
-        "transient: the body relaxes to its settling speed almost at once");
   return out;
 }
 

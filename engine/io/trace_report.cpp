@@ -151,7 +151,7 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
       << " m   north " << fixed(r.position.y(), 2) << " m\n";
   out << "          downrange " << fixed(downrange, 2) << " m   crossrange " << fixed(crossrange, 2)
       << " m (right of track)\n";
-  out << "          speed " << fixed(r.speed, 2) << " m/s   energy " << general(r.energy)
+  out << "          speed " << general(r.speed) << " m/s   energy " << general(r.energy)
       << " J   angle " << fixed(r.angle, 1) << " deg below horizontal\n";
   if (!std::isnan(r.deploy_time))
     out << "canopy    deployed at " << fixed(r.deploy_time, 2) << " s\n";
@@ -164,6 +164,9 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
         << general(rec.quadratic_to_linear().max);
   out << "\nsteps     " << r.steps << " (tolerance " << t.tolerance << " m at the impact point)\n";
   for (const auto& w : rec.warnings(r)) out << "warning   " << w << "\n";
+  if (r.quasi_steady)
+    out << "note      the settling (quasi-steady) form carried the fall after the release "
+           "transient\n";
   // A short trajectory table: at most about 12 rows spread over the flight.
   const auto& points = rec.points();
   if (!points.empty()) {

@@ -74,7 +74,8 @@ class Loader {
     try {
       root = toml::parse(scenario_.text, path_);
     } catch (const toml::parse_error& error) {
-      diagnostics_.add("", static_cast<long>(error.source().begin.line),
+      const auto line = static_cast<long>(error.source().begin.line);
+      diagnostics_.add(key_on_line(line), line,
                        "TOML syntax error: " + std::string(error.description()));
       throw ScenarioError(diagnostics_.take());
     }
@@ -628,6 +629,38 @@ class Loader {
         diagnostics_.add(correlation_paths_[i], correlation_lines_[i],
                          "names the same input twice");
     }
+  }
+
+  // The key path written on a line of the text ("release.speed" for `speed = ...` under
+  // [release]), for messages about lines the TOML parser could not read; empty when none.
+  std::string key_on_line(long wanted) const {
+    std::istringstream in(scenario_.text);
+    std::string line, section;
+    for (long number = 1; std::getline(in, line); ++number) {
+      const auto first = line.find_first_not_of(" \t");
+      if (first == std::string::npos) continue;
+      if (line[first] == '[') {
+        const auto open = line.find_first_not_of("[ \t", first);
+        const auto close = line.find(']', first);  // missing in a broken header: take the rest
+        if (open != std::string::npos && (close == std::string::npos || close > open)) {
+          section =
+              line.substr(open, close == std::string::npos ? std::string::npos : close - open);
+          section.erase(section.find_last_not_of(" \t\r") + 1);
+        }
+        if (number == wanted) return section;
+        continue;
+      }
+      if (number != wanted) continue;
+      const auto end = line.find_first_of(" \t=", first);
+      const std::string key =
+          line.substr(first, end == std::string::npos ? std::string::npos : end - first);
+      if (key.empty() || key.find_first_not_of(
+                             "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_-.") !=
+                             std::string::npos)
+        return section;
+      return section.empty() ? key : section + "." + key;
+    }
+    return "";
   }
 
   long line_for(const char* section, const char* key) const {

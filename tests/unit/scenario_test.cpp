@@ -113,7 +113,9 @@ TEST(ScenarioBadInput, ReleaseBelowTheGround) {
 }
 
 TEST(ScenarioBadInput, TomlSyntaxError) {
-  expect_problem(edit("[release]", "[release"), "", 6, "TOML syntax error");
+  expect_problem(edit("[release]", "[release"), "release", 6, "TOML syntax error");
+  // The parser knows the line only; the key is read from the text.
+  expect_problem(edit("speed = 62.0", "speed = 62.0 62"), "release.speed", 8, "TOML syntax error");
 }
 
 TEST(ScenarioBadInput, InvalidDistributions) {
