@@ -3,7 +3,6 @@
 #include <cmath>
 #include <cstdio>
 
-
 namespace strewn {
 
 void TrajectoryRecorder::record(const TrajectoryPoint& point, const Forces& forces) {
