@@ -70,15 +70,19 @@ class DormandPrince5 {
         h_ = 0.25 * h;
         continue;
       }
-      double error = (error_ * h).cwiseAbs().cwiseProduct(inverse_tolerance_).maxCoeff();
-      if (reference_time_ > 0.0 && h < reference_time_) error *= reference_time_ / h;
-      if (fixed_step_ > 0.0 || error <= 1.0) {
+      // Error per unit step scales the error by T/h; written as error T <= h, and as a difference
+      // of logarithms below, it keeps a division off the step-to-step chain.
+      const double error = (error_ * h).cwiseAbs().cwiseProduct(inverse_tolerance_).maxCoeff();
+      const bool per_unit_step = reference_time_ > 0.0 && h < reference_time_;
+      const double scaled = per_unit_step ? error * reference_time_ : error;
+      if (fixed_step_ > 0.0 || scaled <= (per_unit_step ? h : 1.0)) {
         accept(h, hits_limit ? t_max : t_ + h);
         // Step-size proposal with the PI controller of Hairer-Norsett-Wanner (II.4 and DOPRI5:
         // exponent 0.2 - 0.75 beta, beta = 0.04), bounded growth and the usual safety factor.
         // A few digits are ample for choosing a step: short polynomial forms of log2 and 2^x keep
         // the controller off the critical path between steps (and are deterministic).
-        const double log_error = rough_log2(std::max(error, 1e-10));
+        const double log_error =
+            rough_log2(std::max(scaled, 1e-10)) - (per_unit_step ? rough_log2(h) : 0.0);
         double factor = kSafety * rough_exp2(kBeta * log_previous_error_ - kAlpha * log_error);
         factor = std::clamp(factor, kMinFactor, last_rejected_ ? 1.0 : kMaxFactor);
         log_previous_error_ = log_error;
@@ -88,7 +92,8 @@ class DormandPrince5 {
         return StepOutcome::accepted;
       }
       last_rejected_ = true;
-      h_ = h * std::max(kMinFactor, kSafety * std::pow(error, -0.2));
+      const double ratio = per_unit_step ? scaled / h : scaled;
+      h_ = h * std::max(kMinFactor, kSafety * std::pow(ratio, -0.2));
     }
     return StepOutcome::step_too_small;
   }
@@ -141,7 +146,7 @@ class DormandPrince5 {
     const double r = p.r3 + p.theta * s;
     const double q = p.difference + p.theta1 * r;
     const double dq = -r + p.theta1 * (s - p.theta * p.r5);
-    return (q + p.theta * dq) / (t_ - t_previous_);
+    return (q + p.theta * dq) * inverse_span_;
   }
 
  private:
@@ -155,10 +160,13 @@ class DormandPrince5 {
     return exponent + m * (1.4234853 + m * (-0.5877338 + m * 0.1655588));
   }
   // 2^x to within 1.3e-4 relative for |x| < 1000: an integer power by the exponent bits times a
-  // cubic for the fraction (least-squares fit of 2^f - 1 on [0, 1)).
+  // cubic for the fraction (least-squares fit of 2^f - 1 on [0, 1]).
   static double rough_exp2(double x) {
     x = std::clamp(x, -1000.0, 1000.0);
-    const double whole = std::floor(x);
+    // Integer part by the 1.5 * 2^52 rounding (of x - 1/2): floor(x), or x - 1 when x is whole;
+    // f stays in [0, 1] either way, where the cubic holds.
+    constexpr double kRound = 6755399441055744.0;
+    const double whole = ((x - 0.5) + kRound) - kRound;
     const double f = x - whole;
     const double fraction = 1.0 + f * (0.6954300 + f * (0.2269401 + f * 0.0773806));
     const auto exponent = static_cast<std::uint64_t>(static_cast<int>(whole) + 1023) << 52;
@@ -238,6 +246,7 @@ class DormandPrince5 {
     k1_previous_ = k1_;
     k7_last_ = k7_;
     h_last_ = h;
+    inverse_span_ = 1.0 / (t_new - t_);
     t_ = t_new;
     y_ = y_new_;
     k1_ = k7_;  // first-same-as-last
@@ -251,7 +260,7 @@ class DormandPrince5 {
   };
   [[nodiscard]] Interpolant interpolant(int i, double t) const {
     const double h = h_last_;
-    const double theta = (t - t_previous_) / (t_ - t_previous_);
+    const double theta = (t - t_previous_) * inverse_span_;
     const double difference = y_[i] - y_previous_[i];
     const double r3 = h * k1_previous_[i] - difference;
     const double r4 = difference - h * k7_last_[i] - r3;
@@ -293,7 +302,7 @@ class DormandPrince5 {
   double log_previous_error_ = -13.28771237954945;  // log2(1e-4), Hairer's DOPRI5 start
   bool last_rejected_ = false;
   mutable bool dense_ready_ = false;
-  double h_last_ = 0.0;
+  double h_last_ = 0.0, inverse_span_ = 0.0;  // the last step and 1 / its span in time
   long evaluations_ = 0, steps_ = 0;
   State y_, y_previous_, y_new_, error_;
   State k1_, k1_previous_, k2_, k3_, k4_, k5_, k6_, k7_, k7_last_;

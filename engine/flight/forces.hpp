@@ -65,9 +65,11 @@ class Forces {
     wind_.at(z, wind_east, wind_north);
     const double ux = y[3] - wind_east, uy = y[4] - wind_north, uz = y[5];
     const double speed = std::sqrt(ux * ux + uy * uy + uz * uz);
-    // The density comes last in the product: it ends the longest chain of the evaluation.
+    // The loop-carried chain of the integration runs from one stage's acceleration through the
+    // next stage's velocity, air speed and square root back to the drag; the altitude, hence the
+    // density, is known earlier. So the density is multiplied in first, off that chain.
     const double k = constant_cd_ && stage_ == DragStage::body
-                         ? (half_cd_area_per_mass_ * speed) * air.density
+                         ? (half_cd_area_per_mass_ * air.density) * speed
                          : drag_coefficient(t, speed, air) * inverse_mass_;
     const double g = gravity_at(z) * (1.0 - air.density * inverse_body_density_);
     dydt[0] = y[3];

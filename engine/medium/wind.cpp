@@ -22,7 +22,16 @@ WindProfile::WindProfile(const std::vector<WindLayer>& layers, double ground) : 
     const Eigen::Vector2d v = wind_from(l.speed, l.from);
     east_.push_back(v.x());
     north_.push_back(v.y());
-    inverse_thickness_.push_back(i == 0 ? 0.0 : 1.0 / (l.altitude - layers[i - 1].altitude));
+    double east_slope = 0.0, north_slope = 0.0;
+    if (i > 0) {
+      const double thickness = l.altitude - altitude_[i - 1];
+      east_slope = (east_[i] - east_[i - 1]) / thickness;
+      north_slope = (north_[i] - north_[i - 1]) / thickness;
+    }
+    east_slope_.push_back(east_slope);
+    north_slope_.push_back(north_slope);
+    east_intercept_.push_back(east_[i] - east_slope * l.altitude);
+    north_intercept_.push_back(north_[i] - north_slope * l.altitude);
     max_speed_ = std::max(max_speed_, l.speed);
   }
   power_law_ = !altitude_.empty() && altitude_.front() - ground_ > kPowerLawFloor;

@@ -50,12 +50,12 @@ class WindProfile {
       below_lowest(z, east, north);
       return;
     }
-    // Profiles have few layers: a linear scan beats a binary search.
+    // Profiles have few layers: a linear scan beats a binary search. Each layer is stored as
+    // intercept + slope * z, one multiply-add on the force loop's critical path.
     std::size_t i = 1;
     while (z > altitude_[i]) ++i;
-    const double f = (z - altitude_[i - 1]) * inverse_thickness_[i];
-    east = east_[i - 1] + f * (east_[i] - east_[i - 1]);
-    north = north_[i - 1] + f * (north_[i] - north_[i - 1]);
+    east = east_intercept_[i] + east_slope_[i] * z;
+    north = north_intercept_[i] + north_slope_[i] * z;
   }
 
   [[nodiscard]] bool calm() const { return altitude_.empty(); }
@@ -73,7 +73,9 @@ class WindProfile {
  private:
   void below_lowest(double z, double& east, double& north) const;
   std::vector<double> altitude_;
-  std::vector<double> east_, north_, inverse_thickness_;
+  std::vector<double> east_, north_;
+  // Layer i spans (altitude_[i-1], altitude_[i]]: wind = intercept + slope * z there.
+  std::vector<double> east_intercept_, east_slope_, north_intercept_, north_slope_;
   std::vector<double> kinks_;
   double ground_ = 0.0;
   double max_speed_ = 0.0;
