@@ -2,10 +2,19 @@
 
 #include <CLI/CLI.hpp>
 #include <iostream>
+#include <optional>
 
+#include <tbb/global_control.h>
+#include <unistd.h>
 #include "core/errors.hpp"
 #include "core/version.hpp"
+
+#include <chrono>
+#include <filesystem>
+
 #include "io/atmosphere_table.hpp"
+#include "io/results_file.hpp"
+#include "io/study_report.hpp"
 #include "io/trace_report.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/world.hpp"
@@ -34,6 +43,129 @@ int run_trace(const TraceArguments& a, std::ostream& out) {
   return trace.result.status == FlightStatus::landed ? kExitDone : kExitFailure;
 }
 
+struct RunArguments {
+  std::string scenario;
+  std::uint64_t samples = 0;  // 0: the scenario's
+  std::optional<std::uint64_t> seed;
+  int threads = 0;  // 0: all
+  std::string output;
+  std::optional<std::uint64_t> sample;
+  bool quiet = false;
+  bool json = false;
+};
+
+// The results file: -o, else the scenario's [output] file, else results/<scenario name>.h5.
+std::string output_path(const RunArguments& a, const Scenario& s) {
+  if (!a.output.empty()) return a.output;
+  if (!s.output.file.empty()) return s.output.file;
+  return "results/" + std::filesystem::path(a.scenario).stem().string() + ".h5";
+}
+
+int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& out) {
+  const Scenario& s = model.scenario();
+  if (*a.sample >= static_cast<std::uint64_t>(s.study.samples))
+    throw UsageError("--sample " + std::to_string(*a.sample) + " is outside the study's " +
+                     std::to_string(s.study.samples) + " samples");
+  nlohmann::json j{{"sample", *a.sample}, {"seed", s.study.seed}};
+  bool all_landed = true;
+  for (std::size_t b = 0; b < model.bodies(); ++b) {
+    TrajectoryRecorder recorder;
+    const ReplayedRow row = replay_row(model, *a.sample, b, &recorder, 0.0);
+    nlohmann::json inputs;
+    for (std::size_t d = 0; d < row.values.size(); ++d)
+      inputs[model.sampler().inputs()[d].name] = row.values[d];
+    nlohmann::json points = nlohmann::json::array();
+    for (const auto& p : recorder.points())
+      points.push_back(
+          {p.point.time, p.point.position.x(), p.point.position.y(), p.point.position.z()});
+    const auto& r = row.result;
+    all_landed = all_landed && r.status == FlightStatus::landed;
+    j["bodies"].push_back(
+        {{"body", s.bodies[b].name},
+         {"status", to_string(r.status)},
+         {"canopy",
+          to_string(row.inputs.body.has_canopy ? row.inputs.body.canopy.state : CanopyState::none)},
+         {"impact",
+          {{"time", r.time},
+           {"east", r.position.x()},
+           {"north", r.position.y()},
+           {"speed", r.speed},
+           {"energy", r.energy},
+           {"angle", r.angle}}},
+         {"inputs", inputs},
+         {"trajectory_columns", {"time", "east", "north", "altitude"}},
+         {"trajectory", points}});
+  }
+  out << j.dump(2) << '\n';
+  return all_landed ? kExitDone : kExitFailure;
+}
+
+int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& err) {
+  Scenario scenario = load_scenario(a.scenario);
+  if (a.samples > 0) scenario.study.samples = static_cast<long>(a.samples);
+  if (a.seed) scenario.study.seed = *a.seed;
+  const World world = build_world(scenario);
+  const auto samples = static_cast<std::uint64_t>(scenario.study.samples);
+  const SampleModel model(scenario, world, samples);
+  std::optional<tbb::global_control> limit;
+  if (a.threads > 0)
+    limit.emplace(tbb::global_control::max_allowed_parallelism,
+                  static_cast<std::size_t>(a.threads));
+  if (a.sample) return run_replay(a, model, out);
+
+  const std::string path = output_path(a, scenario);
+  // Refuse an unwritable destination before any flight.
+  const auto folder = std::filesystem::path(path).parent_path();
+  if (!folder.empty() && !std::filesystem::is_directory(folder))
+    throw IoError(path + ": the folder " + folder.string() + " does not exist");
+
+  StudyOptions options;
+  options.samples = samples;
+  const bool show = !a.quiet && ::isatty(STDERR_FILENO);
+  const auto start = std::chrono::steady_clock::now();
+  if (show) {
+    options.progress = [&](std::uint64_t done) {
+      const double seconds =
+          std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+      const double rate = static_cast<double>(done) / std::max(seconds, 1e-9);
+      char line[160];
+      std::snprintf(line, sizeof line, "\r  %llu / %llu samples, %.0f per second, %.0f s left   ",
+                    static_cast<unsigned long long>(done), static_cast<unsigned long long>(samples),
+                    rate, static_cast<double>(samples - done) / std::max(rate, 1e-9));
+      err << line << std::flush;
+    };
+  }
+  const StudyResult result = run_study(model, options);
+  if (show) err << "\n";
+  RunProvenance provenance;
+  provenance.seed = scenario.study.seed;
+  provenance.threads = a.threads > 0 ? a.threads
+                                     : static_cast<int>(tbb::global_control::active_value(
+                                           tbb::global_control::max_allowed_parallelism));
+  write_results(path, scenario, result, provenance, scenario.output.samples);
+  const auto summary = study_summary(scenario, world, result);
+  if (a.json)
+    out << summary.dump(2) << '\n';
+  else
+    write_study_text(out, summary, path);
+  const double failed_share =
+      static_cast<double>(result.failed) /
+      static_cast<double>(std::max<std::uint64_t>(1, result.failed + result.completed));
+  if (failed_share > scenario.study.max_failed) {
+    err << "error: " << result.failed << " flights failed, more than study.max_failed ("
+        << scenario.study.max_failed << ") allows; replay them with --sample:";
+    int listed = 0;
+    for (std::size_t row = 0; row < result.columns.rows() && listed < 10; ++row)
+      if (result.columns.status[row] != 0) {
+        err << ' ' << row / result.bodies;
+        ++listed;
+      }
+    err << (result.failed > 10 ? " ...\n" : "\n");
+    return kExitFailure;
+  }
+  return kExitDone;
+}
+
 }  // namespace
 
 int run_command_line(int argc, const char* const* argv, std::ostream& out, std::ostream& err) {
@@ -54,6 +186,28 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out, std::
   auto* json_flag = trace_cmd->add_flag("--json", trace.json, "Print JSON");
   trace_cmd->add_flag("--csv", trace.csv, "Print the trajectory as CSV")->excludes(json_flag);
 
+  RunArguments run;
+  auto* run_cmd = app.add_subcommand(
+      "run", "Run the Monte Carlo study of a scenario into an HDF5 results file");
+  run_cmd->add_option("SCENARIO", run.scenario, "Scenario file (TOML)")->required();
+  run_cmd->add_option("-n", run.samples, "Samples (default: study.samples)")
+      ->check(CLI::PositiveNumber);
+  run_cmd->add_option("--seed", run.seed, "Random seed (default: study.seed)");
+  run_cmd->add_option("-j", run.threads, "Threads (default: all)")->check(CLI::PositiveNumber);
+  run_cmd->add_option("-o", run.output,
+                      "Results file (default: output.file, else results/<scenario>.h5)");
+  run_cmd->add_option("--sample", run.sample,
+                      "Replay this one sample with its trajectory (writes nothing)");
+  run_cmd->add_flag("--quiet", run.quiet, "No progress line");
+  run_cmd->add_flag("--json", run.json, "Print the summary as JSON");
+
+  std::string check_scenario;
+  bool check_json = false;
+  auto* check_cmd = app.add_subcommand(
+      "check", "Validate a scenario and print it fully resolved with its sampled inputs");
+  check_cmd->add_option("SCENARIO", check_scenario, "Scenario file (TOML)")->required();
+  check_cmd->add_flag("--json", check_json, "Print JSON");
+
   AtmosphereRequest atmosphere;
   auto* atmosphere_cmd =
       app.add_subcommand("atmosphere", "Print the U.S. Standard Atmosphere 1976 table");
@@ -72,6 +226,16 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out, std::
 
   try {
     if (*trace_cmd) return run_trace(trace, out);
+    if (*run_cmd) return run_study_command(run, out, err);
+    if (*check_cmd) {
+      const Scenario scenario = load_scenario(check_scenario);
+      (void)SampleModel(scenario, build_world(scenario), 1);  // correlations hold together
+      if (check_json)
+        out << scenario_json(scenario).dump(2) << '\n';
+      else
+        write_scenario_text(out, scenario);
+      return kExitDone;
+    }
     if (*atmosphere_cmd) {
       write_atmosphere(out, atmosphere);
       return kExitDone;

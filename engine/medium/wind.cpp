@@ -22,19 +22,45 @@ WindProfile::WindProfile(const std::vector<WindLayer>& layers, double ground) : 
     const Eigen::Vector2d v = wind_from(l.speed, l.from);
     east_.push_back(v.x());
     north_.push_back(v.y());
+  }
+  derive();
+}
+
+void WindProfile::assign_perturbed(const WindProfile& base, std::span<const double> add_east,
+                                   std::span<const double> add_north) {
+  ground_ = base.ground_;
+  altitude_.assign(base.altitude_.begin(), base.altitude_.end());
+  east_.resize(base.east_.size());
+  north_.resize(base.north_.size());
+  for (std::size_t i = 0; i < altitude_.size(); ++i) {
+    east_[i] = base.east_[i] + add_east[i];
+    north_[i] = base.north_[i] + add_north[i];
+  }
+  derive();
+}
+
+void WindProfile::derive() {
+  const std::size_t n = altitude_.size();
+  east_slope_.resize(n);
+  north_slope_.resize(n);
+  east_intercept_.resize(n);
+  north_intercept_.resize(n);
+  max_speed_ = 0.0;
+  for (std::size_t i = 0; i < n; ++i) {
     double east_slope = 0.0, north_slope = 0.0;
     if (i > 0) {
-      const double thickness = l.altitude - altitude_[i - 1];
+      const double thickness = altitude_[i] - altitude_[i - 1];
       east_slope = (east_[i] - east_[i - 1]) / thickness;
       north_slope = (north_[i] - north_[i - 1]) / thickness;
     }
-    east_slope_.push_back(east_slope);
-    north_slope_.push_back(north_slope);
-    east_intercept_.push_back(east_[i] - east_slope * l.altitude);
-    north_intercept_.push_back(north_[i] - north_slope * l.altitude);
-    max_speed_ = std::max(max_speed_, l.speed);
+    east_slope_[i] = east_slope;
+    north_slope_[i] = north_slope;
+    east_intercept_[i] = east_[i] - east_slope * altitude_[i];
+    north_intercept_[i] = north_[i] - north_slope * altitude_[i];
+    max_speed_ = std::max(max_speed_, std::hypot(east_[i], north_[i]));
   }
-  power_law_ = !altitude_.empty() && altitude_.front() - ground_ > kPowerLawFloor;
+  power_law_ = n > 0 && altitude_.front() - ground_ > kPowerLawFloor;
+  kinks_.clear();  // keeps its capacity
   if (power_law_) kinks_.push_back(ground_ + kPowerLawFloor);
   kinks_.insert(kinks_.end(), altitude_.begin(), altitude_.end());
 }

@@ -10,6 +10,7 @@
 // There is no vertical wind.
 #include <Eigen/Core>
 #include <cstddef>
+#include <span>
 #include <vector>
 
 namespace strewn {
@@ -58,7 +59,14 @@ class WindProfile {
     north = north_intercept_[i] + north_slope_[i] * z;
   }
 
+  /// Makes this profile `base` with (east, north) added at each of its layers, reusing this
+  /// profile's storage when it already has as many layers (so a study's samples allocate
+  /// nothing). Negative speeds cannot arise: the components are perturbed, not the speed.
+  void assign_perturbed(const WindProfile& base, std::span<const double> add_east,
+                        std::span<const double> add_north);
+
   [[nodiscard]] bool calm() const { return altitude_.empty(); }
+  [[nodiscard]] std::size_t layers() const { return altitude_.size(); }
   /// Largest wind speed anywhere in the profile, m/s.
   [[nodiscard]] double max_speed() const { return max_speed_; }
   /// Altitudes of the layers, m.
@@ -72,6 +80,7 @@ class WindProfile {
 
  private:
   void below_lowest(double z, double& east, double& north) const;
+  void derive();  // slopes, intercepts, largest speed and kinks from the layer values
   std::vector<double> altitude_;
   std::vector<double> east_, north_;
   // Layer i spans (altitude_[i-1], altitude_[i]]: wind = intercept + slope * z there.

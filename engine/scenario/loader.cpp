@@ -267,6 +267,12 @@ class Loader {
     const bool spread = w.uncertainty == WindUncertaintyModel::bias ||
                         w.uncertainty == WindUncertaintyModel::layered;
     if (spread) w.speed_sd = u.number("speed_sd", kNonNegative, true).value_or(0.0);
+    // A bias is one Gaussian vector per sample: two sampled inputs, so that sampling plans and
+    // rank correlations apply to it like to any other input.
+    if (w.uncertainty == WindUncertaintyModel::bias && w.speed_sd > 0.0) {
+      sampled("wind.bias_east", Uncertain::normal(0.0, w.speed_sd));
+      sampled("wind.bias_north", Uncertain::normal(0.0, w.speed_sd));
+    }
     if (w.uncertainty == WindUncertaintyModel::layered)
       w.correlation_length = u.number("correlation_length", kPositive, true).value_or(1.0);
     if (w.uncertainty == WindUncertaintyModel::ensemble) {

@@ -121,3 +121,61 @@ TEST(Cli, VersionAndAtmosphere) {
 
 }  // namespace
 }  // namespace strewn
+
+namespace strewn {
+namespace {
+
+TEST(CliRun, WritesTheResultsFileAndTheSummary) {
+  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-run";
+  std::filesystem::create_directories(dir);
+  const auto file = (dir / "box.h5").string();
+  const CommandResult r = run({"run", STREWN_SOURCE_DIR "/tests/data/canopy-by-height.toml", "-n",
+                               "300", "-o", file, "--quiet", "--json", "-j", "2"});
+  ASSERT_EQ(r.status, 0) << r.err;
+  const auto json = nlohmann::json::parse(r.out);
+  EXPECT_EQ(json["samples"], 300);
+  EXPECT_EQ(json["completed"].get<int>() + json["failed"].get<int>(), 300);
+  for (const char* group : {"box", "all"}) {
+    const auto& g = json["footprint"][group];
+    ASSERT_TRUE(g.contains("mean")) << group;
+    ASSERT_EQ(g["containment"].size(), 4u);  // the default levels
+    EXPECT_TRUE(g["containment"][0].contains("radius_upper"));
+    EXPECT_TRUE(g["energy"].contains("exceed_upper"));
+  }
+  // 300 samples support the 0.99 bound (299 needed) but not the 0.999 one (2995 needed).
+  EXPECT_FALSE(json["footprint"]["all"]["containment"][2]["radius_upper"].is_null());
+  EXPECT_TRUE(json["footprint"]["all"]["containment"][3]["radius_upper"].is_null());
+  EXPECT_EQ(json["footprint"]["all"]["containment"][3]["samples_needed"], 2995);
+  EXPECT_TRUE(std::filesystem::exists(file));
+  for (const auto& entry : std::filesystem::directory_iterator(dir))
+    EXPECT_EQ(entry.path().string().find(".partial"), std::string::npos);  // nothing half-written
+  // The same seed again gives the same summary.
+  EXPECT_EQ(run({"run", STREWN_SOURCE_DIR "/tests/data/canopy-by-height.toml", "-n", "300", "-o",
+                 file, "--quiet", "--json", "-j", "1"})
+                .out,
+            r.out);
+  std::filesystem::remove_all(dir);
+}
+
+TEST(CliRun, ReplayCheckAndRefusals) {
+  const std::string scenario = STREWN_SOURCE_DIR "/inputs/drone-survey.toml";
+  const CommandResult replay = run({"run", scenario, "--sample", "3"});
+  ASSERT_EQ(replay.status, 0) << replay.err;
+  const auto json = nlohmann::json::parse(replay.out);
+  EXPECT_EQ(json["bodies"].size(), 2u);
+  EXPECT_TRUE(json["bodies"][0]["inputs"].contains("pod.mass"));
+  EXPECT_EQ(run({"run", scenario, "--sample", "999999"}).status, 2);
+
+  const CommandResult check = run({"check", scenario});
+  EXPECT_EQ(check.status, 0);
+  EXPECT_NE(check.out.find("drone.drag.area"), std::string::npos);
+  EXPECT_NE(check.out.find("wind.bias_east"), std::string::npos);
+
+  // An output folder that does not exist: status 3 before any flight, nothing written.
+  EXPECT_EQ(run({"run", scenario, "-n", "10", "-o", "/nonexistent-folder/x.h5", "--quiet"}).status,
+            3);
+  EXPECT_EQ(run({"run", scenario, "-n", "0"}).status, 2);
+}
+
+}  // namespace
+}  // namespace strewn

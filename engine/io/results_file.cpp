@@ -1,0 +1,247 @@
+#include "io/results_file.hpp"
+
+#include <H5Cpp.h>
+#include <openssl/evp.h>
+#include <unistd.h>
+
+#include <chrono>
+#include <cstdio>
+#include <ctime>
+#include <filesystem>
+
+#include "core/errors.hpp"
+#include "core/version.hpp"
+
+namespace strewn {
+
+std::string sha256_hex(const std::string& text) {
+  unsigned char digest[EVP_MAX_MD_SIZE];
+  unsigned int length = 0;
+  EVP_Digest(text.data(), text.size(), digest, &length, EVP_sha256(), nullptr);
+  std::string hex;
+  char byte[3];
+  for (unsigned int i = 0; i < length; ++i) {
+    std::snprintf(byte, sizeof byte, "%02x", digest[i]);
+    hex += byte;
+  }
+  return hex;
+}
+
+namespace {
+
+template <class T>
+H5::PredType type_of();
+template <>
+H5::PredType type_of<double>() {
+  return H5::PredType::NATIVE_DOUBLE;
+}
+template <>
+H5::PredType type_of<std::uint8_t>() {
+  return H5::PredType::NATIVE_UINT8;
+}
+template <>
+H5::PredType type_of<std::uint16_t>() {
+  return H5::PredType::NATIVE_UINT16;
+}
+template <>
+H5::PredType type_of<std::uint64_t>() {
+  return H5::PredType::NATIVE_UINT64;
+}
+template <>
+H5::PredType type_of<int>() {
+  return H5::PredType::NATIVE_INT;
+}
+
+// One column: chunked (at most 64 Ki rows a chunk), byte-shuffled and deflated.
+template <class T>
+void write_column(H5::Group& group, const std::string& name, const std::vector<T>& values) {
+  const hsize_t rows = values.size();
+  H5::DataSpace space(1, &rows);
+  H5::DSetCreatPropList properties;
+  if (rows > 0) {
+    const hsize_t chunk = std::min<hsize_t>(rows, 65536);
+    properties.setChunk(1, &chunk);
+    properties.setShuffle();
+    properties.setDeflate(4);
+  }
+  H5::DataSet set = group.createDataSet(name, type_of<T>(), space, properties);
+  if (rows > 0) set.write(values.data(), type_of<T>());
+}
+
+template <class T>
+void write_attribute(H5::H5Object& object, const std::string& name, const T& value) {
+  H5::DataSpace scalar;
+  H5::Attribute a = object.createAttribute(name, type_of<T>(), scalar);
+  a.write(type_of<T>(), &value);
+}
+
+void write_attribute(H5::H5Object& object, const std::string& name, const std::string& value) {
+  H5::StrType type(H5::PredType::C_S1, std::max<std::size_t>(1, value.size()));
+  H5::DataSpace scalar;
+  H5::Attribute a = object.createAttribute(name, type, scalar);
+  a.write(type, value.c_str());
+}
+
+void write_strings(H5::H5Object& object, const std::string& name,
+                   const std::vector<std::string>& values) {
+  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+  const hsize_t count = values.size();
+  H5::DataSpace space(1, &count);
+  std::vector<const char*> pointers;
+  for (const auto& v : values) pointers.push_back(v.c_str());
+  H5::Attribute a = object.createAttribute(name, type, space);
+  a.write(type, pointers.data());
+}
+
+std::string now_iso8601() {
+  const std::time_t t = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
+  std::tm utc{};
+  gmtime_r(&t, &utc);
+  char text[32];
+  std::strftime(text, sizeof text, "%Y-%m-%dT%H:%M:%SZ", &utc);
+  return text;
+}
+
+}  // namespace
+
+void write_results(const std::string& path, const Scenario& scenario, const StudyResult& result,
+                   const RunProvenance& provenance, bool keep_samples) {
+  namespace fs = std::filesystem;
+  const fs::path final_path(path);
+  const fs::path temporary = final_path.parent_path() / (final_path.filename().string() +
+                                                         ".partial-" + std::to_string(::getpid()));
+  H5::Exception::dontPrint();
+  try {
+    {
+      H5::H5File file(temporary.string(), H5F_ACC_TRUNC);
+      write_attribute(file, "format_version", kResultsFormatVersion);
+      write_attribute(file, "engine_version", std::string(kEngineVersion));
+      write_attribute(file, "created", now_iso8601());
+      write_attribute(file, "seed", provenance.seed);
+      write_attribute(file, "samples", result.samples);
+      write_attribute(file, "completed", result.completed);
+      write_attribute(file, "failed", result.failed);
+      write_attribute(file, "scenario_sha256", sha256_hex(scenario.text));
+      write_attribute(file, "threads", provenance.threads);
+      {
+        H5::StrType type(H5::PredType::C_S1, std::max<std::size_t>(1, scenario.text.size()));
+        H5::DataSpace scalar;
+        H5::DataSet text = file.createDataSet("scenario", type, scalar);
+        text.write(scenario.text.c_str(), type);
+      }
+      H5::Group samples = file.createGroup("samples");
+      std::vector<std::string> names;
+      for (const auto& b : scenario.bodies) names.push_back(b.name);
+      write_strings(samples, "body_names", names);
+      if (keep_samples) {
+        const StudyColumns& c = result.columns;
+        write_column(samples, "body", c.body);
+        write_column(samples, "east", c.east);
+        write_column(samples, "north", c.north);
+        write_column(samples, "time", c.time);
+        write_column(samples, "speed", c.speed);
+        write_column(samples, "energy", c.energy);
+        write_column(samples, "status", c.status);
+        write_column(samples, "canopy", c.canopy);
+        for (std::size_t d = 0; d < c.inputs.size(); ++d)
+          write_column(samples, c.input_names[d], c.inputs[d]);
+      }
+      file.flush(H5F_SCOPE_GLOBAL);
+    }  // closed here, before the rename
+    fs::rename(temporary, final_path);
+  } catch (const H5::Exception& e) {
+    std::error_code ignored;
+    fs::remove(temporary, ignored);
+    throw IoError(path + ": cannot write the results file (" + e.getDetailMsg() + ")");
+  } catch (const fs::filesystem_error& e) {
+    std::error_code ignored;
+    fs::remove(temporary, ignored);
+    throw IoError(path + ": cannot write the results file (" + e.code().message() + ")");
+  }
+}
+
+namespace {
+template <class T>
+T read_attribute(const H5::H5Object& object, const std::string& name) {
+  T value{};
+  object.openAttribute(name).read(type_of<T>(), &value);
+  return value;
+}
+std::string read_string_attribute(const H5::H5Object& object, const std::string& name) {
+  H5::Attribute a = object.openAttribute(name);
+  std::string value;
+  a.read(a.getStrType(), value);
+  return value;
+}
+template <class T>
+std::vector<T> read_column(const H5::Group& group, const std::string& name) {
+  H5::DataSet set = group.openDataSet(name);
+  hsize_t rows = 0;
+  set.getSpace().getSimpleExtentDims(&rows);
+  std::vector<T> values(rows);
+  if (rows > 0) set.read(values.data(), type_of<T>());
+  return values;
+}
+}  // namespace
+
+ResultsFile read_results(const std::string& path) {
+  H5::Exception::dontPrint();
+  if (!std::filesystem::exists(path)) throw IoError(path + ": no such results file");
+  if (H5::H5File::isHdf5(path.c_str()) <= 0) throw IoError(path + ": not an HDF5 results file");
+  ResultsFile r;
+  try {
+    H5::H5File file(path, H5F_ACC_RDONLY);
+    if (!file.attrExists("format_version"))
+      throw IoError(path + ": not a strewn results file (no format_version)");
+    r.format_version = read_attribute<int>(file, "format_version");
+    if (r.format_version != kResultsFormatVersion)
+      throw IoError(path + ": results format version " + std::to_string(r.format_version) +
+                    ", this strewn reads version " + std::to_string(kResultsFormatVersion));
+    r.engine_version = read_string_attribute(file, "engine_version");
+    r.created = read_string_attribute(file, "created");
+    r.scenario_sha256 = read_string_attribute(file, "scenario_sha256");
+    r.seed = read_attribute<std::uint64_t>(file, "seed");
+    r.samples = read_attribute<std::uint64_t>(file, "samples");
+    r.completed = read_attribute<std::uint64_t>(file, "completed");
+    r.failed = read_attribute<std::uint64_t>(file, "failed");
+    {
+      H5::DataSet text = file.openDataSet("scenario");
+      text.read(r.scenario_text, text.getStrType());
+    }
+    H5::Group samples = file.openGroup("samples");
+    {
+      H5::Attribute names = samples.openAttribute("body_names");
+      hsize_t count = 0;
+      names.getSpace().getSimpleExtentDims(&count);
+      std::vector<char*> pointers(count);
+      H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+      names.read(type, pointers.data());
+      for (char* p : pointers) r.body_names.emplace_back(p);
+      H5::DataSet::vlenReclaim(pointers.data(), type, names.getSpace());
+    }
+    if (samples.nameExists("east")) {
+      StudyColumns& c = r.columns;
+      c.body = read_column<std::uint16_t>(samples, "body");
+      c.east = read_column<double>(samples, "east");
+      c.north = read_column<double>(samples, "north");
+      c.time = read_column<double>(samples, "time");
+      c.speed = read_column<double>(samples, "speed");
+      c.energy = read_column<double>(samples, "energy");
+      c.status = read_column<std::uint8_t>(samples, "status");
+      c.canopy = read_column<std::uint8_t>(samples, "canopy");
+      const std::vector<std::string> fixed{"body",  "east",   "north",  "time",
+                                           "speed", "energy", "status", "canopy"};
+      for (hsize_t i = 0; i < samples.getNumObjs(); ++i) {
+        const std::string name = samples.getObjnameByIdx(i);
+        if (std::find(fixed.begin(), fixed.end(), name) != fixed.end()) continue;
+        c.input_names.push_back(name);
+        c.inputs.push_back(read_column<double>(samples, name));
+      }
+    }
+  } catch (const H5::Exception& e) {
+    throw IoError(path + ": cannot read the results file (" + e.getDetailMsg() + ")");
+  }
+  return r;
+}
+
+}  // namespace strewn

@@ -1,0 +1,73 @@
+#pragma once
+// How one sample becomes flights: the sampled inputs' values and the sample's own random choices
+// (canopy state, burst direction, wind perturbation) turned into each body's flight inputs.
+// Immutable once built; per-thread state lives in a Workspace, so nothing is allocated per sample.
+#include <Eigen/Core>
+#include <cstdint>
+#include <span>
+#include <vector>
+
+#include "sampling/input_sampler.hpp"
+#include "scenario/world.hpp"
+
+namespace strewn {
+
+class SampleModel {
+ public:
+  /// Throws ScenarioError for correlations that cannot hold together.
+  SampleModel(const Scenario& scenario, const World& world, std::uint64_t samples);
+
+  [[nodiscard]] const Scenario& scenario() const { return scenario_; }
+  [[nodiscard]] const World& world() const { return world_; }
+  [[nodiscard]] const InputSampler& sampler() const { return sampler_; }
+  [[nodiscard]] std::size_t bodies() const { return bodies_.size(); }
+
+  class Workspace {
+   public:
+    explicit Workspace(const SampleModel& model);
+    /// The sampled inputs' values of the sample last prepared, in the sampler's order.
+    [[nodiscard]] std::span<const double> values() const { return values_; }
+    /// The wind of the sample last prepared.
+    [[nodiscard]] const WindProfile& wind() const { return *wind_; }
+
+   private:
+    friend class SampleModel;
+    InputSampler::Workspace sampler_;
+    std::vector<double> values_, add_east_, add_north_, normals_;
+    WindProfile perturbed_;
+    const WindProfile* wind_ = nullptr;
+  };
+
+  /// Draws sample i's inputs and wind into the workspace (call before flight()).
+  void prepare(std::uint64_t sample, Workspace& workspace) const;
+  /// The flight inputs of body b in the prepared sample, with its canopy state drawn.
+  [[nodiscard]] FlightInputs flight(std::uint64_t sample, std::size_t body,
+                                    const Workspace& w) const;
+
+ private:
+  // A flight parameter: a fixed number, or the value of sampled input `index`.
+  struct Parameter {
+    double fixed = 0.0;
+    int index = -1;
+    [[nodiscard]] double get(std::span<const double> values) const {
+      return index < 0 ? fixed : values[static_cast<std::size_t>(index)];
+    }
+  };
+  Parameter parameter(const std::string& name, const Uncertain& u) const;
+  struct BodyParameters {
+    Parameter mass, cd, area, diameter, sphericity, volume;
+    Parameter deploy_after, deploy_height, fill_time, drag_area, partial_drag_area;
+  };
+
+  const Scenario& scenario_;
+  const World& world_;
+  InputSampler sampler_;
+  std::vector<BodyParameters> bodies_;
+  Parameter altitude_, east_, north_, speed_, track_, climb_, along_, cross_, delay_, burst_;
+  Parameter temperature_offset_, density_factor_, bias_east_, bias_north_;
+  WindProfile base_wind_;             // the profile perturbations apply to
+  std::vector<WindProfile> members_;  // ensemble
+  Eigen::MatrixXd layer_factor_;      // layered: Cholesky factor of exp(-|dz|/L)
+};
+
+}  // namespace strewn

@@ -1,0 +1,59 @@
+#pragma once
+// A Monte Carlo study: every sample flies every body of the scenario; results go into
+// preallocated columns, one row per (sample, body) at row sample * bodies + body. Samples are
+// run in blocks over TBB's threads; each row depends only on its sample index, so the columns
+// are bit-identical for any thread count and block size.
+#include <atomic>
+#include <cstdint>
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "flight/flight.hpp"
+#include "study/sample_model.hpp"
+
+namespace strewn {
+
+struct StudyColumns {
+  std::vector<std::uint16_t> body;   ///< index into the scenario's bodies
+  std::vector<double> east, north;   ///< impact point, m (last position when the flight failed)
+  std::vector<double> time;          ///< s from release
+  std::vector<double> speed;         ///< ground-relative impact speed, m/s
+  std::vector<double> energy;        ///< J
+  std::vector<std::uint8_t> status;  ///< FlightStatus
+  std::vector<std::uint8_t> canopy;  ///< CanopyState
+  std::vector<std::string> input_names;
+  std::vector<std::vector<double>> inputs;  ///< one column per sampled input, per row
+
+  void resize(std::size_t rows, std::size_t input_count);
+  [[nodiscard]] std::size_t rows() const { return east.size(); }
+};
+
+struct StudyOptions {
+  std::uint64_t samples = 0;
+  std::size_t block = 256;  ///< samples per task
+  /// Called from the calling thread now and then with the samples done so far.
+  std::function<void(std::uint64_t done)> progress;
+};
+
+struct StudyResult {
+  StudyColumns columns;
+  std::uint64_t samples = 0;
+  std::uint64_t completed = 0;  ///< rows that landed
+  std::uint64_t failed = 0;     ///< rows that did not
+  std::size_t bodies = 0;
+};
+
+/// Runs the study on the threads TBB may use (limit them with tbb::global_control).
+StudyResult run_study(const SampleModel& model, const StudyOptions& options);
+
+/// One row again, on its own: the same flight inputs and result as in the study.
+struct ReplayedRow {
+  FlightInputs inputs;
+  FlightResult result;
+  std::vector<double> values;  ///< the sampled inputs
+};
+ReplayedRow replay_row(const SampleModel& model, std::uint64_t sample, std::size_t body,
+                       FlightObserver* observer = nullptr, double record_interval = 0.0);
+
+}  // namespace strewn

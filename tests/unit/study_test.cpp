@@ -1,0 +1,202 @@
+// The study engine: reproducibility for any thread count and block size, replay of a single
+// sample, the results file read back, failed flights counted, the per-sample random choices.
+#include <gtest/gtest.h>
+
+#include <tbb/global_control.h>
+#include <algorithm>
+#include <cmath>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+
+#include "core/errors.hpp"
+#include "io/results_file.hpp"
+#include "study/study.hpp"
+
+namespace strewn {
+namespace {
+
+const std::string kStudy = R"(title = "test study"
+[site]
+ground = 200.0
+[wind]
+layers = [ { altitude = 200.0, speed = 4.0, from = 250.0 }, { altitude = 1200.0, speed = 9.0, from = 270.0 } ]
+[wind.uncertainty]
+model = "layered"
+speed_sd = 1.5
+correlation_length = 600.0
+[release]
+altitude = 1400.0
+speed = 40.0
+track = 30.0
+along_error = { dist = "normal", mean = 0.0, sd = 15.0 }
+[release.burst]
+speed = { dist = "uniform", min = 0.0, max = 5.0 }
+[[body]]
+name = "crate"
+mass = { dist = "normal", mean = 60.0, sd = 3.0, min = 40.0 }
+[body.drag]
+model = "area"
+cd = { dist = "uniform", min = 0.9, max = 1.2 }
+area = 0.4
+[body.parachute]
+deploy_after = 2.0
+fill_time = 1.0
+drag_area = 35.0
+partial_probability = 0.2
+partial_drag_area = 5.0
+failure_probability = 0.1
+[[body]]
+name = "strap"
+count = 3
+mass = 0.4
+[body.drag]
+model = "area"
+cd = 1.1
+area = { dist = "lognormal", median = 0.02, sigma = 0.3 }
+[study]
+seed = 4242
+)";
+
+StudyResult run_with(const SampleModel& model, std::uint64_t samples, int threads,
+                     std::size_t block) {
+  tbb::global_control limit(tbb::global_control::max_allowed_parallelism,
+                            static_cast<std::size_t>(threads));
+  StudyOptions options;
+  options.samples = samples;
+  options.block = block;
+  return run_study(model, options);
+}
+
+template <class T>
+bool same_bits(const std::vector<T>& a, const std::vector<T>& b) {
+  return a.size() == b.size() && std::memcmp(a.data(), b.data(), a.size() * sizeof(T)) == 0;
+}
+
+bool same_columns(const StudyColumns& a, const StudyColumns& b) {
+  bool same = same_bits(a.body, b.body) && same_bits(a.east, b.east) &&
+              same_bits(a.north, b.north) && same_bits(a.time, b.time) &&
+              same_bits(a.speed, b.speed) && same_bits(a.energy, b.energy) &&
+              same_bits(a.status, b.status) && same_bits(a.canopy, b.canopy) &&
+              a.inputs.size() == b.inputs.size();
+  for (std::size_t d = 0; same && d < a.inputs.size(); ++d)
+    same = same_bits(a.inputs[d], b.inputs[d]);
+  return same;
+}
+
+TEST(Study, BitIdenticalForAnyThreadCountAndBlockSize) {
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const SampleModel model(s, world, 600);
+  const StudyResult one = run_with(model, 600, 1, 256);
+  ASSERT_EQ(one.columns.rows(), 1200u);  // two bodies per sample
+  for (const auto& [threads, block] : {std::pair{2, 256}, {2, 1}, {2, 7}, {1, 1000}})
+    EXPECT_TRUE(same_columns(one.columns, run_with(model, 600, threads, block).columns))
+        << threads << " threads, blocks of " << block;
+}
+
+TEST(Study, ReplayedSampleEqualsItsRow) {
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const SampleModel model(s, world, 200);
+  const StudyResult result = run_with(model, 200, 2, 16);
+  for (std::uint64_t sample : {0ULL, 17ULL, 199ULL}) {
+    for (std::size_t b = 0; b < 2; ++b) {
+      const ReplayedRow row = replay_row(model, sample, b);
+      const std::size_t r = sample * 2 + b;
+      EXPECT_EQ(row.result.position.x(), result.columns.east[r]);
+      EXPECT_EQ(row.result.position.y(), result.columns.north[r]);
+      EXPECT_EQ(row.result.energy, result.columns.energy[r]);
+      for (std::size_t d = 0; d < row.values.size(); ++d)
+        EXPECT_EQ(row.values[d], result.columns.inputs[d][r]);
+    }
+  }
+}
+
+TEST(Study, ResultsFileReadsBackWithEveryName) {
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const SampleModel model(s, world, 300);
+  const StudyResult result = run_with(model, 300, 2, 64);
+  const auto path = (std::filesystem::temp_directory_path() / "strewn-study-test.h5").string();
+  write_results(path, s, result, {s.study.seed, 2});
+  const ResultsFile file = read_results(path);
+  EXPECT_EQ(file.format_version, kResultsFormatVersion);
+  EXPECT_EQ(file.seed, 4242u);
+  EXPECT_EQ(file.samples, 300u);
+  EXPECT_EQ(file.completed + file.failed, 600u);
+  EXPECT_EQ(file.scenario_text, kStudy);  // exactly as read
+  EXPECT_EQ(file.scenario_sha256, sha256_hex(kStudy));
+  EXPECT_EQ(file.body_names, (std::vector<std::string>{"crate", "strap"}));
+  EXPECT_TRUE(same_columns(file.columns, [&] {
+    StudyColumns c = result.columns;  // the file lists input columns in its own (sorted) order
+    std::vector<std::size_t> order(c.input_names.size());
+    for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+    std::sort(order.begin(), order.end(),
+              [&](auto a, auto b) { return c.input_names[a] < c.input_names[b]; });
+    StudyColumns sorted = c;
+    for (std::size_t i = 0; i < order.size(); ++i) {
+      sorted.input_names[i] = c.input_names[order[i]];
+      sorted.inputs[i] = c.inputs[order[i]];
+    }
+    return sorted;
+  }()));
+  for (const char* name : {"crate.mass", "crate.drag.cd", "release.along_error",
+                           "release.burst.speed", "strap.drag.area"})
+    EXPECT_NE(std::find(file.columns.input_names.begin(), file.columns.input_names.end(), name),
+              file.columns.input_names.end())
+        << name;
+  // No temporary file is left beside it.
+  for (const auto& entry :
+       std::filesystem::directory_iterator(std::filesystem::temp_directory_path()))
+    EXPECT_EQ(entry.path().filename().string().find("strewn-study-test.h5.partial"),
+              std::string::npos);
+  std::filesystem::remove(path);
+}
+
+TEST(Study, RefusesFilesThatAreNotResults) {
+  EXPECT_THROW(read_results("/nonexistent/strewn.h5"), IoError);
+  const auto path = (std::filesystem::temp_directory_path() / "strewn-not-hdf5.h5").string();
+  std::ofstream(path) << "not an HDF5 file";
+  EXPECT_THROW(read_results(path), IoError);
+  std::filesystem::remove(path);
+  EXPECT_THROW(write_results("/nonexistent/folder/out.h5", parse_scenario(kStudy, "s.toml"),
+                             StudyResult{}, {}),
+               IoError);
+}
+
+// Canopy failures and partial openings come out at their probabilities (within five binomial
+// standard errors), and failed flights are counted, never lost.
+TEST(Study, CanopyStatesAndFailedFlightsAreCounted) {
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const std::uint64_t n = 4000;
+  const SampleModel model(s, world, n);
+  const StudyResult r = run_with(model, n, 2, 128);
+  std::uint64_t failed = 0, partial = 0, crates = 0;
+  for (std::size_t i = 0; i < r.columns.rows(); ++i) {
+    if (r.columns.body[i] != 0) continue;
+    ++crates;
+    failed += r.columns.canopy[i] == static_cast<std::uint8_t>(CanopyState::failed);
+    partial += r.columns.canopy[i] == static_cast<std::uint8_t>(CanopyState::partial);
+  }
+  ASSERT_EQ(crates, n);
+  EXPECT_NEAR(static_cast<double>(failed) / n, 0.1, 5.0 * std::sqrt(0.1 * 0.9 / n));
+  EXPECT_NEAR(static_cast<double>(partial) / n, 0.2, 5.0 * std::sqrt(0.2 * 0.8 / n));
+  EXPECT_EQ(r.completed + r.failed, r.columns.rows());
+
+  // A body lighter than the air floats away: every one of its flights fails, and is counted.
+  std::string floating = kStudy;
+  floating.replace(floating.find("mass = 0.4"), 10, "mass = 0.01");
+  floating.replace(floating.find("cd = 1.1"), 8, "cd = 1.1\nvolume = 1.0");
+  const Scenario f = parse_scenario(floating, "floating.toml");
+  const World fw = build_world(f);
+  const SampleModel fm(f, fw, 50);
+  const StudyResult fr = run_with(fm, 50, 2, 8);
+  EXPECT_EQ(fr.failed, 50u);
+  for (std::size_t i = 1; i < fr.columns.rows(); i += 2)
+    EXPECT_NE(fr.columns.status[i], static_cast<std::uint8_t>(FlightStatus::landed));
+}
+
+}  // namespace
+}  // namespace strewn
