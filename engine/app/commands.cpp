@@ -135,14 +135,14 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
       err << line << std::flush;
     };
   }
-  const StudyResult result = run_study(model, options);
-  if (show) err << "\n";
   RunProvenance provenance;
   provenance.seed = scenario.study.seed;
   provenance.threads = a.threads > 0 ? a.threads
                                      : static_cast<int>(tbb::global_control::active_value(
                                            tbb::global_control::max_allowed_parallelism));
-  write_results(path, scenario, result, provenance, scenario.output.samples);
+  const StudyResult result =
+      run_and_write(model, options, path, provenance, scenario.output.samples);
+  if (show) err << "\n";
   const auto summary = study_summary(scenario, world, result);
   if (a.json)
     out << summary.dump(2) << '\n';

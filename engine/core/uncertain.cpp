@@ -70,6 +70,19 @@ Uncertain Uncertain::choice(std::vector<double> values, std::vector<double> weig
   u.kind_ = DistributionKind::choice;
   u.values_ = std::move(values);
   u.weights_ = std::move(weights);
+  if (!u.weights_.empty() && u.weights_.size() != u.values_.size()) return u;  // refused later
+  std::vector<std::size_t> order(u.values_.size());
+  std::iota(order.begin(), order.end(), 0);
+  std::sort(order.begin(), order.end(),
+            [&](std::size_t a, std::size_t b) { return u.values_[a] < u.values_[b]; });
+  double total = 0.0;
+  for (std::size_t i : order) {
+    u.sorted_values_.push_back(u.values_[i]);
+    total += u.weights_.empty() ? 1.0 : u.weights_[i];
+    u.cumulative_.push_back(total);
+  }
+  if (total > 0.0)
+    for (double& c : u.cumulative_) c /= total;
   return u;
 }
 
@@ -189,21 +202,11 @@ double Uncertain::quantile(double p) const {
     case DistributionKind::triangular:
       return boost::math::quantile(boost::math::triangular_distribution<double>(p1_, p2_, p3_), p);
     case DistributionKind::choice: {
-      // Values sorted with their weights; the quantile is the smallest value whose cumulative
-      // weight reaches p (the usual definition for a discrete distribution).
-      std::vector<std::size_t> order(values_.size());
-      std::iota(order.begin(), order.end(), 0);
-      std::sort(order.begin(), order.end(),
-                [&](std::size_t a, std::size_t b) { return values_[a] < values_[b]; });
-      auto weight = [&](std::size_t i) { return weights_.empty() ? 1.0 : weights_[i]; };
-      double total = 0.0;
-      for (std::size_t i : order) total += weight(i);
-      double cumulative = 0.0;
-      for (std::size_t i : order) {
-        cumulative += weight(i);
-        if (cumulative >= p * total * (1.0 - 1e-12)) return values_[i];
-      }
-      return values_[order.back()];
+      // The smallest value whose cumulative weight reaches p (the usual definition for a
+      // discrete distribution).
+      const auto at = std::lower_bound(cumulative_.begin(), cumulative_.end(), p * (1.0 - 1e-12));
+      return sorted_values_[std::min<std::size_t>(
+          static_cast<std::size_t>(at - cumulative_.begin()), sorted_values_.size() - 1)];
     }
   }
   return p1_;

@@ -63,7 +63,10 @@ class Uncertain {
   DistributionKind kind_;
   double p1_ = 0.0, p2_ = 0.0, p3_ = 0.0;  // kind-specific parameters, in the order above
   double lower_ = -inf(), upper_ = inf();  // truncation (normal, lognormal)
-  std::vector<double> values_, weights_;   // choice
+  std::vector<double> values_, weights_;   // choice, as given
+  // choice: the values sorted and their cumulative weights (normalised to end at 1), built once
+  // so that drawing allocates nothing.
+  std::vector<double> sorted_values_, cumulative_;
 };
 
 }  // namespace strewn

@@ -52,20 +52,30 @@ H5::PredType type_of<int>() {
   return H5::PredType::NATIVE_INT;
 }
 
-// One column: chunked (at most 64 Ki rows a chunk), byte-shuffled and deflated.
+// An extendible column: chunked (at most 64 Ki rows a chunk), byte-shuffled and deflated.
 template <class T>
-void write_column(H5::Group& group, const std::string& name, const std::vector<T>& values) {
-  const hsize_t rows = values.size();
-  H5::DataSpace space(1, &rows);
+H5::DataSet create_column(H5::Group& group, const std::string& name, std::size_t rows) {
+  const hsize_t zero = 0, unlimited = H5S_UNLIMITED;
+  H5::DataSpace space(1, &zero, &unlimited);
   H5::DSetCreatPropList properties;
-  if (rows > 0) {
-    const hsize_t chunk = std::min<hsize_t>(rows, 65536);
-    properties.setChunk(1, &chunk);
-    properties.setShuffle();
-    properties.setDeflate(4);
-  }
-  H5::DataSet set = group.createDataSet(name, type_of<T>(), space, properties);
-  if (rows > 0) set.write(values.data(), type_of<T>());
+  const hsize_t chunk = std::clamp<hsize_t>(rows, 1, 65536);
+  properties.setChunk(1, &chunk);
+  properties.setShuffle();
+  properties.setDeflate(1);  // level 1: as small as 4 on these columns, for less CPU
+  return group.createDataSet(name, type_of<T>(), space, properties);
+}
+
+template <class T>
+void append(H5::DataSet& set, const std::vector<T>& values, std::size_t first, std::size_t end) {
+  hsize_t old_size = 0;
+  set.getSpace().getSimpleExtentDims(&old_size);
+  const hsize_t count = end - first;
+  const hsize_t new_size = old_size + count;
+  set.extend(&new_size);
+  H5::DataSpace file_space = set.getSpace();
+  file_space.selectHyperslab(H5S_SELECT_SET, &count, &old_size);
+  H5::DataSpace memory(1, &count);
+  set.write(values.data() + first, type_of<T>(), memory, file_space);
 }
 
 template <class T>
@@ -104,60 +114,128 @@ std::string now_iso8601() {
 
 }  // namespace
 
-void write_results(const std::string& path, const Scenario& scenario, const StudyResult& result,
-                   const RunProvenance& provenance, bool keep_samples) {
-  namespace fs = std::filesystem;
-  const fs::path final_path(path);
-  const fs::path temporary = final_path.parent_path() / (final_path.filename().string() +
-                                                         ".partial-" + std::to_string(::getpid()));
-  H5::Exception::dontPrint();
+struct ResultsWriter::Open {
+  H5::H5File file;
+  H5::Group samples;
+  std::vector<H5::DataSet>
+      columns;  // body, east, north, time, speed, energy, status, canopy, inputs...
+  bool keep_samples = true;
+};
+
+namespace {
+template <class F>
+auto io_guard(const std::string& path, F&& action) {
   try {
-    {
-      H5::H5File file(temporary.string(), H5F_ACC_TRUNC);
-      write_attribute(file, "format_version", kResultsFormatVersion);
-      write_attribute(file, "engine_version", std::string(kEngineVersion));
-      write_attribute(file, "created", now_iso8601());
-      write_attribute(file, "seed", provenance.seed);
-      write_attribute(file, "samples", result.samples);
-      write_attribute(file, "completed", result.completed);
-      write_attribute(file, "failed", result.failed);
-      write_attribute(file, "scenario_sha256", sha256_hex(scenario.text));
-      write_attribute(file, "threads", provenance.threads);
-      {
-        H5::StrType type(H5::PredType::C_S1, std::max<std::size_t>(1, scenario.text.size()));
-        H5::DataSpace scalar;
-        H5::DataSet text = file.createDataSet("scenario", type, scalar);
-        text.write(scenario.text.c_str(), type);
-      }
-      H5::Group samples = file.createGroup("samples");
-      std::vector<std::string> names;
-      for (const auto& b : scenario.bodies) names.push_back(b.name);
-      write_strings(samples, "body_names", names);
-      if (keep_samples) {
-        const StudyColumns& c = result.columns;
-        write_column(samples, "body", c.body);
-        write_column(samples, "east", c.east);
-        write_column(samples, "north", c.north);
-        write_column(samples, "time", c.time);
-        write_column(samples, "speed", c.speed);
-        write_column(samples, "energy", c.energy);
-        write_column(samples, "status", c.status);
-        write_column(samples, "canopy", c.canopy);
-        for (std::size_t d = 0; d < c.inputs.size(); ++d)
-          write_column(samples, c.input_names[d], c.inputs[d]);
-      }
-      file.flush(H5F_SCOPE_GLOBAL);
-    }  // closed here, before the rename
-    fs::rename(temporary, final_path);
+    return action();
   } catch (const H5::Exception& e) {
-    std::error_code ignored;
-    fs::remove(temporary, ignored);
     throw IoError(path + ": cannot write the results file (" + e.getDetailMsg() + ")");
-  } catch (const fs::filesystem_error& e) {
-    std::error_code ignored;
-    fs::remove(temporary, ignored);
+  } catch (const std::filesystem::filesystem_error& e) {
     throw IoError(path + ": cannot write the results file (" + e.code().message() + ")");
   }
+}
+}  // namespace
+
+ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
+                             const std::vector<std::string>& input_names, std::size_t rows,
+                             bool keep_samples)
+    : path_(path) {
+  namespace fs = std::filesystem;
+  const fs::path final_path(path);
+  temporary_ = (final_path.parent_path() /
+                (final_path.filename().string() + ".partial-" + std::to_string(::getpid())))
+                   .string();
+  H5::Exception::dontPrint();
+  io_guard(path_, [&] {
+    auto open = std::make_unique<Open>();
+    open->keep_samples = keep_samples;
+    open->file = H5::H5File(temporary_, H5F_ACC_TRUNC);
+    H5::H5File& file = open->file;
+    write_attribute(file, "format_version", kResultsFormatVersion);
+    write_attribute(file, "engine_version", std::string(kEngineVersion));
+    write_attribute(file, "created", now_iso8601());
+    write_attribute(file, "scenario_sha256", sha256_hex(scenario.text));
+    {
+      H5::StrType type(H5::PredType::C_S1, std::max<std::size_t>(1, scenario.text.size()));
+      H5::DataSpace scalar;
+      H5::DataSet text = file.createDataSet("scenario", type, scalar);
+      text.write(scenario.text.c_str(), type);
+    }
+    open->samples = file.createGroup("samples");
+    std::vector<std::string> names;
+    for (const auto& b : scenario.bodies) names.push_back(b.name);
+    write_strings(open->samples, "body_names", names);
+    if (keep_samples) {
+      auto& c = open->columns;
+      c.push_back(create_column<std::uint16_t>(open->samples, "body", rows));
+      for (const char* name : {"east", "north", "time", "speed", "energy"})
+        c.push_back(create_column<double>(open->samples, name, rows));
+      c.push_back(create_column<std::uint8_t>(open->samples, "status", rows));
+      c.push_back(create_column<std::uint8_t>(open->samples, "canopy", rows));
+      for (const auto& name : input_names)
+        c.push_back(create_column<double>(open->samples, name, rows));
+    }
+    open_ = std::move(open);
+    return 0;
+  });
+}
+
+ResultsWriter::~ResultsWriter() {
+  if (!open_) return;
+  open_.reset();  // closes the file
+  std::error_code ignored;
+  std::filesystem::remove(temporary_, ignored);
+}
+
+void ResultsWriter::write(const StudyColumns& c, std::size_t first, std::size_t end) {
+  if (!open_ || !open_->keep_samples || end <= first) return;
+  io_guard(path_, [&] {
+    auto& d = open_->columns;
+    append(d[0], c.body, first, end);
+    append(d[1], c.east, first, end);
+    append(d[2], c.north, first, end);
+    append(d[3], c.time, first, end);
+    append(d[4], c.speed, first, end);
+    append(d[5], c.energy, first, end);
+    append(d[6], c.status, first, end);
+    append(d[7], c.canopy, first, end);
+    for (std::size_t k = 0; k < c.inputs.size(); ++k) append(d[8 + k], c.inputs[k], first, end);
+    return 0;
+  });
+}
+
+void ResultsWriter::finish(const StudyResult& result, const RunProvenance& provenance) {
+  io_guard(path_, [&] {
+    H5::H5File& file = open_->file;
+    write_attribute(file, "seed", provenance.seed);
+    write_attribute(file, "samples", result.samples);
+    write_attribute(file, "completed", result.completed);
+    write_attribute(file, "failed", result.failed);
+    write_attribute(file, "threads", provenance.threads);
+    file.flush(H5F_SCOPE_GLOBAL);
+    open_.reset();  // closed before the rename
+    std::filesystem::rename(temporary_, path_);
+    return 0;
+  });
+}
+
+void write_results(const std::string& path, const Scenario& scenario, const StudyResult& result,
+                   const RunProvenance& provenance, bool keep_samples) {
+  ResultsWriter writer(path, scenario, result.columns.input_names, result.columns.rows(),
+                       keep_samples);
+  writer.write(result.columns, 0, result.columns.rows());
+  writer.finish(result, provenance);
+}
+
+StudyResult run_and_write(const SampleModel& model, StudyOptions options, const std::string& path,
+                          const RunProvenance& provenance, bool keep_samples) {
+  std::vector<std::string> names;
+  for (const auto& input : model.sampler().inputs()) names.push_back(input.name);
+  ResultsWriter writer(path, model.scenario(), names, options.samples * model.bodies(),
+                       keep_samples);
+  options.sink = &writer;
+  const StudyResult result = run_study(model, options);
+  writer.finish(result, provenance);
+  return result;
 }
 
 namespace {

@@ -12,7 +12,9 @@ RankCorrelation resolve(const Scenario& s) {
   auto index = [&](const std::string& name) {
     for (std::size_t i = 0; i < s.sampled_inputs.size(); ++i)
       if (s.sampled_inputs[i].name == name) return i;
-    throw ScenarioError({{s.path, "correlation", 0, "\"" + name + "\" is not a sampled input"}});
+    throw ScenarioError(
+        {{s.path, "correlation", 0,
+          "\"" + name + "\" is not a sampled input"}});  // the loader reports it first
   };
   for (const auto& c : s.correlations) pairs.push_back({index(c.first), index(c.second), c.rho});
   try {
@@ -21,7 +23,7 @@ RankCorrelation resolve(const Scenario& s) {
     std::vector<Problem> problems;
     for (std::size_t i : e.pairs) {
       const auto& c = s.correlations[i];
-      problems.push_back({s.path, "correlation[" + std::to_string(i) + "]", 0,
+      problems.push_back({s.path, "correlation[" + std::to_string(i) + "].between", c.line,
                           "the correlations cannot hold together (their matrix is not positive "
                           "definite); this pair between \"" +
                               c.first + "\" and \"" + c.second + "\" is one of those in conflict"});

@@ -586,6 +586,7 @@ class Loader {
         diagnostics_.add(c.key_path("between"), line_of(between),
                          "expected two sampled input names");
       } else {
+        spec.line = line_of(between);
         spec.first = between->get(0)->as_string()->get();
         spec.second = between->get(1)->as_string()->get();
         correlation_lines_.push_back(line_of(between));

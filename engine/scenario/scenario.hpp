@@ -86,6 +86,7 @@ struct BodySpec {
 struct CorrelationSpec {
   std::string first, second;
   double rho = 0.0;
+  long line = 0;  ///< where it stands in the scenario file, for messages
 };
 
 enum class SamplingPlan { random, latin, sobol };

@@ -1,8 +1,11 @@
 #include "study/study.hpp"
 
-#include <tbb/blocked_range.h>
 #include <tbb/parallel_for.h>
+#include <tbb/task_arena.h>
+
 #include <algorithm>
+#include <atomic>
+#include <mutex>
 
 namespace strewn {
 
@@ -62,20 +65,55 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
     }
   };
 
-  // Blocks are handed to TBB in rounds so that the calling thread can report progress between
-  // rounds; the rows each block writes do not depend on the rounds.
+  // Blocks are grouped in rounds of 64. The thread that
+  // completes a round writes every finished round in order (the "combining" pattern: whoever
+  // holds the writer lock drains the queue, and rechecks after letting go), so writing runs beside
+  // flying on the threads allowed, with no barrier between rounds. Each row depends only on its
+  // sample index, never on which thread or round handled it.
   const std::uint64_t block = std::max<std::size_t>(1, options.block);
-  const std::uint64_t round = block * 64;
-  for (std::uint64_t start = 0; start < options.samples; start += round) {
-    const std::uint64_t end = std::min(options.samples, start + round);
-    const std::uint64_t blocks = (end - start + block - 1) / block;
-    tbb::parallel_for(tbb::blocked_range<std::uint64_t>(0, blocks, 1),
-                      [&](const tbb::blocked_range<std::uint64_t>& range) {
-                        for (std::uint64_t k = range.begin(); k != range.end(); ++k)
-                          run_block(start + k * block, std::min(end, start + (k + 1) * block));
-                      });
-    if (options.progress) options.progress(end);
+  const std::uint64_t blocks = (options.samples + block - 1) / block;
+  constexpr std::uint64_t kBlocksPerRound = 64;
+  const std::uint64_t rounds = (blocks + kBlocksPerRound - 1) / kBlocksPerRound;
+  std::vector<std::atomic<std::uint64_t>> remaining(rounds);
+  std::vector<std::atomic<bool>> finished(rounds);
+  for (std::uint64_t r = 0; r < rounds; ++r) {
+    remaining[r] = std::min(kBlocksPerRound, blocks - r * kBlocksPerRound);
+    finished[r] = false;
   }
+  std::atomic<std::uint64_t> next_round{0};
+  std::mutex writer;
+  auto drain = [&] {
+    while (true) {
+      std::unique_lock<std::mutex> lock(writer, std::try_to_lock);
+      if (!lock.owns_lock()) return;  // the holder rechecks after letting go
+      for (std::uint64_t r = next_round.load(); r < rounds && finished[r].load();
+           r = next_round.load()) {
+        const std::uint64_t first = r * kBlocksPerRound * block;
+        const std::uint64_t end = std::min(options.samples, (r + 1) * kBlocksPerRound * block);
+        if (options.sink) options.sink->write(c, first * bodies, end * bodies);
+        if (options.progress) options.progress(end);
+        next_round = r + 1;
+      }
+      lock.unlock();
+      const std::uint64_t r = next_round.load();
+      if (!(r < rounds && finished[r].load())) return;
+    }
+  };
+  // One worker per thread allowed, each taking the next block in index order, so rounds finish
+  // nearly in order and are written while later ones fly.
+  std::atomic<std::uint64_t> next_block{0};
+  const int workers = tbb::this_task_arena::max_concurrency();
+  tbb::parallel_for(0, workers, [&](int) {
+    for (std::uint64_t k = next_block++; k < blocks; k = next_block++) {
+      run_block(k * block, std::min(options.samples, (k + 1) * block));
+      const std::uint64_t r = k / kBlocksPerRound;
+      if (--remaining[r] == 0) {
+        finished[r] = true;
+        drain();
+      }
+    }
+  });
+  drain();  // nothing can be left, but make sure
   for (std::uint8_t st : c.status) (st == 0 ? result.completed : result.failed)++;
   return result;
 }

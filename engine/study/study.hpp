@@ -29,11 +29,23 @@ struct StudyColumns {
   [[nodiscard]] std::size_t rows() const { return east.size(); }
 };
 
+/// Receives the rows of finished rounds of samples, in order, while later rounds are computed:
+/// the thread that completes a round writes it (one call at a time, on whichever of the study's
+/// threads that is), so output overlaps computation within the thread limit.
+class RowSink {
+ public:
+  virtual ~RowSink() = default;
+  /// Rows [first, end) of `columns` are final.
+  virtual void write(const StudyColumns& columns, std::size_t first, std::size_t end) = 0;
+};
+
 struct StudyOptions {
   std::uint64_t samples = 0;
   std::size_t block = 256;  ///< samples per task
-  /// Called from the calling thread now and then with the samples done so far.
+  /// Called after each round, in order and one call at a time (from one of the study's threads),
+  /// with the samples done so far.
   std::function<void(std::uint64_t done)> progress;
+  RowSink* sink = nullptr;  ///< optional
 };
 
 struct StudyResult {

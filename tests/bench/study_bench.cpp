@@ -41,8 +41,8 @@ void study(benchmark::State& state, int threads) {
   for (auto _ : state) {
     StudyOptions options;
     options.samples = kSamples;
-    const StudyResult r = run_study(s.model, options);
-    write_results(path, s.scenario, r, {1, threads});
+    const StudyResult r =
+        run_and_write(s.model, options, path, {1, threads});  // as `strewn run` does
     benchmark::DoNotOptimize(r.completed);
   }
   std::filesystem::remove(path);
@@ -73,9 +73,22 @@ void BM_BareFlightLoop(benchmark::State& state) {
                          benchmark::Counter::kIsRate);
 }
 
-BENCHMARK(BM_BareFlightLoop)->Unit(benchmark::kMillisecond)->Iterations(3)->UseRealTime();
-BENCHMARK(BM_Study_1_thread)->Unit(benchmark::kMillisecond)->Iterations(3)->UseRealTime();
-BENCHMARK(BM_Study_2_threads)->Unit(benchmark::kMillisecond)->Iterations(3)->UseRealTime();
+// Medians of five repetitions of two runs each: the shared host makes single runs vary.
+BENCHMARK(BM_BareFlightLoop)
+    ->Unit(benchmark::kMillisecond)
+    ->Iterations(2)
+    ->Repetitions(5)
+    ->UseRealTime();
+BENCHMARK(BM_Study_1_thread)
+    ->Unit(benchmark::kMillisecond)
+    ->Iterations(2)
+    ->Repetitions(5)
+    ->UseRealTime();
+BENCHMARK(BM_Study_2_threads)
+    ->Unit(benchmark::kMillisecond)
+    ->Iterations(2)
+    ->Repetitions(5)
+    ->UseRealTime();
 
 }  // namespace
 }  // namespace strewn

@@ -171,6 +171,28 @@ TEST(CliRun, ReplayCheckAndRefusals) {
   EXPECT_NE(check.out.find("drone.drag.area"), std::string::npos);
   EXPECT_NE(check.out.find("wind.bias_east"), std::string::npos);
 
+  // Correlations that cannot hold together: status 2 with file, line and key path, nothing written.
+  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-correlation";
+  std::filesystem::create_directories(dir);
+  const auto bad = (dir / "bad.toml").string();
+  std::ofstream(bad)
+      << "[release]\naltitude = 500.0\n[[body]]\nmass = { dist = \"normal\", mean = 5.0, sd = 0.5 "
+         "}\n"
+         "[body.drag]\nmodel = \"area\"\ncd = { dist = \"uniform\", min = 0.9, max = 1.1 }\n"
+         "area = { dist = \"uniform\", min = 0.1, max = 0.2 }\n"
+         "[[correlation]]\nbetween = [\"body.mass\", \"body.drag.cd\"]\nrho = 0.95\n"
+         "[[correlation]]\nbetween = [\"body.drag.cd\", \"body.drag.area\"]\nrho = 0.95\n"
+         "[[correlation]]\nbetween = [\"body.mass\", \"body.drag.area\"]\nrho = -0.95\n";
+  const CommandResult refused = run({"run", bad, "-o", (dir / "out.h5").string(), "--quiet"});
+  EXPECT_EQ(refused.status, 2);
+  EXPECT_NE(refused.err.find(
+                "bad.toml:16: correlation[2].between: the correlations cannot hold together"),
+            std::string::npos)
+      << refused.err;
+  EXPECT_FALSE(std::filesystem::exists(dir / "out.h5"));
+  EXPECT_EQ(run({"check", bad}).status, 2);
+  std::filesystem::remove_all(dir);
+
   // An output folder that does not exist: status 3 before any flight, nothing written.
   EXPECT_EQ(run({"run", scenario, "-n", "10", "-o", "/nonexistent-folder/x.h5", "--quiet"}).status,
             3);
