@@ -23,7 +23,7 @@ RankCorrelation resolve(const Scenario& s) {
     std::vector<Problem> problems;
     for (std::size_t i : e.pairs) {
       const auto& c = s.correlations[i];
-      problems.push_back({s.path, "correlation[" + std::to_string(i) + "].between", c.line,
+      problems.push_back({s.path, c.key_path, c.line,
                           "the correlations cannot hold together (their matrix is not positive "
                           "definite); this pair between \"" +
                               c.first + "\" and \"" + c.second + "\" is one of those in conflict"});

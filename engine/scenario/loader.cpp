@@ -586,11 +586,10 @@ class Loader {
         diagnostics_.add(c.key_path("between"), line_of(between),
                          "expected two sampled input names");
       } else {
+        spec.key_path = c.key_path("between");
         spec.line = line_of(between);
         spec.first = between->get(0)->as_string()->get();
         spec.second = between->get(1)->as_string()->get();
-        correlation_lines_.push_back(line_of(between));
-        correlation_paths_.push_back(c.key_path("between"));
       }
       spec.rho = c.number("rho", kCorrelation, true).value_or(0.0);
       c.finish();
@@ -619,8 +618,7 @@ class Loader {
     // Correlations must name sampled inputs, each pair once.
     std::vector<std::string> names;
     for (const auto& s : scenario_.sampled_inputs) names.push_back(s.name);
-    for (std::size_t i = 0; i < scenario_.correlations.size(); ++i) {
-      const auto& c = scenario_.correlations[i];
+    for (const auto& c : scenario_.correlations) {
       for (const auto* name : {&c.first, &c.second}) {
         if (std::find(names.begin(), names.end(), *name) != names.end()) continue;
         std::string message = "\"" + *name + "\" is not a sampled input";
@@ -630,11 +628,9 @@ class Loader {
         else
           message +=
               " (sampled inputs are those given as distributions; `strewn check` lists them)";
-        diagnostics_.add(correlation_paths_[i], correlation_lines_[i], message);
+        diagnostics_.add(c.key_path, c.line, message);
       }
-      if (c.first == c.second)
-        diagnostics_.add(correlation_paths_[i], correlation_lines_[i],
-                         "names the same input twice");
+      if (c.first == c.second) diagnostics_.add(c.key_path, c.line, "names the same input twice");
     }
   }
 
@@ -693,8 +689,6 @@ class Loader {
   std::string path_;
   std::filesystem::path folder_;
   Scenario scenario_;
-  std::vector<long> correlation_lines_;
-  std::vector<std::string> correlation_paths_;
 };
 
 }  // namespace

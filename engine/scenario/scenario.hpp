@@ -86,7 +86,8 @@ struct BodySpec {
 struct CorrelationSpec {
   std::string first, second;
   double rho = 0.0;
-  long line = 0;  ///< where it stands in the scenario file, for messages
+  std::string key_path;  ///< e.g. "correlation[2].between", for messages
+  long line = 0;         ///< where it stands in the scenario file, for messages
 };
 
 enum class SamplingPlan { random, latin, sobol };
