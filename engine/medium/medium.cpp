@@ -133,9 +133,12 @@ Medium Medium::uniform(double density, double viscosity, double sound_speed) {
 Air Medium::air(double altitude, const MediumConditions& c) const {
   if (kind_ == Kind::uniform)
     return {c.density_factor * uniform_density_, uniform_viscosity_, uniform_sound_speed_};
-  const double t = temperature(altitude, c);
-  // Density by the same path as density(), so every drag model sees the same air.
-  return {density(altitude, c), us1976::sutherland_viscosity(t), us1976::sound_speed(t)};
+  // One cell look-up for all three; the density by the same path as density(), so every drag
+  // model sees the same air.
+  const Location at = locate(altitude);
+  const double t = on_cell(at.cell.temperature, at.cell.temperature_slope, at.f, at.cell.split) +
+                   c.temperature_offset;
+  return {density_at(at, c), us1976::sutherland_viscosity(t), us1976::sound_speed(t)};
 }
 
 double Medium::temperature(double altitude, const MediumConditions& c) const {

@@ -73,12 +73,7 @@ class Medium {
   /// Density only (the cheap query of the area drag model), kg/m^3.
   [[nodiscard]] double density(double altitude, const MediumConditions& c) const {
     if (kind_ == Kind::uniform) return c.density_factor * uniform_density_;
-    const auto [cell, f] = locate(altitude);
-    if (c.temperature_offset == 0.0)  // a standard day: the tabulated density itself
-      return c.density_factor * on_cell(cell.density, cell.density_slope, f, cell.split);
-    const double t = on_cell(cell.temperature, cell.temperature_slope, f, cell.split);
-    const double p = on_cell(cell.pressure, cell.pressure_slope, f, cell.split);
-    return c.density_factor * p / (kGasConstant * (t + c.temperature_offset));
+    return density_at(locate(altitude), c);
   }
 
   /// Density, viscosity and speed of sound.
@@ -127,6 +122,15 @@ class Medium {
     const double low = value[0] + f * slope[0];
     const double high = value[1] + (f - split) * slope[1];
     return f >= split ? high : low;
+  }
+  // The density at a located point of a gas: the one path for density() and air().
+  [[nodiscard]] double density_at(const Location& at, const MediumConditions& c) const {
+    const Cell& cell = at.cell;
+    if (c.temperature_offset == 0.0)  // a standard day: the tabulated density itself
+      return c.density_factor * on_cell(cell.density, cell.density_slope, at.f, cell.split);
+    const double t = on_cell(cell.temperature, cell.temperature_slope, at.f, cell.split);
+    const double p = on_cell(cell.pressure, cell.pressure_slope, at.f, cell.split);
+    return c.density_factor * p / (kGasConstant * (t + c.temperature_offset));
   }
   // Builds the cells from an exact model (T, p at an altitude) and its kinks (altitudes).
   template <class Model>
