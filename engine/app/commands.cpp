@@ -80,21 +80,19 @@ int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& ou
           {p.point.time, p.point.position.x(), p.point.position.y(), p.point.position.z()});
     const auto& r = row.result;
     all_landed = all_landed && r.status == FlightStatus::landed;
-    j["bodies"].push_back(
-        {{"body", s.bodies[b].name},
-         {"status", to_string(r.status)},
-         {"canopy",
-          to_string(row.inputs.body.has_canopy ? row.inputs.body.canopy.state : CanopyState::none)},
-         {"impact",
-          {{"time", r.time},
-           {"east", r.position.x()},
-           {"north", r.position.y()},
-           {"speed", r.speed},
-           {"energy", r.energy},
-           {"angle", r.angle}}},
-         {"inputs", inputs},
-         {"trajectory_columns", {"time", "east", "north", "altitude"}},
-         {"trajectory", points}});
+    j["bodies"].push_back({{"body", s.bodies[b].name},
+                           {"status", to_string(r.status)},
+                           {"canopy", to_string(row.inputs.body.canopy_state())},
+                           {"impact",
+                            {{"time", r.time},
+                             {"east", r.position.x()},
+                             {"north", r.position.y()},
+                             {"speed", r.speed},
+                             {"energy", r.energy},
+                             {"angle", r.angle}}},
+                           {"inputs", inputs},
+                           {"trajectory_columns", {"time", "east", "north", "altitude"}},
+                           {"trajectory", points}});
   }
   out << j.dump(2) << '\n';
   return all_landed ? kExitDone : kExitFailure;

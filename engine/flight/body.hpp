@@ -38,6 +38,11 @@ struct Body {
   double volume = 0.0;  ///< m^3; > 0 enables buoyancy, 0 means unknown (no buoyancy)
   bool has_canopy = false;
   Canopy canopy;
+
+  /// What the canopy did on this flight (none without a parachute).
+  [[nodiscard]] CanopyState canopy_state() const {
+    return has_canopy ? canopy.state : CanopyState::none;
+  }
 };
 
 /// Position (m, local frame, z above mean sea level) and ground-relative velocity (m/s) at release.

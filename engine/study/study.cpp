@@ -58,36 +58,32 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
         c.speed[row] = r.speed;
         c.energy[row] = r.energy;
         c.status[row] = static_cast<std::uint8_t>(r.status);
-        c.canopy[row] = static_cast<std::uint8_t>(in.body.has_canopy ? in.body.canopy.state
-                                                                     : CanopyState::none);
+        c.canopy[row] = static_cast<std::uint8_t>(in.body.canopy_state());
         for (std::size_t d = 0; d < dims; ++d) c.inputs[d][row] = w.values()[d];
       }
     }
   };
 
-  // Blocks are grouped in rounds of 64. The thread that
-  // completes a round writes every finished round in order (the "combining" pattern: whoever
-  // holds the writer lock drains the queue, and rechecks after letting go), so writing runs beside
-  // flying on the threads allowed, with no barrier between rounds. Each row depends only on its
-  // sample index, never on which thread or round handled it.
+  // Blocks are grouped in rounds of 64. The thread that completes a round writes every finished
+  // round in order (the "combining" pattern: whoever holds the writer lock drains the queue, and
+  // rechecks after letting go), so writing runs beside flying on the threads allowed, with no
+  // barrier between rounds. Each row depends only on its sample index, never on which thread or
+  // round handled it.
   const std::uint64_t block = std::max<std::size_t>(1, options.block);
   const std::uint64_t blocks = (options.samples + block - 1) / block;
   constexpr std::uint64_t kBlocksPerRound = 64;
   const std::uint64_t rounds = (blocks + kBlocksPerRound - 1) / kBlocksPerRound;
-  std::vector<std::atomic<std::uint64_t>> remaining(rounds);
-  std::vector<std::atomic<bool>> finished(rounds);
-  for (std::uint64_t r = 0; r < rounds; ++r) {
+  std::vector<std::atomic<std::uint64_t>> remaining(rounds);  // blocks still flying; 0: finished
+  for (std::uint64_t r = 0; r < rounds; ++r)
     remaining[r] = std::min(kBlocksPerRound, blocks - r * kBlocksPerRound);
-    finished[r] = false;
-  }
+  auto finished = [&](std::uint64_t r) { return r < rounds && remaining[r].load() == 0; };
   std::atomic<std::uint64_t> next_round{0};
   std::mutex writer;
   auto drain = [&] {
     while (true) {
       std::unique_lock<std::mutex> lock(writer, std::try_to_lock);
       if (!lock.owns_lock()) return;  // the holder rechecks after letting go
-      for (std::uint64_t r = next_round.load(); r < rounds && finished[r].load();
-           r = next_round.load()) {
+      for (std::uint64_t r = next_round.load(); finished(r); r = next_round.load()) {
         const std::uint64_t first = r * kBlocksPerRound * block;
         const std::uint64_t end = std::min(options.samples, (r + 1) * kBlocksPerRound * block);
         if (options.sink) options.sink->write(c, first * bodies, end * bodies);
@@ -95,8 +91,7 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
         next_round = r + 1;
       }
       lock.unlock();
-      const std::uint64_t r = next_round.load();
-      if (!(r < rounds && finished[r].load())) return;
+      if (!finished(next_round.load())) return;
     }
   };
   // One worker per thread allowed, each taking the next block in index order, so rounds finish
@@ -107,10 +102,7 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
     for (std::uint64_t k = next_block++; k < blocks; k = next_block++) {
       run_block(k * block, std::min(options.samples, (k + 1) * block));
       const std::uint64_t r = k / kBlocksPerRound;
-      if (--remaining[r] == 0) {
-        finished[r] = true;
-        drain();
-      }
+      if (--remaining[r] == 0) drain();
     }
   });
   drain();  // nothing can be left, but make sure
