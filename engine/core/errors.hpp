@@ -35,12 +35,6 @@ class UsageError : public std::runtime_error {
   using std::runtime_error::runtime_error;
 };
 
-/// A numerical failure that cannot be reported as a per-flight status (exit status 3).
-class IntegrationError : public std::runtime_error {
- public:
-  using std::runtime_error::runtime_error;
-};
-
 /// An input/output failure: unreadable or unwritable files (exit status 3).
 class IoError : public std::runtime_error {
  public:

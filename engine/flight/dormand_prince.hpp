@@ -115,7 +115,6 @@ class DormandPrince5 {
 
   [[nodiscard]] double t() const { return t_; }
   [[nodiscard]] const State& y() const { return y_; }
-  [[nodiscard]] const State& derivative() const { return k1_; }
   [[nodiscard]] double t_previous() const { return t_previous_; }
   [[nodiscard]] const State& y_previous() const { return y_previous_; }
   [[nodiscard]] double proposed_step() const { return h_; }

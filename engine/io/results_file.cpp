@@ -123,10 +123,11 @@ struct ResultsWriter::Open {
 };
 
 namespace {
+// Runs an HDF5 or file-system action, turning its failures into IoError naming the path.
 template <class F>
-auto io_guard(const std::string& path, F&& action) {
+void io_guard(const std::string& path, F&& action) {
   try {
-    return action();
+    action();
   } catch (const H5::Exception& e) {
     throw IoError(path + ": cannot write the results file (" + e.getDetailMsg() + ")");
   } catch (const std::filesystem::filesystem_error& e) {
@@ -175,7 +176,6 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
         c.push_back(create_column<double>(open->samples, name, rows));
     }
     open_ = std::move(open);
-    return 0;
   });
 }
 
@@ -199,7 +199,6 @@ void ResultsWriter::write(const StudyColumns& c, std::size_t first, std::size_t 
     append(d[6], c.status, first, end);
     append(d[7], c.canopy, first, end);
     for (std::size_t k = 0; k < c.inputs.size(); ++k) append(d[8 + k], c.inputs[k], first, end);
-    return 0;
   });
 }
 
@@ -214,7 +213,6 @@ void ResultsWriter::finish(const StudyResult& result, const RunProvenance& prove
     file.flush(H5F_SCOPE_GLOBAL);
     open_.reset();  // closed before the rename
     std::filesystem::rename(temporary_, path_);
-    return 0;
   });
 }
 
