@@ -173,7 +173,8 @@ class DormandPrince5 {
   }
 
  public:
-  /// The controller's log2 and 2^x (exposed for their accuracy test).
+  /// The controller's log2 and 2^x (exposed for their accuracy test,
+  /// Integrator.StepSizeArithmeticIsAccurateEnough).
   static double step_log2(double x) { return rough_log2(x); }
   static double step_exp2(double x) { return rough_exp2(x); }
 
