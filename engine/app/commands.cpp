@@ -13,6 +13,8 @@
 #include <filesystem>
 
 #include "io/atmosphere_table.hpp"
+#include "io/footprint_report.hpp"
+#include "io/report_files.hpp"
 #include "io/results_file.hpp"
 #include "io/study_report.hpp"
 #include "io/trace_report.hpp"
@@ -133,19 +135,17 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
       err << line << std::flush;
     };
   }
-  RunProvenance provenance;
-  provenance.seed = scenario.study.seed;
-  provenance.threads = a.threads > 0 ? a.threads
-                                     : static_cast<int>(tbb::global_control::active_value(
-                                           tbb::global_control::max_allowed_parallelism));
-  const StudyResult result =
-      run_and_write(model, options, path, provenance, scenario.output.samples);
+  const int threads = a.threads > 0 ? a.threads
+                                    : static_cast<int>(tbb::global_control::active_value(
+                                          tbb::global_control::max_allowed_parallelism));
+  StudyRun run = run_and_write(model, world, options, path, threads, scenario.output.samples);
   if (show) err << "\n";
-  const auto summary = study_summary(scenario, world, result);
+  run.record.file = path;
   if (a.json)
-    out << summary.dump(2) << '\n';
+    out << record_json(run.record, false).dump(2) << '\n';
   else
-    write_study_text(out, summary, path);
+    write_record_text(out, run.record);
+  const StudyResult& result = run.result;
   const double failed_share =
       static_cast<double>(result.failed) /
       static_cast<double>(std::max<std::uint64_t>(1, result.failed + result.completed));
@@ -161,6 +161,37 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
     err << (result.failed > 10 ? " ...\n" : "\n");
     return kExitFailure;
   }
+  return kExitDone;
+}
+
+struct ReportArguments {
+  std::string results;
+  bool json = false;
+  std::string geojson, svg, html, csv;
+  bool impacts = false;
+};
+
+int run_report(const ReportArguments& a, std::ostream& out) {
+  const bool need_samples = !a.geojson.empty() && a.impacts;
+  ResultsFile file = read_results(a.results, need_samples);
+  if (need_samples && !file.has_samples)
+    throw UsageError(a.results +
+                     ": --impacts needs the per-sample table, which this study did "
+                     "not keep (output.samples = false)");
+  const StudyRecord& record = file.record;
+  if (!a.geojson.empty())
+    write_report_file(a.geojson, geojson_text(record, need_samples ? &file.columns : nullptr));
+  if (!a.svg.empty()) write_report_file(a.svg, map_svg(record));
+  if (!a.html.empty()) write_report_file(a.html, html_report(record));
+  if (!a.csv.empty()) write_report_file(a.csv, figures_csv(record));
+  const bool files = !a.geojson.empty() || !a.svg.empty() || !a.html.empty() || !a.csv.empty();
+  if (a.json)
+    out << record_json(record, true).dump(2) << '\n';
+  else if (!files)
+    write_record_text(out, record);
+  else
+    for (const std::string* f : {&a.geojson, &a.svg, &a.html, &a.csv})
+      if (!f->empty()) out << "wrote " << *f << '\n';
   return kExitDone;
 }
 
@@ -199,6 +230,19 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out, std::
   run_cmd->add_flag("--quiet", run.quiet, "No progress line");
   run_cmd->add_flag("--json", run.json, "Print the summary as JSON");
 
+  ReportArguments report;
+  auto* report_cmd = app.add_subcommand(
+      "report", "Show a results file's footprint: summary, JSON, GeoJSON, CSV, SVG map, HTML page");
+  report_cmd->add_option("RESULTS", report.results, "Results file (HDF5) written by run")
+      ->required();
+  report_cmd->add_flag("--json", report.json, "Print the summary as JSON");
+  report_cmd->add_option("--geojson", report.geojson,
+                         "Write the footprint as GeoJSON (needs site.latitude and longitude)");
+  report_cmd->add_flag("--impacts", report.impacts, "Add every impact point to the GeoJSON");
+  report_cmd->add_option("--svg", report.svg, "Write the map as SVG");
+  report_cmd->add_option("--html", report.html, "Write a self-contained HTML report");
+  report_cmd->add_option("--csv", report.csv, "Write every figure as CSV");
+
   std::string check_scenario;
   bool check_json = false;
   auto* check_cmd = app.add_subcommand(
@@ -225,6 +269,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out, std::
   try {
     if (*trace_cmd) return run_trace(trace, out);
     if (*run_cmd) return run_study_command(run, out, err);
+    if (*report_cmd) return run_report(report, out);
     if (*check_cmd) {
       const Scenario scenario = load_scenario(check_scenario);
       (void)SampleModel(scenario, build_world(scenario), 1);  // correlations hold together
@@ -242,6 +287,9 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out, std::
     for (const auto& problem : e.problems()) err << "error: " << problem.describe() << '\n';
     err << e.problems().size() << (e.problems().size() == 1 ? " problem" : " problems")
         << " found; nothing was run.\n";
+    return kExitInvalid;
+  } catch (const InputFileError& e) {
+    err << "error: " << e.what() << '\n';
     return kExitInvalid;
   } catch (const UsageError& e) {
     err << "error: " << e.what() << '\n';

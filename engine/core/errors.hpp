@@ -35,6 +35,13 @@ class UsageError : public std::runtime_error {
   using std::runtime_error::runtime_error;
 };
 
+/// An input file that is not what it must be: a results file that is missing, truncated, of
+/// another format version or not HDF5 (exit status 2: the request is wrong, not the machine).
+class InputFileError : public std::runtime_error {
+ public:
+  using std::runtime_error::runtime_error;
+};
+
 /// An input/output failure: unreadable or unwritable files (exit status 3).
 class IoError : public std::runtime_error {
  public:

@@ -203,7 +203,11 @@ bool FlightRun::quasi_steady_eligible(double z) const {
   const double vt = forces_.terminal_speed(z);
   const double tau = vt / forces_.effective_gravity(z);
   if (!(std::isfinite(tau) && tau > 0.0)) return false;
-  const double velocity_change = 2.0 * forces_.wind().max_speed() + vt;
+  // The lag error of the quasi-steady form is tau times the change of the quasi-steady velocity
+  // w(z) + v_t(z) over the rest of the fall: bounded by the wind's largest change and the change
+  // of the settling speed between here and the ground.
+  const double velocity_change =
+      forces_.wind().max_change() + std::abs(vt - forces_.terminal_speed(ground_));
   return tau * velocity_change <= FlightOptions::kQuasiSteadyShare * options_.tolerance;
 }
 

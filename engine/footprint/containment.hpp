@@ -1,23 +1,36 @@
 #pragma once
-// Containment radii: the radius about a centre that holds a share p of the impacts, estimated by
-// the empirical p-quantile of the impact distances, with its one-sided distribution-free upper
-// confidence bound: the order statistic r_(k) with the smallest k such that
-// P[Binomial(n, p) <= k - 1] >= c (Wilks 1941). Failed flights count as landing infinitely far
-// away. Where k > n the bound is undetermined and the number of samples it would need is given.
+// Order-statistic estimates and their distribution-free confidence bounds.
+//
+// Containment radius r_p about a centre: the empirical p-quantile of the impact distances. Its
+// one-sided upper confidence bound at confidence c is the order statistic r_(k) with the smallest
+// k such that P[Binomial(n, p) <= k - 1] >= c (Wilks 1941). Where k > n the bound is undetermined
+// and the number of samples it would need is given. Failed flights count as landing infinitely
+// far away.
+//
+// Two-sided interval of the p-quantile: the order statistics (X_(l), X_(u)) with equal tails,
+// l the largest rank with P[Bin(n, p) <= l - 1] <= (1 - c) / 2 and u the smallest with
+// P[Bin(n, p) <= u - 1] >= (1 + c) / 2, so that P[X_(l) <= xi_p <= X_(u)] >= c for any
+// continuous distribution (e.g. David and Nagaraja, Order Statistics, 3rd ed., section 7.1).
+// Binomial probabilities come from Boost.Math.
 #include <cstdint>
 #include <optional>
+#include <span>
 #include <vector>
 
 namespace strewn {
 
 struct Containment {
-  double level = 0.0;  ///< p
-  double radius =
-      0.0;  ///< empirical p-quantile of the distances, m (infinite if failures reach it)
+  double level = 0.0;   ///< p
+  double radius = 0.0;  ///< empirical p-quantile of the distances, m (+inf: failures)
   std::optional<double> radius_upper;  ///< the distribution-free upper bound at `confidence`
   double confidence = 0.0;
   std::uint64_t samples_needed =
-      0;  ///< when radius_upper is empty: the smallest n that supports it
+      0;                        ///< when radius_upper is empty: the smallest n that supports it
+  double interval_lower = 0.0;  ///< two-sided interval of the quantile (-inf: undetermined)
+  double interval_upper = 0.0;  ///< (+inf: undetermined)
+  /// (radius_upper - radius) / radius: how far the conservative bound stands above the estimate
+  /// (+inf when the bound is undetermined). `study.target_width` is held against this.
+  [[nodiscard]] double relative_width() const;
 };
 
 /// The 1-based rank k of the order statistic that bounds the p-quantile from above with
@@ -28,9 +41,28 @@ std::uint64_t upper_bound_rank(std::uint64_t n, double p, double c);
 /// confidence c (r = 1: the maximum).
 std::uint64_t samples_for_bound(double p, double c, std::uint64_t r = 1);
 
-/// Containment radii at each level for the given distances (sorted in place; +infinity for
-/// failed flights).
+/// The rank of the empirical p-quantile among n samples: the smallest k with k >= p n (at least 1).
+std::uint64_t quantile_rank(std::uint64_t n, double p);
+
+/// Ranks (l, u) of the two-sided equal-tailed interval of the p-quantile at confidence c; l = 0
+/// when no order statistic bounds it from below, u = n + 1 when none bounds it from above.
+struct IntervalRanks {
+  std::uint64_t lower = 0, upper = 0;
+};
+IntervalRanks quantile_interval_ranks(std::uint64_t n, double p, double c);
+
+/// Containment radii at each level for distances sorted ascending (+infinity for failed flights).
+std::vector<Containment> containment_sorted(std::span<const double> sorted_distances,
+                                            const std::vector<double>& levels, double confidence);
+
+/// The same for unsorted distances (sorted in place).
 std::vector<Containment> containment(std::vector<double>& distances,
                                      const std::vector<double>& levels, double confidence);
+
+/// Exact one-sided Clopper-Pearson (1934) bounds of a binomial proportion with x successes in n
+/// trials at confidence c: the upper bound is the c-quantile of Beta(x + 1, n - x) (1 when x = n),
+/// the lower bound the (1 - c)-quantile of Beta(x, n - x + 1) (0 when x = 0). Boost.Math.
+double clopper_pearson_upper(std::uint64_t x, std::uint64_t n, double c);
+double clopper_pearson_lower(std::uint64_t x, std::uint64_t n, double c);
 
 }  // namespace strewn

@@ -11,6 +11,9 @@
 
 #include "core/errors.hpp"
 #include "core/version.hpp"
+#include "footprint/footprint.hpp"
+#include "io/footprint_file.hpp"
+#include "io/hdf5_support.hpp"
 
 namespace strewn {
 
@@ -29,28 +32,7 @@ std::string sha256_hex(const std::string& text) {
 
 namespace {
 
-template <class T>
-H5::PredType type_of();
-template <>
-H5::PredType type_of<double>() {
-  return H5::PredType::NATIVE_DOUBLE;
-}
-template <>
-H5::PredType type_of<std::uint8_t>() {
-  return H5::PredType::NATIVE_UINT8;
-}
-template <>
-H5::PredType type_of<std::uint16_t>() {
-  return H5::PredType::NATIVE_UINT16;
-}
-template <>
-H5::PredType type_of<std::uint64_t>() {
-  return H5::PredType::NATIVE_UINT64;
-}
-template <>
-H5::PredType type_of<int>() {
-  return H5::PredType::NATIVE_INT;
-}
+using namespace hdf5;
 
 // An extendible column: chunked (at most 64 Ki rows a chunk), byte-shuffled and deflated.
 template <class T>
@@ -76,31 +58,6 @@ void append(H5::DataSet& set, const std::vector<T>& values, std::size_t first, s
   file_space.selectHyperslab(H5S_SELECT_SET, &count, &old_size);
   H5::DataSpace memory(1, &count);
   set.write(values.data() + first, type_of<T>(), memory, file_space);
-}
-
-template <class T>
-void write_attribute(H5::H5Object& object, const std::string& name, const T& value) {
-  H5::DataSpace scalar;
-  H5::Attribute a = object.createAttribute(name, type_of<T>(), scalar);
-  a.write(type_of<T>(), &value);
-}
-
-void write_attribute(H5::H5Object& object, const std::string& name, const std::string& value) {
-  H5::StrType type(H5::PredType::C_S1, std::max<std::size_t>(1, value.size()));
-  H5::DataSpace scalar;
-  H5::Attribute a = object.createAttribute(name, type, scalar);
-  a.write(type, value.c_str());
-}
-
-void write_strings(H5::H5Object& object, const std::string& name,
-                   const std::vector<std::string>& values) {
-  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
-  const hsize_t count = values.size();
-  H5::DataSpace space(1, &count);
-  std::vector<const char*> pointers;
-  for (const auto& v : values) pointers.push_back(v.c_str());
-  H5::Attribute a = object.createAttribute(name, type, space);
-  a.write(type, pointers.data());
 }
 
 std::string now_iso8601() {
@@ -164,7 +121,8 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
     open->samples = file.createGroup("samples");
     std::vector<std::string> names;
     for (const auto& b : scenario.bodies) names.push_back(b.name);
-    write_strings(open->samples, "body_names", names);
+    write_strings_attribute(open->samples, "body_names", names);
+    write_strings_attribute(open->samples, "input_names", input_names);
     if (keep_samples) {
       auto& c = open->columns;
       c.push_back(create_column<std::uint16_t>(open->samples, "body", rows));
@@ -202,14 +160,16 @@ void ResultsWriter::write(const StudyColumns& c, std::size_t first, std::size_t 
   });
 }
 
-void ResultsWriter::finish(const StudyResult& result, const RunProvenance& provenance) {
+void ResultsWriter::finish(const StudyRecord& record) {
   io_guard(path_, [&] {
     H5::H5File& file = open_->file;
-    write_attribute(file, "seed", provenance.seed);
-    write_attribute(file, "samples", result.samples);
-    write_attribute(file, "completed", result.completed);
-    write_attribute(file, "failed", result.failed);
-    write_attribute(file, "threads", provenance.threads);
+    write_attribute(file, "seed", record.seed);
+    write_attribute(file, "samples", record.samples);
+    write_attribute(file, "completed", record.completed);
+    write_attribute(file, "failed", record.failed);
+    write_attribute(file, "threads", record.threads);
+    write_attribute(file, "rounds", record.rounds);
+    write_footprint(file, record);
     file.flush(H5F_SCOPE_GLOBAL);
     open_.reset();  // closed before the rename
     std::filesystem::rename(temporary_, path_);
@@ -217,105 +177,152 @@ void ResultsWriter::finish(const StudyResult& result, const RunProvenance& prove
 }
 
 void write_results(const std::string& path, const Scenario& scenario, const StudyResult& result,
-                   const RunProvenance& provenance, bool keep_samples) {
+                   const StudyRecord& record, bool keep_samples) {
   ResultsWriter writer(path, scenario, result.columns.input_names, result.columns.rows(),
                        keep_samples);
   writer.write(result.columns, 0, result.columns.rows());
-  writer.finish(result, provenance);
-}
-
-StudyResult run_and_write(const SampleModel& model, StudyOptions options, const std::string& path,
-                          const RunProvenance& provenance, bool keep_samples) {
-  std::vector<std::string> names;
-  for (const auto& input : model.sampler().inputs()) names.push_back(input.name);
-  ResultsWriter writer(path, model.scenario(), names, options.samples * model.bodies(),
-                       keep_samples);
-  options.sink = &writer;
-  const StudyResult result = run_study(model, options);
-  writer.finish(result, provenance);
-  return result;
+  writer.finish(record);
 }
 
 namespace {
-template <class T>
-T read_attribute(const H5::H5Object& object, const std::string& name) {
-  T value{};
-  object.openAttribute(name).read(type_of<T>(), &value);
-  return value;
+// Appends the rows of a later part to the study so far.
+void append_part(StudyResult& total, StudyResult&& part) {
+  if (total.columns.rows() == 0 && total.samples == 0) {
+    total = std::move(part);
+    return;
+  }
+  auto& a = total.columns;
+  auto& b = part.columns;
+  auto join = [](auto& x, const auto& y) { x.insert(x.end(), y.begin(), y.end()); };
+  join(a.body, b.body);
+  join(a.east, b.east);
+  join(a.north, b.north);
+  join(a.time, b.time);
+  join(a.speed, b.speed);
+  join(a.energy, b.energy);
+  join(a.status, b.status);
+  join(a.canopy, b.canopy);
+  for (std::size_t d = 0; d < a.inputs.size(); ++d) join(a.inputs[d], b.inputs[d]);
+  total.samples += part.samples;
+  total.completed += part.completed;
+  total.failed += part.failed;
 }
-std::string read_string_attribute(const H5::H5Object& object, const std::string& name) {
-  H5::Attribute a = object.openAttribute(name);
-  std::string value;
-  a.read(a.getStrType(), value);
-  return value;
-}
-template <class T>
-std::vector<T> read_column(const H5::Group& group, const std::string& name) {
-  H5::DataSet set = group.openDataSet(name);
-  hsize_t rows = 0;
-  set.getSpace().getSimpleExtentDims(&rows);
-  std::vector<T> values(rows);
-  if (rows > 0) set.read(values.data(), type_of<T>());
-  return values;
+
+// The next sample count of a study grown toward a target width. Widths of order-statistic
+// bounds shrink about as 1/sqrt(n), so n (w / target)^2 with a 20 percent margin, at least 1.5
+// and at most 4 times the current count; an undetermined bound asks for the samples it needs.
+std::uint64_t next_sample_count(std::uint64_t n, double width, double target,
+                                const Footprint& footprint, std::uint64_t max_samples) {
+  double wanted;
+  if (std::isfinite(width)) {
+    const double factor = std::clamp(1.2 * (width / target) * (width / target), 1.5, 4.0);
+    wanted = factor * static_cast<double>(n);
+  } else {
+    wanted = 2.0 * static_cast<double>(n);
+    for (const auto& g : footprint.groups)
+      for (const auto& c : g.containment)
+        if (!c.radius_upper) wanted = std::max(wanted, 1.1 * static_cast<double>(c.samples_needed));
+  }
+  auto next = static_cast<std::uint64_t>(std::ceil(wanted / 1024.0)) * 1024;
+  return std::min(std::max(next, n + 1), max_samples);
 }
 }  // namespace
 
-ResultsFile read_results(const std::string& path) {
+StudyRun run_and_write(const SampleModel& model, const World& world, StudyOptions options,
+                       const std::string& path, int threads, bool keep_samples) {
+  const Scenario& s = model.scenario();
+  std::vector<std::string> names;
+  for (const auto& input : model.sampler().inputs()) names.push_back(input.name);
+  ResultsWriter writer(path, s, names, options.samples * model.bodies(), keep_samples);
+  options.sink = &writer;
+  StudyRun run;
+  std::uint64_t total = options.samples;
+  int rounds = 0;
+  Footprint footprint;
+  while (true) {
+    StudyOptions part = options;
+    part.first_sample = run.result.samples;
+    part.samples = total - run.result.samples;
+    append_part(run.result, run_study(model, part));
+    ++rounds;
+    footprint = compute_footprint(impact_table(run.result.columns),
+                                  footprint_settings(s, world, run.result.samples));
+    if (!s.study.target_width) break;
+    const double width = footprint.widest_relative_width();
+    const auto max_samples = static_cast<std::uint64_t>(s.study.max_samples);
+    if (width <= *s.study.target_width || total >= max_samples) break;
+    total = next_sample_count(total, width, *s.study.target_width, footprint, max_samples);
+  }
+  run.record = make_record(s, run.result, std::move(footprint), s.study.seed, threads);
+  run.record.rounds = rounds;
+  writer.finish(run.record);
+  return run;
+}
+
+ResultsFile read_results(const std::string& path, bool with_samples) {
   H5::Exception::dontPrint();
-  if (!std::filesystem::exists(path)) throw IoError(path + ": no such results file");
-  if (H5::H5File::isHdf5(path.c_str()) <= 0) throw IoError(path + ": not an HDF5 results file");
+  if (!std::filesystem::exists(path)) throw InputFileError(path + ": no such results file");
+  if (std::filesystem::is_directory(path))
+    throw InputFileError(path + ": is a folder, not a results file");
+  if (H5::H5File::isHdf5(path.c_str()) <= 0)
+    throw InputFileError(path + ": not an HDF5 file (a strewn results file is HDF5)");
   ResultsFile r;
+  StudyRecord& record = r.record;
   try {
     H5::H5File file(path, H5F_ACC_RDONLY);
     if (!file.attrExists("format_version"))
-      throw IoError(path + ": not a strewn results file (no format_version)");
+      throw InputFileError(path + ": not a strewn results file (no format_version)");
     r.format_version = read_attribute<int>(file, "format_version");
     if (r.format_version != kResultsFormatVersion)
-      throw IoError(path + ": results format version " + std::to_string(r.format_version) +
-                    ", this strewn reads version " + std::to_string(kResultsFormatVersion));
-    r.engine_version = read_string_attribute(file, "engine_version");
-    r.created = read_string_attribute(file, "created");
-    r.scenario_sha256 = read_string_attribute(file, "scenario_sha256");
-    r.seed = read_attribute<std::uint64_t>(file, "seed");
-    r.samples = read_attribute<std::uint64_t>(file, "samples");
-    r.completed = read_attribute<std::uint64_t>(file, "completed");
-    r.failed = read_attribute<std::uint64_t>(file, "failed");
+      throw InputFileError(path + ": results format version " + std::to_string(r.format_version) +
+                           ", this strewn reads version " + std::to_string(kResultsFormatVersion) +
+                           "; run the study again with this strewn");
+    record.file = path;
+    record.engine_version = read_string_attribute(file, "engine_version");
+    record.created = read_string_attribute(file, "created");
+    record.scenario_sha256 = read_string_attribute(file, "scenario_sha256");
+    record.seed = read_attribute<std::uint64_t>(file, "seed");
+    record.samples = read_attribute<std::uint64_t>(file, "samples");
+    record.completed = read_attribute<std::uint64_t>(file, "completed");
+    record.failed = read_attribute<std::uint64_t>(file, "failed");
+    record.threads = read_attribute<int>(file, "threads");
     {
       H5::DataSet text = file.openDataSet("scenario");
-      text.read(r.scenario_text, text.getStrType());
+      text.read(record.scenario_text, text.getStrType());
     }
     H5::Group samples = file.openGroup("samples");
-    {
-      H5::Attribute names = samples.openAttribute("body_names");
-      hsize_t count = 0;
-      names.getSpace().getSimpleExtentDims(&count);
-      std::vector<char*> pointers(count);
-      H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
-      names.read(type, pointers.data());
-      for (char* p : pointers) r.body_names.emplace_back(p);
-      H5::DataSet::vlenReclaim(pointers.data(), type, names.getSpace());
-    }
-    if (samples.nameExists("east")) {
+    r.body_names = read_strings_attribute(samples, "body_names");
+    record.body_names = r.body_names;
+    read_footprint(file, record);
+    r.has_samples = samples.nameExists("east");
+    if (with_samples && r.has_samples) {
       StudyColumns& c = r.columns;
-      c.body = read_column<std::uint16_t>(samples, "body");
-      c.east = read_column<double>(samples, "east");
-      c.north = read_column<double>(samples, "north");
-      c.time = read_column<double>(samples, "time");
-      c.speed = read_column<double>(samples, "speed");
-      c.energy = read_column<double>(samples, "energy");
-      c.status = read_column<std::uint8_t>(samples, "status");
-      c.canopy = read_column<std::uint8_t>(samples, "canopy");
-      const std::vector<std::string> fixed{"body",  "east",   "north",  "time",
-                                           "speed", "energy", "status", "canopy"};
-      for (hsize_t i = 0; i < samples.getNumObjs(); ++i) {
-        const std::string name = samples.getObjnameByIdx(i);
-        if (std::find(fixed.begin(), fixed.end(), name) != fixed.end()) continue;
-        c.input_names.push_back(name);
-        c.inputs.push_back(read_column<double>(samples, name));
-      }
+      c.body = read_vector<std::uint16_t>(samples, "body");
+      c.east = read_vector<double>(samples, "east");
+      c.north = read_vector<double>(samples, "north");
+      c.time = read_vector<double>(samples, "time");
+      c.speed = read_vector<double>(samples, "speed");
+      c.energy = read_vector<double>(samples, "energy");
+      c.status = read_vector<std::uint8_t>(samples, "status");
+      c.canopy = read_vector<std::uint8_t>(samples, "canopy");
+      c.input_names = read_strings_attribute(samples, "input_names");
+      for (const auto& name : c.input_names) c.inputs.push_back(read_vector<double>(samples, name));
+      const std::size_t rows = c.east.size();
+      bool whole = c.body.size() == rows && c.north.size() == rows && c.time.size() == rows &&
+                   c.speed.size() == rows && c.energy.size() == rows && c.status.size() == rows &&
+                   c.canopy.size() == rows;
+      for (const auto& column : c.inputs) whole = whole && column.size() == rows;
+      if (!whole) throw InputFileError(path + ": the sample columns differ in length");
+      for (std::uint16_t b : c.body)
+        if (b >= r.body_names.size())
+          throw InputFileError(path + ": a sample names a body the file does not list");
     }
   } catch (const H5::Exception& e) {
-    throw IoError(path + ": cannot read the results file (" + e.getDetailMsg() + ")");
+    std::string message = path;
+    message += ": cannot read the results file; it is truncated, damaged or incomplete (";
+    message += e.getDetailMsg();
+    message += ")";
+    throw InputFileError(message);
   }
   return r;
 }

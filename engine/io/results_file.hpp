@@ -3,8 +3,9 @@
 // objects close themselves (RAII).
 //
 // Root attributes: format_version, engine_version, created, seed, samples, completed, failed,
-// scenario_sha256, threads. /scenario: the scenario text exactly as read. /samples/<column>:
-// one 1-D dataset per column (chunked, shuffled and deflated), with the attribute body_names.
+// scenario_sha256, threads, rounds. /scenario: the scenario text exactly as read.
+// /samples/<column>: one 1-D dataset per column (chunked, shuffled and deflated), with the
+// attribute body_names. /footprint: the statistics of the study (io/footprint_file.hpp).
 //
 // The file is written under a temporary name beside the final one and renamed when complete, so
 // a file under the final name is always whole.
@@ -13,17 +14,13 @@
 #include <string>
 #include <vector>
 
+#include "io/study_record.hpp"
 #include "scenario/scenario.hpp"
 #include "study/study.hpp"
 
 namespace strewn {
 
-inline constexpr int kResultsFormatVersion = 1;
-
-struct RunProvenance {
-  std::uint64_t seed = 0;
-  int threads = 1;
-};
+inline constexpr int kResultsFormatVersion = 2;  // 2: /footprint
 
 /// Writes a results file as a study runs: rows are appended round by round (a RowSink, fed on
 /// the study's writer thread), then finish() adds the counts, closes the file and renames it into
@@ -38,7 +35,8 @@ class ResultsWriter : public RowSink {
   ResultsWriter& operator=(const ResultsWriter&) = delete;
 
   void write(const StudyColumns& columns, std::size_t first, std::size_t end) override;
-  void finish(const StudyResult& result, const RunProvenance& provenance);
+  /// Writes the counts and the footprint, closes the file and renames it into place.
+  void finish(const StudyRecord& record);
 
  private:
   struct Open;
@@ -48,25 +46,34 @@ class ResultsWriter : public RowSink {
 
 /// Writes a finished study's results file in one go (see ResultsWriter).
 void write_results(const std::string& path, const Scenario& scenario, const StudyResult& result,
-                   const RunProvenance& provenance, bool keep_samples = true);
+                   const StudyRecord& record, bool keep_samples = true);
+
+/// A study run to its end: every row, and its record with the footprint.
+struct StudyRun {
+  StudyResult result;
+  StudyRecord record;
+};
 
 /// Runs the study and writes its results file as it goes: each finished round of samples is
-/// compressed and written while the next one computes.
-StudyResult run_and_write(const SampleModel& model, StudyOptions options, const std::string& path,
-                          const RunProvenance& provenance, bool keep_samples = true);
+/// compressed and written while the next one computes; the footprint follows. With
+/// study.target_width, parts of samples are added (indices continuing, so reproducibly) until
+/// the widest containment bound is that tight or study.max_samples is reached.
+StudyRun run_and_write(const SampleModel& model, const World& world, StudyOptions options,
+                       const std::string& path, int threads, bool keep_samples = true);
 
-/// A results file read back (the per-sample columns and the root attributes).
+/// A results file read back: the record (root attributes and /footprint) and, when asked and
+/// kept, the per-sample columns.
 struct ResultsFile {
   int format_version = 0;
-  std::string engine_version, created, scenario_sha256, scenario_text;
-  std::uint64_t seed = 0, samples = 0, completed = 0, failed = 0;
   std::vector<std::string> body_names;
+  StudyRecord record;
+  bool has_samples = false;
   StudyColumns columns;
 };
 
-/// Reads a results file. Throws IoError for a missing, truncated or foreign file, or another
-/// format version.
-ResultsFile read_results(const std::string& path);
+/// Reads a results file. Throws InputFileError for a missing, truncated or foreign file, or
+/// another format version.
+ResultsFile read_results(const std::string& path, bool with_samples = true);
 
 /// SHA-256 of a text, as 64 hexadecimal digits (OpenSSL).
 std::string sha256_hex(const std::string& text);

@@ -1,146 +1,16 @@
 #include "io/study_report.hpp"
 
-#include <boost/math/distributions/beta.hpp>
 #include <cmath>
 #include <cstdio>
 #include <limits>
 
-#include "footprint/containment.hpp"
-#include "io/cautions.hpp"
-#include "io/trace_report.hpp"
-
 namespace strewn {
 
 namespace {
-
 nlohmann::json number_or_null(double v) {
   return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr);
 }
-
-// Exact one-sided Clopper-Pearson (1934) upper bound of a binomial proportion: the c-quantile
-// of Beta(x + 1, n - x) (1 when x = n), from Boost.Math.
-double clopper_pearson_upper(std::uint64_t x, std::uint64_t n, double c) {
-  if (n == 0 || x >= n) return 1.0;
-  const boost::math::beta_distribution<double> beta(static_cast<double>(x) + 1.0,
-                                                    static_cast<double>(n - x));
-  return boost::math::quantile(beta, c);
-}
-
-nlohmann::json group_summary(const Scenario& s, const StudyColumns& c, int body, double centre_east,
-                             double centre_north, bool centre_is_mean) {
-  std::vector<double> distances;
-  double sum_e = 0.0, sum_n = 0.0;
-  std::uint64_t landed = 0, rows = 0, exceed = 0;
-  for (std::size_t i = 0; i < c.rows(); ++i) {
-    if (body >= 0 && c.body[i] != body) continue;
-    ++rows;
-    if (c.status[i] == 0) {
-      ++landed;
-      sum_e += c.east[i];
-      sum_n += c.north[i];
-      if (c.energy[i] > s.study.energy_threshold) ++exceed;
-    } else {
-      ++exceed;  // a failed flight counts as exceeding
-    }
-  }
-  const double mean_e = landed ? sum_e / static_cast<double>(landed) : std::nan("");
-  const double mean_n = landed ? sum_n / static_cast<double>(landed) : std::nan("");
-  const double ce = centre_is_mean ? mean_e : centre_east,
-               cn = centre_is_mean ? mean_n : centre_north;
-  for (std::size_t i = 0; i < c.rows(); ++i) {
-    if (body >= 0 && c.body[i] != body) continue;
-    distances.push_back(c.status[i] == 0 ? std::hypot(c.east[i] - ce, c.north[i] - cn)
-                                         : std::numeric_limits<double>::infinity());
-  }
-  nlohmann::json containment_json = nlohmann::json::array();
-  for (const auto& k : containment(distances, s.study.levels, s.study.confidence)) {
-    nlohmann::json item{
-        {"level", k.level}, {"radius", number_or_null(k.radius)}, {"confidence", k.confidence}};
-    item["radius_upper"] =
-        k.radius_upper ? number_or_null(*k.radius_upper) : nlohmann::json(nullptr);
-    if (!k.radius_upper) item["samples_needed"] = k.samples_needed;
-    containment_json.push_back(item);
-  }
-  const double share =
-      rows ? static_cast<double>(exceed) / static_cast<double>(rows) : std::nan("");
-  return {{"rows", rows},
-          {"mean", {{"east", number_or_null(mean_e)}, {"north", number_or_null(mean_n)}}},
-          {"centre", {{"east", number_or_null(ce)}, {"north", number_or_null(cn)}}},
-          {"containment", containment_json},
-          {"energy",
-           {{"threshold", s.study.energy_threshold},
-            {"exceed", number_or_null(share)},
-            {"exceed_upper", clopper_pearson_upper(exceed, rows, s.study.confidence)}}}};
-}
-
 }  // namespace
-
-nlohmann::json study_summary(const Scenario& s, const World& world, const StudyResult& r) {
-  nlohmann::json j{{"samples", r.samples},
-                   {"completed", r.completed},
-                   {"failed", r.failed},
-                   {"seed", s.study.seed},
-                   {"sampling", to_string(s.study.sampling)}};
-  if (s.study.sampling != SamplingPlan::random)
-    j["warnings"] = {
-        "the confidence bounds assume independent random sampling; this study used \"" +
-        std::string(to_string(s.study.sampling)) + "\""};
-  nlohmann::json footprint;
-  for (std::size_t b = 0; b < s.bodies.size(); ++b) {
-    double ce = s.study.centre_east, cn = s.study.centre_north;
-    if (s.study.centre == "nominal") {
-      const TraceRecord nominal = trace_body(s, world, s.bodies[b].name);
-      ce = nominal.result.position.x();
-      cn = nominal.result.position.y();
-    }
-    footprint[s.bodies[b].name] =
-        group_summary(s, r.columns, static_cast<int>(b), ce, cn, s.study.centre == "mean");
-  }
-  double ce = s.study.centre_east, cn = s.study.centre_north;
-  if (s.study.centre == "nominal" && !s.bodies.empty()) {
-    ce = footprint[s.bodies[0].name]["centre"]["east"].get<double>();
-    cn = footprint[s.bodies[0].name]["centre"]["north"].get<double>();
-  }
-  footprint["all"] = group_summary(s, r.columns, -1, ce, cn, s.study.centre == "mean");
-  j["footprint"] = footprint;
-  j["cautions"] = cautions();
-  return j;
-}
-
-void write_study_text(std::ostream& out, const nlohmann::json& j, const std::string& file) {
-  out << "strewn run: " << j["samples"] << " samples, " << j["completed"] << " flights landed, "
-      << j["failed"] << " failed (seed " << j["seed"] << ", " << j["sampling"].get<std::string>()
-      << " sampling)\n";
-  auto metres = [](const nlohmann::json& v) {
-    if (v.is_null()) return std::string("-");
-    char text[32];
-    std::snprintf(text, sizeof text, "%.1f", v.get<double>());
-    return std::string(text);
-  };
-  for (const auto& [name, g] : j["footprint"].items()) {
-    out << "\n"
-        << name << ": mean impact east " << metres(g["mean"]["east"]) << " m, north "
-        << metres(g["mean"]["north"]) << " m\n  level   radius m   upper bound m (confidence)\n";
-    for (const auto& k : g["containment"]) {
-      char line[160];
-      const std::string upper =
-          k["radius_upper"].is_null()
-              ? "needs " + std::to_string(k.value("samples_needed", 0ULL)) + " samples"
-              : metres(k["radius_upper"]);
-      std::snprintf(line, sizeof line, "  %-6g %10.1f   %s (%g)\n", k["level"].get<double>(),
-                    k["radius"].is_null() ? std::nan("") : k["radius"].get<double>(), upper.c_str(),
-                    k["confidence"].get<double>());
-      out << line;
-    }
-    out << "  impact energy above " << g["energy"]["threshold"] << " J: share "
-        << g["energy"]["exceed"] << ", upper bound " << g["energy"]["exceed_upper"] << "\n";
-  }
-  if (j.contains("warnings"))
-    for (const auto& w : j["warnings"]) out << "\nwarning   " << w.get<std::string>() << "\n";
-  if (!file.empty()) out << "\nresults   " << file << "\n";
-  out << "\n";
-  for (const auto& c : cautions()) out << "caution   " << c << "\n";
-}
 
 namespace {
 nlohmann::json uncertain_json(const Uncertain& u) {

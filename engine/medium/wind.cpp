@@ -60,6 +60,23 @@ void WindProfile::derive() {
     max_speed_ = std::max(max_speed_, std::hypot(east_[i], north_[i]));
   }
   power_law_ = n > 0 && altitude_.front() - ground_ > kPowerLawFloor;
+  max_change_ = 0.0;
+  if (n > 0) {
+    double min_e = east_[0], max_e = east_[0], min_n = north_[0], max_n = north_[0];
+    auto hold = [&](double e, double nn) {
+      min_e = std::min(min_e, e);
+      max_e = std::max(max_e, e);
+      min_n = std::min(min_n, nn);
+      max_n = std::max(max_n, nn);
+    };
+    for (std::size_t i = 1; i < n; ++i) hold(east_[i], north_[i]);
+    if (power_law_) {
+      double e = 0.0, nn = 0.0;
+      below_lowest(ground_, e, nn);  // the floor's vector
+      hold(e, nn);
+    }
+    max_change_ = std::hypot(max_e - min_e, max_n - min_n);
+  }
   kinks_.clear();  // keeps its capacity
   if (power_law_) kinks_.push_back(ground_ + kPowerLawFloor);
   kinks_.insert(kinks_.end(), altitude_.begin(), altitude_.end());

@@ -69,6 +69,11 @@ class WindProfile {
   [[nodiscard]] std::size_t layers() const { return altitude_.size(); }
   /// Largest wind speed anywhere in the profile, m/s.
   [[nodiscard]] double max_speed() const { return max_speed_; }
+  /// A bound on the largest difference between the wind vectors at any two altitudes, m/s: the
+  /// diagonal of the box holding every layer's vector and the power-law floor's (the profile is
+  /// a path through those vertices, so no two of its points lie farther apart). Zero for a
+  /// uniform wind.
+  [[nodiscard]] double max_change() const { return max_change_; }
   /// Altitudes of the layers, m.
   [[nodiscard]] const std::vector<double>& layer_altitudes() const { return altitude_; }
   /// Altitudes where the profile's slope jumps (the layers and the power-law floor), ascending, m.
@@ -88,6 +93,7 @@ class WindProfile {
   std::vector<double> kinks_;
   double ground_ = 0.0;
   double max_speed_ = 0.0;
+  double max_change_ = 0.0;
   bool power_law_ = false;
 };
 

@@ -358,6 +358,9 @@ class Loader {
                        "must be a non-empty name without dots, spaces or slashes (it names the "
                        "body's inputs, e.g. \"" +
                            b.name + ".mass\")");
+    if (b.name == "all")
+      diagnostics_.add(t.key_path("name"), t.line_of("name"),
+                       "\"all\" is reserved for the footprint of every body together");
     if (scenario_.body_index(b.name) >= 0 && name)
       diagnostics_.add(t.key_path("name"), t.line_of("name"),
                        "duplicate body name \"" + b.name + "\": each [[body]] needs its own name");
@@ -550,6 +553,14 @@ class Loader {
     if (auto w = s.number("target_width", kOpenUnit)) st.target_width = w;
     st.max_samples = s.integer("max_samples", 1, 2000000000L).value_or(st.max_samples);
     st.max_failed = s.number("max_failed", st.max_failed, kProbability);
+    if (st.target_width && st.sampling != SamplingPlan::random)
+      diagnostics_.add(s.key_path("target_width"), s.line_of("target_width"),
+                       "adding samples until the bounds are tight needs sampling = \"random\" (a "
+                       "latin or Sobol design cannot be extended, and the bounds assume "
+                       "independent samples)");
+    if (st.target_width && st.max_samples < st.samples)
+      diagnostics_.add(s.key_path("max_samples"), s.line_of("max_samples"),
+                       "is below study.samples (" + std::to_string(st.samples) + ")");
     s.finish();
   }
 

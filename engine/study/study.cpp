@@ -44,13 +44,14 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
 
   auto run_block = [&](std::uint64_t first, std::uint64_t last) {
     SampleModel::Workspace w(model);  // once per block: nothing is allocated per sample
-    for (std::uint64_t i = first; i < last; ++i) {
+    for (std::uint64_t local = first; local < last; ++local) {
+      const std::uint64_t i = options.first_sample + local;
       model.prepare(i, w);
       for (std::size_t b = 0; b < bodies; ++b) {
         const FlightInputs in = model.flight(i, b, w);
         const Environment env{&model.world().medium, in.conditions, &w.wind(), s.site.ground};
         const FlightResult r = fly(in.body, env, in.release, flight);
-        const std::size_t row = i * bodies + b;
+        const std::size_t row = local * bodies + b;
         c.body[row] = static_cast<std::uint16_t>(b);
         c.east[row] = r.position.x();
         c.north[row] = r.position.y();
@@ -87,7 +88,7 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
         const std::uint64_t first = r * kBlocksPerRound * block;
         const std::uint64_t end = std::min(options.samples, (r + 1) * kBlocksPerRound * block);
         if (options.sink) options.sink->write(c, first * bodies, end * bodies);
-        if (options.progress) options.progress(end);
+        if (options.progress) options.progress(options.first_sample + end);
         next_round = r + 1;
       }
       lock.unlock();

@@ -40,8 +40,9 @@ class RowSink {
 };
 
 struct StudyOptions {
-  std::uint64_t samples = 0;
-  std::size_t block = 256;  ///< samples per task
+  std::uint64_t first_sample = 0;  ///< index of the first sample (a study grown in parts)
+  std::uint64_t samples = 0;       ///< samples to fly: first_sample .. first_sample + samples - 1
+  std::size_t block = 256;         ///< samples per task
   /// Called after each round, in order and one call at a time (from one of the study's threads),
   /// with the samples done so far.
   std::function<void(std::uint64_t done)> progress;

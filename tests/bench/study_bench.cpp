@@ -41,9 +41,8 @@ void study(benchmark::State& state, int threads) {
   for (auto _ : state) {
     StudyOptions options;
     options.samples = kSamples;
-    const StudyResult r =
-        run_and_write(s.model, options, path, {1, threads});  // as `strewn run` does
-    benchmark::DoNotOptimize(r.completed);
+    const StudyRun r = run_and_write(s.model, s.world, options, path, threads);  // as `run` does
+    benchmark::DoNotOptimize(r.result.completed);
   }
   std::filesystem::remove(path);
   state.counters["samples_per_second"] =

@@ -119,28 +119,19 @@ TEST(Study, ResultsFileReadsBackWithEveryName) {
   const SampleModel model(s, world, 300);
   const StudyResult result = run_with(model, 300, 2, 64);
   const auto path = (std::filesystem::temp_directory_path() / "strewn-study-test.h5").string();
-  write_results(path, s, result, {s.study.seed, 2});
+  const Footprint footprint =
+      compute_footprint(impact_table(result.columns), footprint_settings(s, world, result.samples));
+  write_results(path, s, result, make_record(s, result, footprint, s.study.seed, 2));
   const ResultsFile file = read_results(path);
   EXPECT_EQ(file.format_version, kResultsFormatVersion);
-  EXPECT_EQ(file.seed, 4242u);
-  EXPECT_EQ(file.samples, 300u);
-  EXPECT_EQ(file.completed + file.failed, 600u);
-  EXPECT_EQ(file.scenario_text, kStudy);  // exactly as read
-  EXPECT_EQ(file.scenario_sha256, sha256_hex(kStudy));
+  EXPECT_EQ(file.record.seed, 4242u);
+  EXPECT_EQ(file.record.samples, 300u);
+  EXPECT_EQ(file.record.completed + file.record.failed, 600u);
+  EXPECT_EQ(file.record.threads, 2);
+  EXPECT_EQ(file.record.scenario_text, kStudy);  // exactly as read
+  EXPECT_EQ(file.record.scenario_sha256, sha256_hex(kStudy));
   EXPECT_EQ(file.body_names, (std::vector<std::string>{"crate", "strap"}));
-  EXPECT_TRUE(same_columns(file.columns, [&] {
-    StudyColumns c = result.columns;  // the file lists input columns in its own (sorted) order
-    std::vector<std::size_t> order(c.input_names.size());
-    for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
-    std::sort(order.begin(), order.end(),
-              [&](auto a, auto b) { return c.input_names[a] < c.input_names[b]; });
-    StudyColumns sorted = c;
-    for (std::size_t i = 0; i < order.size(); ++i) {
-      sorted.input_names[i] = c.input_names[order[i]];
-      sorted.inputs[i] = c.inputs[order[i]];
-    }
-    return sorted;
-  }()));
+  EXPECT_TRUE(same_columns(file.columns, result.columns));  // input columns in their own order
   for (const char* name : {"crate.mass", "crate.drag.cd", "release.along_error",
                            "release.burst.speed", "strap.drag.area"})
     EXPECT_NE(std::find(file.columns.input_names.begin(), file.columns.input_names.end(), name),
@@ -155,13 +146,13 @@ TEST(Study, ResultsFileReadsBackWithEveryName) {
 }
 
 TEST(Study, RefusesFilesThatAreNotResults) {
-  EXPECT_THROW(read_results("/nonexistent/strewn.h5"), IoError);
+  EXPECT_THROW(read_results("/nonexistent/strewn.h5"), InputFileError);
   const auto path = (std::filesystem::temp_directory_path() / "strewn-not-hdf5.h5").string();
   std::ofstream(path) << "not an HDF5 file";
-  EXPECT_THROW(read_results(path), IoError);
+  EXPECT_THROW(read_results(path), InputFileError);
   std::filesystem::remove(path);
   EXPECT_THROW(write_results("/nonexistent/folder/out.h5", parse_scenario(kStudy, "s.toml"),
-                             StudyResult{}, {}),
+                             StudyResult{}, StudyRecord{}),
                IoError);
 }
 

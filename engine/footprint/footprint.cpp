@@ -1,0 +1,535 @@
+#include "footprint/footprint.hpp"
+
+#include <algorithm>
+#include <boost/math/distributions/normal.hpp>
+#include <boost/math/quadrature/gauss_kronrod.hpp>
+#include <boost/math/tools/roots.hpp>
+#include <boost/sort/spreadsort/float_sort.hpp>
+#include <boost/sort/spreadsort/integer_sort.hpp>
+#include <cmath>
+#include <limits>
+#include <numbers>
+#include <stdexcept>
+
+#include "footprint/ranks.hpp"
+
+namespace strewn {
+
+namespace {
+constexpr double kInfinity = std::numeric_limits<double>::infinity();
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+void sort_values(std::vector<double>& v) {
+  boost::sort::spreadsort::float_sort(v.begin(), v.end());
+}
+
+// Eigen-decomposition of the symmetric 2x2 covariance {a, b, c} = [[a, b], [b, c]] in closed form.
+struct Principal {
+  double major = 0.0, minor = 0.0;  // variances along the axes, major >= minor >= 0
+  double bearing = 0.0;             // degrees clockwise from north of the major axis, [0, 180)
+};
+Principal principal_axes(const std::array<double, 3>& cov) {
+  const double a = cov[0], b = cov[1], c = cov[2];
+  const double mid = 0.5 * (a + c), half = std::hypot(0.5 * (a - c), b);
+  Principal p;
+  p.major = std::max(0.0, mid + half);
+  p.minor = std::max(0.0, mid - half);
+  // Major-axis direction (east, north) = (cos t, sin t) with t = atan2(2b, a - c) / 2 from east.
+  const double t = 0.5 * std::atan2(2.0 * b, a - c);
+  double bearing = 90.0 - t * 180.0 / std::numbers::pi;  // from east-counter-clockwise to bearing
+  bearing = std::fmod(bearing, 180.0);
+  if (bearing < 0.0) bearing += 180.0;
+  p.bearing = bearing;
+  return p;
+}
+
+// Value at a 1-based rank among n = landed + failed rows, with the failed rows placed at -inf
+// (failures_low) or +inf.
+double ranked_value(const std::vector<double>& sorted_landed, std::uint64_t failed,
+                    std::uint64_t rank, bool failures_low) {
+  const std::uint64_t landed = sorted_landed.size();
+  if (rank == 0) return -kInfinity;
+  if (rank > landed + failed) return kInfinity;
+  if (failures_low) return rank <= failed ? -kInfinity : sorted_landed[rank - failed - 1];
+  return rank > landed ? kInfinity : sorted_landed[rank - 1];
+}
+
+// Quantiles of a signed quantity (downrange, crossrange, time) with two-sided intervals. Failures
+// stand at the nearer infinity of each tail, so both tails are conservative.
+QuantileEstimate signed_quantile(const std::vector<double>& sorted_landed, std::uint64_t failed,
+                                 double q, double confidence) {
+  const std::uint64_t n = sorted_landed.size() + failed;
+  const bool low = q < 0.5;
+  QuantileEstimate e;
+  e.probability = q;
+  if (n == 0) {
+    e.value = e.lower = e.upper = kNaN;
+    return e;
+  }
+  e.value = ranked_value(sorted_landed, failed, quantile_rank(n, q), low);
+  const IntervalRanks r = quantile_interval_ranks(n, q, confidence);
+  e.lower = ranked_value(sorted_landed, failed, r.lower, low);
+  e.upper = ranked_value(sorted_landed, failed, r.upper, low);
+  return e;
+}
+
+std::vector<double> tail_probabilities(const std::vector<double>& levels) {
+  std::vector<double> q{0.5};
+  for (double p : levels) {
+    q.push_back(0.5 * (1.0 - p));
+    q.push_back(0.5 * (1.0 + p));
+  }
+  std::sort(q.begin(), q.end());
+  q.erase(std::unique(q.begin(), q.end()), q.end());
+  return q;
+}
+
+// Sorted sparse grid of one body's landed impacts.
+ImpactGrid grid_of(std::span<const double> east, std::span<const double> north, double cell,
+                   double objects, std::uint64_t releases) {
+  ImpactGrid g;
+  g.cell = cell;
+  std::vector<std::uint64_t> keys(east.size());
+  constexpr std::int64_t kOffset = std::int64_t{1} << 31;
+  for (std::size_t i = 0; i < east.size(); ++i) {
+    const auto ie = static_cast<std::int64_t>(std::floor(east[i] / cell));
+    const auto in = static_cast<std::int64_t>(std::floor(north[i] / cell));
+    if (ie <= -kOffset || ie >= kOffset || in <= -kOffset || in >= kOffset)
+      throw std::invalid_argument("an impact lies more than 2^31 grid cells from the origin");
+    keys[i] =
+        (static_cast<std::uint64_t>(ie + kOffset) << 32) | static_cast<std::uint64_t>(in + kOffset);
+  }
+  boost::sort::spreadsort::integer_sort(keys.begin(), keys.end());
+  const double per_hit = releases ? objects / (static_cast<double>(releases) * cell * cell) : kNaN;
+  for (std::size_t i = 0; i < keys.size();) {
+    std::size_t j = i + 1;
+    while (j < keys.size() && keys[j] == keys[i]) ++j;
+    g.east_index.push_back(static_cast<std::int64_t>(keys[i] >> 32) - kOffset);
+    g.north_index.push_back(static_cast<std::int64_t>(keys[i] & 0xffffffffULL) - kOffset);
+    g.count.push_back(j - i);
+    g.density.push_back(static_cast<double>(j - i) * per_hit);
+    i = j;
+  }
+  return g;
+}
+
+// Merges sorted sparse grids cell by cell (counts and densities add).
+ImpactGrid merge_grids(const ImpactGrid& a, const ImpactGrid& b) {
+  ImpactGrid m;
+  m.cell = a.cell;
+  std::size_t i = 0, j = 0;
+  auto take = [&](const ImpactGrid& g, std::size_t k) {
+    m.east_index.push_back(g.east_index[k]);
+    m.north_index.push_back(g.north_index[k]);
+    m.count.push_back(g.count[k]);
+    m.density.push_back(g.density[k]);
+  };
+  while (i < a.count.size() || j < b.count.size()) {
+    if (j == b.count.size()) {
+      take(a, i++);
+    } else if (i == a.count.size()) {
+      take(b, j++);
+    } else {
+      const auto ka = std::make_pair(a.east_index[i], a.north_index[i]);
+      const auto kb = std::make_pair(b.east_index[j], b.north_index[j]);
+      if (ka < kb) {
+        take(a, i++);
+      } else if (kb < ka) {
+        take(b, j++);
+      } else {
+        take(a, i++);
+        m.count.back() += b.count[j];
+        m.density.back() += b.density[j];
+        ++j;
+      }
+    }
+  }
+  return m;
+}
+
+struct GroupRows {
+  std::vector<std::uint32_t> landed;  // row indices, in row order
+  std::uint64_t rows = 0;
+};
+
+GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, const GroupRows& g,
+                             const std::string& name, PlanePoint nominal, double objects,
+                             RankScratch& scratch) {
+  GroupFootprint f;
+  f.name = name;
+  f.objects_per_release = objects;
+  f.rows = g.rows;
+  f.landed = g.landed.size();
+  f.failed = g.rows - f.landed;
+  const std::size_t m = g.landed.size();
+  std::vector<double> e(m), n(m);
+  PlanarMoments moments;
+  for (std::size_t k = 0; k < m; ++k) {
+    e[k] = t.east[g.landed[k]];
+    n[k] = t.north[g.landed[k]];
+    moments.add(e[k], n[k]);
+  }
+  f.mean = m ? moments.mean() : PlanePoint{kNaN, kNaN};
+  f.covariance = moments.covariance();
+  f.centre = s.centre == CentreRule::mean    ? f.mean
+             : s.centre == CentreRule::point ? s.centre_point
+                                             : nominal;
+
+  // Containment about the centre; failed rows at +inf.
+  std::vector<double> distance(m);
+  for (std::size_t k = 0; k < m; ++k)
+    distance[k] = std::hypot(e[k] - f.centre.east, n[k] - f.centre.north);
+  std::vector<double> sorted = distance;
+  sorted.resize(g.rows, kInfinity);
+  sort_values(sorted);
+  f.containment = containment_sorted(sorted, s.levels, s.confidence);
+
+  // CEP: the median distance about the mean impact point, and its Gaussian counterpart.
+  {
+    std::vector<double> about_mean(m);
+    for (std::size_t k = 0; k < m; ++k)
+      about_mean[k] = std::hypot(e[k] - f.mean.east, n[k] - f.mean.north);
+    about_mean.resize(g.rows, kInfinity);
+    if (g.rows == 0) {
+      f.cep = kNaN;
+    } else {
+      const std::uint64_t rank = quantile_rank(g.rows, 0.5);
+      std::nth_element(about_mean.begin(), about_mean.begin() + static_cast<long>(rank - 1),
+                       about_mean.end());
+      f.cep = about_mean[rank - 1];
+    }
+    f.cep_gaussian = m >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
+  }
+
+  // Mahalanobis distances (squared) about the mean, with the covariance made positive definite
+  // by the polygon margin when the impacts are degenerate (all on a line or a point).
+  const Principal axes = principal_axes(f.covariance);
+  std::vector<double> mahalanobis(m);
+  {
+    const double floor =
+        std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
+    const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
+    const double det = a * c - b * b;
+    for (std::size_t k = 0; k < m; ++k) {
+      const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
+      mahalanobis[k] = (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
+    }
+  }
+  // Ellipses (Gaussian approximation) and the share of the rows counted inside each.
+  {
+    const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
+    const double det = a * c - b * b;
+    for (double p : s.levels) {
+      DispersionEllipse el;
+      el.level = p;
+      el.scale = std::sqrt(-2.0 * std::log1p(-p));
+      el.semi_major = el.scale * std::sqrt(axes.major);
+      el.semi_minor = el.scale * std::sqrt(axes.minor);
+      el.bearing = axes.bearing;
+      std::uint64_t inside = 0;
+      if (det > 0.0) {
+        for (std::size_t k = 0; k < m; ++k) {
+          const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
+          if ((c * de * de - 2.0 * b * de * dn + a * dn * dn) / det <= el.scale * el.scale)
+            ++inside;
+        }
+      }
+      el.counted = g.rows ? static_cast<double>(inside) / static_cast<double>(g.rows) : kNaN;
+      f.ellipses.push_back(el);
+    }
+  }
+
+  // Downrange (along the bearing) and crossrange (to its right) about the centre.
+  const double th = s.downrange_bearing * std::numbers::pi / 180.0;
+  const double ue = std::sin(th), un = std::cos(th);  // downrange unit vector
+  std::vector<double> down(m), cross(m);
+  for (std::size_t k = 0; k < m; ++k) {
+    const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
+    down[k] = de * ue + dn * un;
+    cross[k] = de * un - dn * ue;
+  }
+  {
+    std::vector<double> sd = down, sc = cross;
+    sort_values(sd);
+    sort_values(sc);
+    for (double q : tail_probabilities(s.levels)) {
+      f.downrange.push_back(signed_quantile(sd, f.failed, q, s.confidence));
+      f.crossrange.push_back(signed_quantile(sc, f.failed, q, s.confidence));
+    }
+  }
+
+  // Hazard polygons: the convex hull of the k impacts nearest the mean in Mahalanobis distance,
+  // k the rank of the distribution-free upper bound at the level, grown by the margin; its
+  // coverage is then counted over every row.
+  {
+    auto& keyed = scratch.keyed;
+    keyed.resize(m);
+    for (std::size_t k = 0; k < m; ++k) keyed[k] = {mahalanobis[k], static_cast<std::uint32_t>(k)};
+    boost::sort::spreadsort::float_sort(
+        keyed.begin(), keyed.end(),
+        [](const std::pair<double, std::uint32_t>& x, unsigned offset) {
+          return boost::sort::spreadsort::float_mem_cast<double, std::int64_t>(x.first) >> offset;
+        },
+        [](const std::pair<double, std::uint32_t>& x, const std::pair<double, std::uint32_t>& y) {
+          return x.first < y.first;
+        });
+    for (double p : s.levels) {
+      HazardPolygon poly;
+      poly.level = p;
+      poly.rank = upper_bound_rank(g.rows, p, s.confidence);
+      if (poly.rank > g.rows) {
+        poly.samples_needed = samples_for_bound(p, s.confidence);
+        poly.reason = "too few samples for the bound";
+      } else if (poly.rank > m) {
+        poly.reason = "failed flights reach the bound (they count as landing infinitely far)";
+      } else {
+        std::vector<PlanePoint> nearest(poly.rank);
+        for (std::uint64_t k = 0; k < poly.rank; ++k)
+          nearest[k] = {e[keyed[k].second], n[keyed[k].second]};
+        poly.ring = grow_hull(convex_hull(std::move(nearest)), s.polygon_margin);
+        const ConvexPolygon convex(poly.ring);
+        std::uint64_t inside = 0;
+        for (std::size_t k = 0; k < m; ++k) inside += convex.contains(e[k], n[k]) ? 1 : 0;
+        poly.coverage = static_cast<double>(inside) / static_cast<double>(g.rows);
+        poly.area = polygon_area(poly.ring);
+        poly.determined = true;
+      }
+      f.polygons.push_back(std::move(poly));
+    }
+  }
+
+  // Speed and energy: upper quantiles with one-sided bounds (failures at +inf); exceedance.
+  {
+    std::vector<double> speed(m), energy(m);
+    std::uint64_t above = f.failed;
+    for (std::size_t k = 0; k < m; ++k) {
+      speed[k] = t.speed[g.landed[k]];
+      energy[k] = t.energy[g.landed[k]];
+      if (energy[k] > s.energy_threshold) ++above;
+    }
+    std::vector<double> energy_landed = energy;
+    speed.resize(g.rows, kInfinity);
+    energy.resize(g.rows, kInfinity);
+    sort_values(speed);
+    sort_values(energy);
+    f.speed = containment_sorted(speed, s.levels, s.confidence);
+    f.energy = containment_sorted(energy, s.levels, s.confidence);
+    f.energy_exceedance = {s.energy_threshold,
+                           above,
+                           g.rows,
+                           g.rows ? static_cast<double>(above) / static_cast<double>(g.rows) : kNaN,
+                           clopper_pearson_lower(above, g.rows, s.confidence),
+                           clopper_pearson_upper(above, g.rows, s.confidence)};
+
+    // Time of flight over the landed rows.
+    std::vector<double> time(m);
+    for (std::size_t k = 0; k < m; ++k) time[k] = t.time[g.landed[k]];
+    sort_values(time);
+    f.time_min = m ? time.front() : kNaN;
+    f.time_max = m ? time.back() : kNaN;
+    std::vector<double> qs{0.5};
+    for (double p : s.levels) qs.push_back(p);
+    std::sort(qs.begin(), qs.end());
+    qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
+    for (double q : qs) {
+      QuantileEstimate est = signed_quantile(time, 0, q, s.confidence);
+      f.time.push_back(est);
+    }
+
+    // Spearman sensitivities over the landed rows.
+    if (m >= 3) {
+      std::vector<double> r_down(m), r_cross(m), r_dist(m), r_energy(m), r_input(m), column(m);
+      mid_ranks(down, r_down, scratch);
+      mid_ranks(cross, r_cross, scratch);
+      mid_ranks(distance, r_dist, scratch);
+      mid_ranks(energy_landed, r_energy, scratch);
+      for (std::size_t d = 0; d < t.inputs.size(); ++d) {
+        for (std::size_t k = 0; k < m; ++k) column[k] = t.inputs[d][g.landed[k]];
+        mid_ranks(column, r_input, scratch);
+        f.sensitivity.push_back({t.input_names[d], pearson(r_input, r_down),
+                                 pearson(r_input, r_cross), pearson(r_input, r_dist),
+                                 pearson(r_input, r_energy)});
+      }
+    } else {
+      for (const auto& input : t.input_names)
+        f.sensitivity.push_back({input, kNaN, kNaN, kNaN, kNaN});
+    }
+  }
+  return f;
+}
+
+// Probability of landing outside `radius` about the group's centre, from the same rows.
+std::uint64_t count_outside(const ImpactTable& t, const GroupRows& g, PlanePoint centre,
+                            double radius) {
+  std::uint64_t outside = g.rows - g.landed.size();
+  for (std::uint32_t row : g.landed)
+    if (std::hypot(t.east[row] - centre.east, t.north[row] - centre.north) > radius) ++outside;
+  return outside;
+}
+std::uint64_t count_above(const ImpactTable& t, const GroupRows& g, double limit) {
+  std::uint64_t above = g.rows - g.landed.size();
+  for (std::uint32_t row : g.landed)
+    if (t.energy[row] > limit) ++above;
+  return above;
+}
+
+RuleCheck judge(std::string rule, std::string group, double threshold, double accepted,
+                std::uint64_t count, std::uint64_t rows, double confidence) {
+  RuleCheck r;
+  r.rule = std::move(rule);
+  r.group = std::move(group);
+  r.threshold = threshold;
+  r.accepted = accepted;
+  r.count = count;
+  r.rows = rows;
+  r.confidence = confidence;
+  r.value = rows ? static_cast<double>(count) / static_cast<double>(rows) : kNaN;
+  r.lower = clopper_pearson_lower(count, rows, confidence);
+  r.upper = clopper_pearson_upper(count, rows, confidence);
+  r.status = r.upper <= accepted  ? RuleStatus::within
+             : r.lower > accepted ? RuleStatus::exceeds
+                                  : RuleStatus::undetermined;
+  if (r.status == RuleStatus::undetermined) {
+    // The smallest sample count that would decide the rule if the observed share held.
+    const double share = r.value;
+    auto decides = [&](std::uint64_t n) {
+      const auto x = static_cast<std::uint64_t>(std::llround(share * static_cast<double>(n)));
+      return share < accepted ? clopper_pearson_upper(x, n, confidence) <= accepted
+                              : clopper_pearson_lower(x, n, confidence) > accepted;
+    };
+    if (share != accepted && rows > 0) {
+      std::uint64_t high = std::max<std::uint64_t>(rows, 1);
+      while (!decides(high) && high < (std::uint64_t{1} << 40)) high *= 2;
+      if (decides(high)) {
+        std::uint64_t low = rows;
+        while (low < high) {
+          const std::uint64_t mid = low + (high - low) / 2;
+          if (decides(mid))
+            high = mid;
+          else
+            low = mid + 1;
+        }
+        r.samples_needed = high;
+      }
+    }
+  }
+  return r;
+}
+
+}  // namespace
+
+const char* to_string(CentreRule rule) {
+  return rule == CentreRule::mean ? "mean" : rule == CentreRule::nominal ? "nominal" : "point";
+}
+
+const char* to_string(RuleStatus status) {
+  return status == RuleStatus::within    ? "within"
+         : status == RuleStatus::exceeds ? "exceeds"
+                                         : "undetermined";
+}
+
+double Footprint::widest_relative_width() const {
+  double widest = 0.0;
+  for (const auto& g : groups)
+    for (const auto& c : g.containment) widest = std::max(widest, c.relative_width());
+  return widest;
+}
+
+double gaussian_circle_radius(const std::array<double, 3>& covariance, double p) {
+  const Principal axes = principal_axes(covariance);
+  const double s1 = std::sqrt(axes.major), s2 = std::sqrt(axes.minor);
+  if (!(s1 > 0.0)) return 0.0;
+  const boost::math::normal_distribution<double> unit;
+  // P[R <= r] = 2 int_0^r phi(x / s1) / s1 (2 Phi(sqrt(r^2 - x^2) / s2) - 1) dx.
+  auto probability = [&](double r) {
+    if (!(s2 > 0.0)) return 2.0 * boost::math::cdf(unit, r / s1) - 1.0;
+    auto integrand = [&](double x) {
+      const double y = std::sqrt(std::max(0.0, r * r - x * x)) / s2;
+      return boost::math::pdf(unit, x / s1) / s1 * (2.0 * boost::math::cdf(unit, y) - 1.0);
+    };
+    return 2.0 * boost::math::quadrature::gauss_kronrod<double, 61>::integrate(integrand, 0.0, r, 8,
+                                                                               1e-12);
+  };
+  std::uintmax_t iterations = 200;
+  const auto root = boost::math::tools::toms748_solve(
+      [&](double r) { return probability(r) - p; }, 0.0, 40.0 * s1,
+      boost::math::tools::eps_tolerance<double>(48), iterations);
+  return 0.5 * (root.first + root.second);
+}
+
+Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
+  const std::size_t bodies = s.body_names.size();
+  if (bodies == 0 || s.body_counts.size() != bodies)
+    throw std::invalid_argument("compute_footprint: body names and counts must match");
+  if (s.centre == CentreRule::nominal && s.nominal_impacts.size() != bodies)
+    throw std::invalid_argument("compute_footprint: one nominal impact per body is needed");
+  if (t.rows() >= (std::size_t{1} << 32))
+    throw std::invalid_argument("compute_footprint: more than 2^32 rows");
+  Footprint out;
+  out.levels = s.levels;
+  out.confidence = s.confidence;
+  out.centre = to_string(s.centre);
+  out.downrange_bearing = s.downrange_bearing;
+  out.energy_threshold = s.energy_threshold;
+  out.releases = s.releases;
+
+  std::vector<GroupRows> rows(bodies + 1);
+  for (std::size_t i = 0; i < t.rows(); ++i) {
+    const std::size_t b = t.body[i];
+    if (b >= bodies) throw std::invalid_argument("compute_footprint: a row names no body");
+    ++rows[b].rows;
+    ++rows[bodies].rows;
+    if (t.status[i] == 0) {
+      rows[b].landed.push_back(static_cast<std::uint32_t>(i));
+      rows[bodies].landed.push_back(static_cast<std::uint32_t>(i));
+    }
+  }
+  RankScratch scratch;
+  double total_objects = 0.0;
+  for (std::size_t b = 0; b < bodies; ++b) {
+    const PlanePoint nominal =
+        s.centre == CentreRule::nominal ? s.nominal_impacts[b] : PlanePoint{};
+    out.groups.push_back(
+        compute_group(t, s, rows[b], s.body_names[b], nominal, s.body_counts[b], scratch));
+    total_objects += s.body_counts[b];
+  }
+  // Each body's grid from its own rows (its own count per object), merged for "all".
+  std::vector<ImpactGrid> grids;
+  for (std::size_t b = 0; b < bodies; ++b) {
+    std::vector<double> e, n;
+    for (std::uint32_t row : rows[b].landed) {
+      e.push_back(t.east[row]);
+      n.push_back(t.north[row]);
+    }
+    out.groups[b].grid = grid_of(e, n, s.grid_cell, s.body_counts[b], s.releases);
+  }
+  if (bodies == 1) {
+    GroupFootprint all = out.groups[0];  // the same rows: the same figures
+    all.name = "all";
+    out.groups.push_back(std::move(all));
+  } else {
+    const PlanePoint nominal =
+        s.centre == CentreRule::nominal ? s.nominal_impacts[0] : PlanePoint{};
+    out.groups.push_back(compute_group(t, s, rows[bodies], "all", nominal, total_objects, scratch));
+    ImpactGrid merged = out.groups[0].grid;
+    for (std::size_t b = 1; b < bodies; ++b) merged = merge_grids(merged, out.groups[b].grid);
+    out.groups.back().grid = std::move(merged);
+  }
+
+  // The user's rules, for each body and for all.
+  for (std::size_t k = 0; k < out.groups.size(); ++k) {
+    const GroupFootprint& g = out.groups[k];
+    const GroupRows& r = k < bodies ? rows[k] : rows[bodies];
+    if (bodies == 1 && k == 0) continue;  // one body: its figures are those of "all"
+    if (s.rules.zone_radius && s.rules.max_outside)
+      out.rules.push_back(judge("zone_radius", g.name, *s.rules.zone_radius, *s.rules.max_outside,
+                                count_outside(t, r, g.centre, *s.rules.zone_radius), r.rows,
+                                s.confidence));
+    if (s.rules.energy_limit && s.rules.max_exceed)
+      out.rules.push_back(judge("energy_limit", g.name, *s.rules.energy_limit, *s.rules.max_exceed,
+                                count_above(t, r, *s.rules.energy_limit), r.rows, s.confidence));
+  }
+  return out;
+}
+
+}  // namespace strewn

@@ -1,0 +1,277 @@
+#include "io/report_files.hpp"
+
+#include <unistd.h>
+
+#include <GeographicLib/LocalCartesian.hpp>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <numbers>
+
+#include "core/errors.hpp"
+#include "io/cautions.hpp"
+#include "io/footprint_report.hpp"
+
+namespace strewn {
+
+std::string escape_markup(const std::string& text) {
+  std::string out;
+  out.reserve(text.size());
+  for (char c : text) {
+    switch (c) {
+      case '&':
+        out += "&amp;";
+        break;
+      case '<':
+        out += "&lt;";
+        break;
+      case '>':
+        out += "&gt;";
+        break;
+      case '"':
+        out += "&quot;";
+        break;
+      case '\'':
+        out += "&#39;";
+        break;
+      default:
+        out += c;
+    }
+  }
+  return out;
+}
+
+void write_report_file(const std::string& path, const std::string& text) {
+  namespace fs = std::filesystem;
+  const fs::path final_path(path);
+  const fs::path temporary = final_path.parent_path() / (final_path.filename().string() +
+                                                         ".partial-" + std::to_string(::getpid()));
+  {
+    std::ofstream out(temporary, std::ios::binary);
+    if (!out) throw IoError(path + ": cannot write the file (the folder is missing or read-only)");
+    out << text;
+    out.flush();
+    if (!out) {
+      std::error_code ignored;
+      fs::remove(temporary, ignored);
+      throw IoError(path + ": writing failed (is the disk full?)");
+    }
+  }
+  std::error_code error;
+  fs::rename(temporary, final_path, error);
+  if (error) {
+    fs::remove(temporary, error);
+    throw IoError(path + ": cannot put the file in place (" + error.message() + ")");
+  }
+}
+
+namespace {
+
+constexpr int kCircleVertices = 128;
+
+// A closed counter-clockwise ring approximating a circle (east/north, m).
+std::vector<PlanePoint> circle_ring(PlanePoint c, double r) {
+  std::vector<PlanePoint> ring;
+  for (int k = 0; k < kCircleVertices; ++k) {
+    const double t = 2.0 * std::numbers::pi * k / kCircleVertices;
+    ring.push_back({c.east + r * std::cos(t), c.north + r * std::sin(t)});
+  }
+  return ring;
+}
+
+// A counter-clockwise ring for an ellipse with its major axis along `bearing` (degrees from north).
+std::vector<PlanePoint> ellipse_ring(PlanePoint c, double a, double b, double bearing) {
+  const double beta = bearing * std::numbers::pi / 180.0;
+  const double ue = std::sin(beta), un = std::cos(beta);  // major axis
+  const double we = -un, wn = ue;                         // rotated a quarter turn anticlockwise
+  std::vector<PlanePoint> ring;
+  for (int k = 0; k < kCircleVertices; ++k) {
+    const double t = 2.0 * std::numbers::pi * k / kCircleVertices;
+    const double x = a * std::cos(t), y = b * std::sin(t);
+    ring.push_back({c.east + x * ue + y * we, c.north + x * un + y * wn});
+  }
+  return ring;
+}
+
+struct GeoFrame {
+  GeographicLib::LocalCartesian frame;
+  nlohmann::json point(PlanePoint p) const {
+    double lat = 0.0, lon = 0.0, h = 0.0;
+    frame.Reverse(p.east, p.north, 0.0, lat, lon, h);
+    // 1e-7 degrees is about a centimetre: enough, and RFC 7946 (11.2) advises no more.
+    return {std::round(lon * 1e7) / 1e7, std::round(lat * 1e7) / 1e7};
+  }
+  nlohmann::json ring(const std::vector<PlanePoint>& ccw) const {
+    nlohmann::json r = nlohmann::json::array();
+    for (const auto& p : ccw) r.push_back(point(p));
+    r.push_back(point(ccw.front()));  // closed
+    return r;
+  }
+};
+
+nlohmann::json feature(nlohmann::json geometry, nlohmann::json properties) {
+  return {{"type", "Feature"},
+          {"geometry", std::move(geometry)},
+          {"properties", std::move(properties)}};
+}
+
+}  // namespace
+
+std::string geojson_text(const StudyRecord& r, const StudyColumns* impacts) {
+  if (!r.latitude || !r.longitude)
+    throw UsageError(
+        "GeoJSON needs the site's coordinates: the scenario gives no site.latitude and "
+        "site.longitude (the local east/north figures are in the JSON, CSV and SVG outputs)");
+  const GeoFrame geo{GeographicLib::LocalCartesian(*r.latitude, *r.longitude, r.ground)};
+  nlohmann::json features = nlohmann::json::array();
+  for (const auto& g : r.footprint.groups) {
+    for (const auto& p : g.polygons)
+      if (p.determined && p.ring.size() >= 3)
+        features.push_back(feature({{"type", "Polygon"}, {"coordinates", {geo.ring(p.ring)}}},
+                                   {{"group", g.name},
+                                    {"kind", "hazard_polygon"},
+                                    {"level", p.level},
+                                    {"coverage", p.coverage},
+                                    {"area_m2", p.area}}));
+    for (const auto& c : g.containment) {
+      if (std::isfinite(c.radius) && c.radius > 0.0)
+        features.push_back(feature(
+            {{"type", "Polygon"}, {"coordinates", {geo.ring(circle_ring(g.centre, c.radius))}}},
+            {{"group", g.name},
+             {"kind", "containment_circle"},
+             {"level", c.level},
+             {"radius_m", c.radius}}));
+      if (c.radius_upper && std::isfinite(*c.radius_upper) && *c.radius_upper > 0.0)
+        features.push_back(
+            feature({{"type", "Polygon"},
+                     {"coordinates", {geo.ring(circle_ring(g.centre, *c.radius_upper))}}},
+                    {{"group", g.name},
+                     {"kind", "containment_upper_bound_circle"},
+                     {"level", c.level},
+                     {"radius_m", *c.radius_upper},
+                     {"confidence", c.confidence}}));
+    }
+    for (const auto& e : g.ellipses)
+      if (std::isfinite(e.semi_major) && e.semi_major > 0.0 && e.semi_minor > 0.0)
+        features.push_back(
+            feature({{"type", "Polygon"},
+                     {"coordinates",
+                      {geo.ring(ellipse_ring(g.mean, e.semi_major, e.semi_minor, e.bearing))}}},
+                    {{"group", g.name},
+                     {"kind", "dispersion_ellipse"},
+                     {"approximation", "gaussian"},
+                     {"level", e.level},
+                     {"semi_major_m", e.semi_major},
+                     {"semi_minor_m", e.semi_minor},
+                     {"bearing_deg", e.bearing},
+                     {"counted", json_number(e.counted)}}));
+    if (std::isfinite(g.centre.east))
+      features.push_back(
+          feature({{"type", "Point"}, {"coordinates", geo.point(g.centre)}},
+                  {{"group", g.name}, {"kind", "centre"}, {"rule", r.footprint.centre}}));
+    if (std::isfinite(g.mean.east))
+      features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(g.mean)}},
+                                 {{"group", g.name}, {"kind", "mean_impact"}}));
+  }
+  features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(r.release)}},
+                             {{"kind", "release_point"},
+                              {"altitude_m", r.release_altitude},
+                              {"track_deg", r.release_track}}));
+  if (impacts) {
+    for (std::size_t b = 0; b < r.body_names.size(); ++b) {
+      nlohmann::json points = nlohmann::json::array();
+      for (std::size_t i = 0; i < impacts->rows(); ++i)
+        if (impacts->body[i] == b && impacts->status[i] == 0)
+          points.push_back(geo.point({impacts->east[i], impacts->north[i]}));
+      features.push_back(feature({{"type", "MultiPoint"}, {"coordinates", points}},
+                                 {{"group", r.body_names[b]}, {"kind", "impacts"}}));
+    }
+  }
+  nlohmann::json collection{{"type", "FeatureCollection"}, {"features", features}};
+  collection["properties"] = {{"title", r.title},
+                              {"samples", r.samples},
+                              {"confidence", r.footprint.confidence},
+                              {"cautions", cautions()}};
+  return collection.dump() + "\n";
+}
+
+std::string figures_csv(const StudyRecord& r) {
+  std::string out =
+      "group,figure,level,estimate,interval_lower,interval_upper,bound_upper,confidence,unit,"
+      "note\n";
+  auto number = [](double v) {
+    if (std::isnan(v)) return std::string();
+    if (std::isinf(v)) return std::string(v > 0 ? "inf" : "-inf");
+    char text[40];
+    std::snprintf(text, sizeof text, "%.10g", v);
+    return std::string(text);
+  };
+  auto row = [&](const std::string& group, const std::string& figure, double level, double estimate,
+                 double lower, double upper, double bound, const char* unit,
+                 const std::string& note) {
+    auto quoted = [](const std::string& text) {
+      std::string q = "\"";
+      for (char c : text) q += c == '"' ? std::string("\"\"") : std::string(1, c);
+      return q + "\"";
+    };
+    out += quoted(group) + "," + figure + "," + number(level) + "," + number(estimate) + "," +
+           number(lower) + "," + number(upper) + "," + number(bound) + "," +
+           number(r.footprint.confidence) + "," + unit + "," + quoted(note) + "\n";
+  };
+  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+  for (const auto& g : r.footprint.groups) {
+    row(g.name, "mean_east", kNaN, g.mean.east, kNaN, kNaN, kNaN, "m", "");
+    row(g.name, "mean_north", kNaN, g.mean.north, kNaN, kNaN, kNaN, "m", "");
+    row(g.name, "centre_east", kNaN, g.centre.east, kNaN, kNaN, kNaN, "m", r.footprint.centre);
+    row(g.name, "centre_north", kNaN, g.centre.north, kNaN, kNaN, kNaN, "m", r.footprint.centre);
+    row(g.name, "cep", 0.5, g.cep, kNaN, kNaN, kNaN, "m", "counted; about the mean");
+    row(g.name, "cep_gaussian", 0.5, g.cep_gaussian, kNaN, kNaN, kNaN, "m",
+        "Gaussian approximation");
+    for (const auto& c : g.containment)
+      row(g.name, "containment_radius", c.level, c.radius, c.interval_lower, c.interval_upper,
+          c.radius_upper ? *c.radius_upper : kNaN, "m",
+          c.radius_upper ? "" : "bound needs " + std::to_string(c.samples_needed) + " samples");
+    for (const auto& p : g.polygons)
+      row(g.name, "hazard_polygon_area", p.level, p.determined ? p.area : kNaN, kNaN, kNaN, kNaN,
+          "m2", p.determined ? "counted coverage " + number(p.coverage) : p.reason);
+    for (const auto& e : g.ellipses) {
+      row(g.name, "ellipse_semi_major", e.level, e.semi_major, kNaN, kNaN, kNaN, "m",
+          "Gaussian approximation; bearing " + number(e.bearing) + " deg");
+      row(g.name, "ellipse_semi_minor", e.level, e.semi_minor, kNaN, kNaN, kNaN, "m",
+          "Gaussian approximation; counted " + number(e.counted));
+    }
+    for (const auto& q : g.downrange)
+      row(g.name, "downrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
+          "along " + number(r.footprint.downrange_bearing) + " deg");
+    for (const auto& q : g.crossrange)
+      row(g.name, "crossrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
+          "to the right");
+    for (const auto& c : g.speed)
+      row(g.name, "impact_speed", c.level, c.radius, c.interval_lower, c.interval_upper,
+          c.radius_upper ? *c.radius_upper : kNaN, "m/s", "");
+    for (const auto& c : g.energy)
+      row(g.name, "impact_energy", c.level, c.radius, c.interval_lower, c.interval_upper,
+          c.radius_upper ? *c.radius_upper : kNaN, "J", "");
+    const auto& x = g.energy_exceedance;
+    row(g.name, "energy_exceedance", kNaN, x.share, x.lower, kNaN, x.upper, "",
+        "above " + number(x.threshold) + " J; Clopper-Pearson");
+    for (const auto& q : g.time)
+      row(g.name, "time_of_flight", q.probability, q.value, q.lower, q.upper, kNaN, "s", "");
+    for (const auto& s : g.sensitivity) {
+      row(g.name, "spearman_downrange", kNaN, s.downrange, kNaN, kNaN, kNaN, "", s.input);
+      row(g.name, "spearman_crossrange", kNaN, s.crossrange, kNaN, kNaN, kNaN, "", s.input);
+      row(g.name, "spearman_distance", kNaN, s.distance, kNaN, kNaN, kNaN, "", s.input);
+      row(g.name, "spearman_energy", kNaN, s.energy, kNaN, kNaN, kNaN, "", s.input);
+    }
+  }
+  for (const auto& k : r.footprint.rules)
+    row(k.group, "rule_" + k.rule, k.accepted, k.value, k.lower, kNaN, k.upper,
+        k.rule == "zone_radius" ? "m" : "J",
+        std::string(to_string(k.status)) + " (threshold " + number(k.threshold) +
+            "; reported, not decided)");
+  return out;
+}
+
+}  // namespace strewn
