@@ -4,7 +4,6 @@
 #include <boost/math/distributions/normal.hpp>
 #include <boost/math/quadrature/gauss_kronrod.hpp>
 #include <boost/math/tools/roots.hpp>
-#include <boost/sort/spreadsort/float_sort.hpp>
 #include <boost/sort/spreadsort/integer_sort.hpp>
 #include <cmath>
 #include <limits>
@@ -18,10 +17,6 @@ namespace strewn {
 namespace {
 constexpr double kInfinity = std::numeric_limits<double>::infinity();
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-void sort_values(std::vector<double>& v) {
-  boost::sort::spreadsort::float_sort(v.begin(), v.end());
-}
 
 // Eigen-decomposition of the symmetric 2x2 covariance {a, b, c} = [[a, b], [b, c]] in closed form.
 struct Principal {
@@ -163,32 +158,37 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
   f.failed = g.rows - f.landed;
   const std::size_t m = g.landed.size();
   std::vector<double> e(m), n(m);
-  PlanarMoments moments;
   for (std::size_t k = 0; k < m; ++k) {
     e[k] = t.east[g.landed[k]];
     n[k] = t.north[g.landed[k]];
-    moments.add(e[k], n[k]);
   }
+  const PlanarMoments moments = PlanarMoments::of(e, n);
   f.mean = m ? moments.mean() : PlanePoint{kNaN, kNaN};
   f.covariance = moments.covariance();
   f.centre = s.centre == CentreRule::mean    ? f.mean
              : s.centre == CentreRule::point ? s.centre_point
                                              : nominal;
+  // Each column that needs both its order statistics and its ranks is sorted once for both.
+  const bool ranked = m >= 3;
+  std::vector<double> sorted, r_dist(m), r_down(m), r_cross(m), r_energy(m);
 
   // Containment about the centre; failed rows at +inf.
   std::vector<double> distance(m);
-  for (std::size_t k = 0; k < m; ++k)
-    distance[k] = std::hypot(e[k] - f.centre.east, n[k] - f.centre.north);
-  std::vector<double> sorted = distance;
+  for (std::size_t k = 0; k < m; ++k) {
+    const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
+    distance[k] = std::sqrt(de * de + dn * dn);
+  }
+  sort_and_rank(distance, &sorted, r_dist, scratch);
   sorted.resize(g.rows, kInfinity);
-  sort_values(sorted);
   f.containment = containment_sorted(sorted, s.levels, s.confidence);
 
   // CEP: the median distance about the mean impact point, and its Gaussian counterpart.
   {
     std::vector<double> about_mean(m);
-    for (std::size_t k = 0; k < m; ++k)
-      about_mean[k] = std::hypot(e[k] - f.mean.east, n[k] - f.mean.north);
+    for (std::size_t k = 0; k < m; ++k) {
+      const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
+      about_mean[k] = std::sqrt(de * de + dn * dn);
+    }
     about_mean.resize(g.rows, kInfinity);
     if (g.rows == 0) {
       f.cep = kNaN;
@@ -201,40 +201,28 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
     f.cep_gaussian = m >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
   }
 
-  // Mahalanobis distances (squared) about the mean, with the covariance made positive definite
-  // by the polygon margin when the impacts are degenerate (all on a line or a point).
+  // Ellipses (Gaussian approximation) and the share of the rows counted inside each, in one pass.
   const Principal axes = principal_axes(f.covariance);
-  std::vector<double> mahalanobis(m);
-  {
-    const double floor =
-        std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
-    const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
-    const double det = a * c - b * b;
-    for (std::size_t k = 0; k < m; ++k) {
-      const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
-      mahalanobis[k] = (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
-    }
-  }
-  // Ellipses (Gaussian approximation) and the share of the rows counted inside each.
   {
     const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
     const double det = a * c - b * b;
-    for (double p : s.levels) {
+    std::vector<std::uint64_t> inside(s.levels.size(), 0);
+    std::vector<double> scale2(s.levels.size());
+    for (std::size_t l = 0; l < s.levels.size(); ++l) scale2[l] = -2.0 * std::log1p(-s.levels[l]);
+    if (det > 0.0)
+      for (std::size_t k = 0; k < m; ++k) {
+        const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
+        const double d2 = (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
+        for (std::size_t l = 0; l < scale2.size(); ++l) inside[l] += d2 <= scale2[l] ? 1 : 0;
+      }
+    for (std::size_t l = 0; l < s.levels.size(); ++l) {
       DispersionEllipse el;
-      el.level = p;
-      el.scale = std::sqrt(-2.0 * std::log1p(-p));
+      el.level = s.levels[l];
+      el.scale = std::sqrt(scale2[l]);
       el.semi_major = el.scale * std::sqrt(axes.major);
       el.semi_minor = el.scale * std::sqrt(axes.minor);
       el.bearing = axes.bearing;
-      std::uint64_t inside = 0;
-      if (det > 0.0) {
-        for (std::size_t k = 0; k < m; ++k) {
-          const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
-          if ((c * de * de - 2.0 * b * de * dn + a * dn * dn) / det <= el.scale * el.scale)
-            ++inside;
-        }
-      }
-      el.counted = g.rows ? static_cast<double>(inside) / static_cast<double>(g.rows) : kNaN;
+      el.counted = g.rows ? static_cast<double>(inside[l]) / static_cast<double>(g.rows) : kNaN;
       f.ellipses.push_back(el);
     }
   }
@@ -242,16 +230,15 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
   // Downrange (along the bearing) and crossrange (to its right) about the centre.
   const double th = s.downrange_bearing * std::numbers::pi / 180.0;
   const double ue = std::sin(th), un = std::cos(th);  // downrange unit vector
-  std::vector<double> down(m), cross(m);
-  for (std::size_t k = 0; k < m; ++k) {
-    const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
-    down[k] = de * ue + dn * un;
-    cross[k] = de * un - dn * ue;
-  }
   {
-    std::vector<double> sd = down, sc = cross;
-    sort_values(sd);
-    sort_values(sc);
+    std::vector<double> down(m), cross(m), sd, sc;
+    for (std::size_t k = 0; k < m; ++k) {
+      const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
+      down[k] = de * ue + dn * un;
+      cross[k] = de * un - dn * ue;
+    }
+    sort_and_rank(down, &sd, r_down, scratch);
+    sort_and_rank(cross, &sc, r_cross, scratch);
     for (double q : tail_probabilities(s.levels)) {
       f.downrange.push_back(signed_quantile(sd, f.failed, q, s.confidence));
       f.crossrange.push_back(signed_quantile(sc, f.failed, q, s.confidence));
@@ -259,61 +246,93 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
   }
 
   // Hazard polygons: the convex hull of the k impacts nearest the mean in Mahalanobis distance,
-  // k the rank of the distribution-free upper bound at the level, grown by the margin; its
-  // coverage is then counted over every row.
+  // k the rank of the distribution-free upper bound at the level, grown by the margin. The k
+  // impacts it is built on lie inside by construction; every other impact is tested.
   {
+    // Mahalanobis distances (squared) about the mean, with the covariance made positive definite
+    // by the polygon margin when the impacts are degenerate (all on a line or a point).
+    const double floor =
+        std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
+    const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
+    const double det = a * c - b * b;
     auto& keyed = scratch.keyed;
     keyed.resize(m);
-    for (std::size_t k = 0; k < m; ++k) keyed[k] = {mahalanobis[k], static_cast<std::uint32_t>(k)};
-    boost::sort::spreadsort::float_sort(
-        keyed.begin(), keyed.end(),
-        [](const std::pair<double, std::uint32_t>& x, unsigned offset) {
-          return boost::sort::spreadsort::float_mem_cast<double, std::int64_t>(x.first) >> offset;
-        },
-        [](const std::pair<double, std::uint32_t>& x, const std::pair<double, std::uint32_t>& y) {
-          return x.first < y.first;
-        });
-    for (double p : s.levels) {
-      HazardPolygon poly;
-      poly.level = p;
-      poly.rank = upper_bound_rank(g.rows, p, s.confidence);
+    for (std::size_t k = 0; k < m; ++k) {
+      const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
+      keyed[k] = {(c * de * de - 2.0 * b * de * dn + a * dn * dn) / det,
+                  static_cast<std::uint32_t>(k)};
+    }
+    // Rank k of each level, and why a level has none.
+    f.polygons.resize(s.levels.size());
+    std::vector<std::size_t> order;  // determined levels, by rank ascending
+    for (std::size_t l = 0; l < s.levels.size(); ++l) {
+      HazardPolygon& poly = f.polygons[l];
+      poly.level = s.levels[l];
+      poly.rank = upper_bound_rank(g.rows, poly.level, s.confidence);
       if (poly.rank > g.rows) {
-        poly.samples_needed = samples_for_bound(p, s.confidence);
+        poly.samples_needed = samples_for_bound(poly.level, s.confidence);
         poly.reason = "too few samples for the bound";
       } else if (poly.rank > m) {
         poly.reason = "failed flights reach the bound (they count as landing infinitely far)";
       } else {
-        std::vector<PlanePoint> nearest(poly.rank);
-        for (std::uint64_t k = 0; k < poly.rank; ++k)
-          nearest[k] = {e[keyed[k].second], n[keyed[k].second]};
-        poly.ring = grow_hull(convex_hull(std::move(nearest)), s.polygon_margin);
-        const ConvexPolygon convex(poly.ring);
-        std::uint64_t inside = 0;
-        for (std::size_t k = 0; k < m; ++k) inside += convex.contains(e[k], n[k]) ? 1 : 0;
-        poly.coverage = static_cast<double>(inside) / static_cast<double>(g.rows);
-        poly.area = polygon_area(poly.ring);
-        poly.determined = true;
+        order.push_back(l);
       }
-      f.polygons.push_back(std::move(poly));
+    }
+    std::sort(order.begin(), order.end(), [&](std::size_t x, std::size_t y) {
+      return f.polygons[x].rank < f.polygons[y].rank;
+    });
+    // Selections from the largest rank down make every nearest set a prefix of keyed.
+    auto by_distance = [](const auto& x, const auto& y) { return x.first < y.first; };
+    std::size_t prefix = m;
+    for (auto l = order.rbegin(); l != order.rend(); ++l) {
+      const auto k = static_cast<std::size_t>(f.polygons[*l].rank);
+      if (k < prefix) {
+        std::nth_element(keyed.begin(), keyed.begin() + static_cast<long>(k),
+                         keyed.begin() + static_cast<long>(prefix), by_distance);
+        prefix = k;
+      }
+    }
+    // Hulls from the smallest set up: the hull of a larger prefix is the hull of the smaller
+    // prefix's hull vertices and the points added, so each point enters one hull computation.
+    std::vector<PlanePoint> hull;
+    std::size_t done = 0;
+    for (std::size_t l : order) {
+      HazardPolygon& poly = f.polygons[l];
+      const auto k = static_cast<std::size_t>(poly.rank);
+      std::vector<PlanePoint> candidates = hull;
+      candidates.reserve(hull.size() + (k - done));
+      for (std::size_t j = done; j < k; ++j)
+        candidates.push_back({e[keyed[j].second], n[keyed[j].second]});
+      hull = convex_hull(std::move(candidates));
+      done = k;
+      poly.ring = grow_hull(hull, s.polygon_margin);
+      const ConvexPolygon convex(poly.ring);
+      std::uint64_t inside = k;  // the points the hull was built on lie inside it
+      for (std::size_t j = k; j < m; ++j)
+        inside += convex.contains(e[keyed[j].second], n[keyed[j].second]) ? 1 : 0;
+      poly.coverage = static_cast<double>(inside) / static_cast<double>(g.rows);
+      poly.area = polygon_area(poly.ring);
+      poly.determined = true;
     }
   }
 
   // Speed and energy: upper quantiles with one-sided bounds (failures at +inf); exceedance.
   {
-    std::vector<double> speed(m), energy(m);
+    std::vector<double> values(m);
+    for (std::size_t k = 0; k < m; ++k) values[k] = t.speed[g.landed[k]];
+    sort_doubles(values, scratch);
+    values.resize(g.rows, kInfinity);
+    f.speed = containment_sorted(values, s.levels, s.confidence);
+
     std::uint64_t above = f.failed;
+    values.resize(m);
     for (std::size_t k = 0; k < m; ++k) {
-      speed[k] = t.speed[g.landed[k]];
-      energy[k] = t.energy[g.landed[k]];
-      if (energy[k] > s.energy_threshold) ++above;
+      values[k] = t.energy[g.landed[k]];
+      if (values[k] > s.energy_threshold) ++above;
     }
-    std::vector<double> energy_landed = energy;
-    speed.resize(g.rows, kInfinity);
-    energy.resize(g.rows, kInfinity);
-    sort_values(speed);
-    sort_values(energy);
-    f.speed = containment_sorted(speed, s.levels, s.confidence);
-    f.energy = containment_sorted(energy, s.levels, s.confidence);
+    sort_and_rank(values, &sorted, r_energy, scratch);
+    sorted.resize(g.rows, kInfinity);
+    f.energy = containment_sorted(sorted, s.levels, s.confidence);
     f.energy_exceedance = {s.energy_threshold,
                            above,
                            g.rows,
@@ -322,38 +341,32 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
                            clopper_pearson_upper(above, g.rows, s.confidence)};
 
     // Time of flight over the landed rows.
-    std::vector<double> time(m);
-    for (std::size_t k = 0; k < m; ++k) time[k] = t.time[g.landed[k]];
-    sort_values(time);
-    f.time_min = m ? time.front() : kNaN;
-    f.time_max = m ? time.back() : kNaN;
+    values.resize(m);
+    for (std::size_t k = 0; k < m; ++k) values[k] = t.time[g.landed[k]];
+    sort_doubles(values, scratch);
+    f.time_min = m ? values.front() : kNaN;
+    f.time_max = m ? values.back() : kNaN;
     std::vector<double> qs{0.5};
     for (double p : s.levels) qs.push_back(p);
     std::sort(qs.begin(), qs.end());
     qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
-    for (double q : qs) {
-      QuantileEstimate est = signed_quantile(time, 0, q, s.confidence);
-      f.time.push_back(est);
-    }
+    for (double q : qs) f.time.push_back(signed_quantile(values, 0, q, s.confidence));
+  }
 
-    // Spearman sensitivities over the landed rows.
-    if (m >= 3) {
-      std::vector<double> r_down(m), r_cross(m), r_dist(m), r_energy(m), r_input(m), column(m);
-      mid_ranks(down, r_down, scratch);
-      mid_ranks(cross, r_cross, scratch);
-      mid_ranks(distance, r_dist, scratch);
-      mid_ranks(energy_landed, r_energy, scratch);
-      for (std::size_t d = 0; d < t.inputs.size(); ++d) {
-        for (std::size_t k = 0; k < m; ++k) column[k] = t.inputs[d][g.landed[k]];
-        mid_ranks(column, r_input, scratch);
-        f.sensitivity.push_back({t.input_names[d], pearson(r_input, r_down),
-                                 pearson(r_input, r_cross), pearson(r_input, r_dist),
-                                 pearson(r_input, r_energy)});
-      }
-    } else {
-      for (const auto& input : t.input_names)
-        f.sensitivity.push_back({input, kNaN, kNaN, kNaN, kNaN});
+  // Spearman sensitivities over the landed rows.
+  if (ranked) {
+    std::vector<double> r_input(m), column(m);
+    for (std::size_t d = 0; d < t.inputs.size(); ++d) {
+      for (std::size_t k = 0; k < m; ++k) column[k] = t.inputs[d][g.landed[k]];
+      mid_ranks(column, r_input, scratch);
+      const std::array<std::span<const double>, 4> outputs{r_down, r_cross, r_dist, r_energy};
+      std::array<double, 4> rho{};
+      rank_correlations(r_input, outputs, rho);
+      f.sensitivity.push_back({t.input_names[d], rho[0], rho[1], rho[2], rho[3]});
     }
+  } else {
+    for (const auto& input : t.input_names)
+      f.sensitivity.push_back({input, kNaN, kNaN, kNaN, kNaN});
   }
   return f;
 }
@@ -362,8 +375,10 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
 std::uint64_t count_outside(const ImpactTable& t, const GroupRows& g, PlanePoint centre,
                             double radius) {
   std::uint64_t outside = g.rows - g.landed.size();
-  for (std::uint32_t row : g.landed)
-    if (std::hypot(t.east[row] - centre.east, t.north[row] - centre.north) > radius) ++outside;
+  for (std::uint32_t row : g.landed) {
+    const double de = t.east[row] - centre.east, dn = t.north[row] - centre.north;
+    if (de * de + dn * dn > radius * radius) ++outside;
+  }
   return outside;
 }
 std::uint64_t count_above(const ImpactTable& t, const GroupRows& g, double limit) {
@@ -474,15 +489,20 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
   out.releases = s.releases;
 
   std::vector<GroupRows> rows(bodies + 1);
+  for (std::size_t b = 0; b < bodies; ++b) rows[b].landed.reserve(t.rows() / bodies + 1);
   for (std::size_t i = 0; i < t.rows(); ++i) {
     const std::size_t b = t.body[i];
     if (b >= bodies) throw std::invalid_argument("compute_footprint: a row names no body");
     ++rows[b].rows;
-    ++rows[bodies].rows;
-    if (t.status[i] == 0) {
-      rows[b].landed.push_back(static_cast<std::uint32_t>(i));
-      rows[bodies].landed.push_back(static_cast<std::uint32_t>(i));
-    }
+    if (t.status[i] == 0) rows[b].landed.push_back(static_cast<std::uint32_t>(i));
+  }
+  rows[bodies].rows = t.rows();
+  if (bodies == 1) {
+    rows[bodies].landed = rows[0].landed;
+  } else {
+    rows[bodies].landed.reserve(t.rows());
+    for (std::size_t i = 0; i < t.rows(); ++i)
+      if (t.status[i] == 0) rows[bodies].landed.push_back(static_cast<std::uint32_t>(i));
   }
   RankScratch scratch;
   double total_objects = 0.0;

@@ -7,6 +7,31 @@
 
 namespace strewn {
 
+PlanarMoments PlanarMoments::of(std::span<const double> east, std::span<const double> north) {
+  constexpr std::size_t kBlock = 4096;
+  PlanarMoments total;
+  for (std::size_t first = 0; first < east.size(); first += kBlock) {
+    const std::size_t end = std::min(east.size(), first + kBlock);
+    PlanarMoments block;
+    block.count_ = end - first;
+    double se = 0.0, sn = 0.0;
+    for (std::size_t i = first; i < end; ++i) {
+      se += east[i];
+      sn += north[i];
+    }
+    block.mean_e_ = se / static_cast<double>(block.count_);
+    block.mean_n_ = sn / static_cast<double>(block.count_);
+    for (std::size_t i = first; i < end; ++i) {
+      const double de = east[i] - block.mean_e_, dn = north[i] - block.mean_n_;
+      block.m_ee_ += de * de;
+      block.m_en_ += de * dn;
+      block.m_nn_ += dn * dn;
+    }
+    total.merge(block);
+  }
+  return total;
+}
+
 void PlanarMoments::add(double east, double north) {
   // Welford (1962): update the mean, then the co-moments with the old and new deviations.
   ++count_;

@@ -70,9 +70,15 @@ struct View {
 
 std::string path_of(const View& v, const std::vector<PlanePoint>& ring) {
   std::string d;
-  for (std::size_t k = 0; k < ring.size(); ++k)
-    d += (k ? "L" : "M") + fmt(v.x(ring[k].east)) + " " + fmt(v.y(ring[k].north)) + " ";
-  return d + "Z";
+  for (std::size_t k = 0; k < ring.size(); ++k) {
+    d += k ? 'L' : 'M';
+    d += fmt(v.x(ring[k].east));
+    d += ' ';
+    d += fmt(v.y(ring[k].north));
+    d += ' ';
+  }
+  d += 'Z';
+  return d;
 }
 
 }  // namespace
