@@ -10,6 +10,10 @@
 #include <numbers>
 #include <stdexcept>
 
+#include <tbb/enumerable_thread_specific.h>
+#include <tbb/parallel_for.h>
+#include <tbb/task_group.h>
+
 #include "footprint/ranks.hpp"
 
 namespace strewn {
@@ -17,6 +21,10 @@ namespace strewn {
 namespace {
 constexpr double kInfinity = std::numeric_limits<double>::infinity();
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+// Hazard polygons keep at most this many vertices (an outer approximation beyond it, within
+// 3e-4 of the footprint's width): a footprint on a curve would otherwise have every impact as a
+// vertex.
+constexpr std::size_t kPolygonVertices = 128;
 
 // Eigen-decomposition of the symmetric 2x2 covariance {a, b, c} = [[a, b], [b, c]] in closed form.
 struct Principal {
@@ -147,9 +155,13 @@ struct GroupRows {
   std::uint64_t rows = 0;
 };
 
+// Rank buffers per thread, reused by every task that thread runs (a fresh buffer per task would
+// spend more time faulting in pages than sorting).
+using ScratchPerThread = tbb::enumerable_thread_specific<RankScratch>;
+
 GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, const GroupRows& g,
                              const std::string& name, PlanePoint nominal, double objects,
-                             RankScratch& scratch) {
+                             ScratchPerThread& scratches) {
   GroupFootprint f;
   f.name = name;
   f.objects_per_release = objects;
@@ -168,22 +180,29 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
   f.centre = s.centre == CentreRule::mean    ? f.mean
              : s.centre == CentreRule::point ? s.centre_point
                                              : nominal;
-  // Each column that needs both its order statistics and its ranks is sorted once for both.
+  // Each column that needs both its order statistics and its ranks is sorted once for both. The
+  // sections below are independent tasks (TBB), each writing its own figures: the result is the
+  // same on any number of threads.
   const bool ranked = m >= 3;
-  std::vector<double> sorted, r_dist(m), r_down(m), r_cross(m), r_energy(m);
+  std::vector<double> r_dist(m), r_down(m), r_cross(m), r_energy(m);
+  const Principal axes = principal_axes(f.covariance);
+  tbb::task_group tasks;
 
   // Containment about the centre; failed rows at +inf.
-  std::vector<double> distance(m);
-  for (std::size_t k = 0; k < m; ++k) {
-    const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
-    distance[k] = std::sqrt(de * de + dn * dn);
-  }
-  sort_and_rank(distance, &sorted, r_dist, scratch);
-  sorted.resize(g.rows, kInfinity);
-  f.containment = containment_sorted(sorted, s.levels, s.confidence);
+  tasks.run([&] {
+    RankScratch& scratch = scratches.local();
+    std::vector<double> sorted, distance(m);
+    for (std::size_t k = 0; k < m; ++k) {
+      const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
+      distance[k] = std::sqrt(de * de + dn * dn);
+    }
+    sort_and_rank(distance, &sorted, r_dist, scratch);
+    sorted.resize(g.rows, kInfinity);
+    f.containment = containment_sorted(sorted, s.levels, s.confidence);
+  });
 
   // CEP: the median distance about the mean impact point, and its Gaussian counterpart.
-  {
+  tasks.run([&] {
     std::vector<double> about_mean(m);
     for (std::size_t k = 0; k < m; ++k) {
       const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
@@ -199,11 +218,10 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
       f.cep = about_mean[rank - 1];
     }
     f.cep_gaussian = m >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
-  }
+  });
 
   // Ellipses (Gaussian approximation) and the share of the rows counted inside each, in one pass.
-  const Principal axes = principal_axes(f.covariance);
-  {
+  tasks.run([&] {
     const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
     const double det = a * c - b * b;
     std::vector<std::uint64_t> inside(s.levels.size(), 0);
@@ -225,12 +243,13 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
       el.counted = g.rows ? static_cast<double>(inside[l]) / static_cast<double>(g.rows) : kNaN;
       f.ellipses.push_back(el);
     }
-  }
+  });
 
   // Downrange (along the bearing) and crossrange (to its right) about the centre.
-  const double th = s.downrange_bearing * std::numbers::pi / 180.0;
-  const double ue = std::sin(th), un = std::cos(th);  // downrange unit vector
-  {
+  tasks.run([&] {
+    RankScratch& scratch = scratches.local();
+    const double th = s.downrange_bearing * std::numbers::pi / 180.0;
+    const double ue = std::sin(th), un = std::cos(th);  // downrange unit vector
     std::vector<double> down(m), cross(m), sd, sc;
     for (std::size_t k = 0; k < m; ++k) {
       const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
@@ -243,12 +262,13 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
       f.downrange.push_back(signed_quantile(sd, f.failed, q, s.confidence));
       f.crossrange.push_back(signed_quantile(sc, f.failed, q, s.confidence));
     }
-  }
+  });
 
   // Hazard polygons: the convex hull of the k impacts nearest the mean in Mahalanobis distance,
   // k the rank of the distribution-free upper bound at the level, grown by the margin. The k
   // impacts it is built on lie inside by construction; every other impact is tested.
-  {
+  tasks.run([&] {
+    RankScratch& scratch = scratches.local();
     // Mahalanobis distances (squared) about the mean, with the covariance made positive definite
     // by the polygon margin when the impacts are degenerate (all on a line or a point).
     const double floor =
@@ -305,7 +325,7 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
         candidates.push_back({e[keyed[j].second], n[keyed[j].second]});
       hull = convex_hull(std::move(candidates));
       done = k;
-      poly.ring = grow_hull(hull, s.polygon_margin);
+      poly.ring = grow_hull(bounded_hull(hull, kPolygonVertices), s.polygon_margin);
       const ConvexPolygon convex(poly.ring);
       std::uint64_t inside = k;  // the points the hull was built on lie inside it
       for (std::size_t j = k; j < m; ++j)
@@ -314,11 +334,12 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
       poly.area = polygon_area(poly.ring);
       poly.determined = true;
     }
-  }
+  });
 
   // Speed and energy: upper quantiles with one-sided bounds (failures at +inf); exceedance.
-  {
-    std::vector<double> values(m);
+  tasks.run([&] {
+    RankScratch& scratch = scratches.local();
+    std::vector<double> sorted, values(m);
     for (std::size_t k = 0; k < m; ++k) values[k] = t.speed[g.landed[k]];
     sort_doubles(values, scratch);
     values.resize(g.rows, kInfinity);
@@ -351,19 +372,22 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
     std::sort(qs.begin(), qs.end());
     qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
     for (double q : qs) f.time.push_back(signed_quantile(values, 0, q, s.confidence));
-  }
+  });
+  tasks.wait();
 
   // Spearman sensitivities over the landed rows.
   if (ranked) {
-    std::vector<double> r_input(m), column(m);
-    for (std::size_t d = 0; d < t.inputs.size(); ++d) {
+    f.sensitivity.resize(t.inputs.size());
+    tbb::parallel_for(std::size_t{0}, t.inputs.size(), [&](std::size_t d) {
+      RankScratch& scratch = scratches.local();
+      std::vector<double> r_input(m), column(m);
       for (std::size_t k = 0; k < m; ++k) column[k] = t.inputs[d][g.landed[k]];
       mid_ranks(column, r_input, scratch);
       const std::array<std::span<const double>, 4> outputs{r_down, r_cross, r_dist, r_energy};
       std::array<double, 4> rho{};
       rank_correlations(r_input, outputs, rho);
-      f.sensitivity.push_back({t.input_names[d], rho[0], rho[1], rho[2], rho[3]});
-    }
+      f.sensitivity[d] = {t.input_names[d], rho[0], rho[1], rho[2], rho[3]};
+    });
   } else {
     for (const auto& input : t.input_names)
       f.sensitivity.push_back({input, kNaN, kNaN, kNaN, kNaN});
@@ -504,13 +528,13 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
     for (std::size_t i = 0; i < t.rows(); ++i)
       if (t.status[i] == 0) rows[bodies].landed.push_back(static_cast<std::uint32_t>(i));
   }
-  RankScratch scratch;
+  ScratchPerThread scratches;
   double total_objects = 0.0;
   for (std::size_t b = 0; b < bodies; ++b) {
     const PlanePoint nominal =
         s.centre == CentreRule::nominal ? s.nominal_impacts[b] : PlanePoint{};
     out.groups.push_back(
-        compute_group(t, s, rows[b], s.body_names[b], nominal, s.body_counts[b], scratch));
+        compute_group(t, s, rows[b], s.body_names[b], nominal, s.body_counts[b], scratches));
     total_objects += s.body_counts[b];
   }
   // Each body's grid from its own rows (its own count per object), merged for "all".
@@ -530,7 +554,8 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
   } else {
     const PlanePoint nominal =
         s.centre == CentreRule::nominal ? s.nominal_impacts[0] : PlanePoint{};
-    out.groups.push_back(compute_group(t, s, rows[bodies], "all", nominal, total_objects, scratch));
+    out.groups.push_back(
+        compute_group(t, s, rows[bodies], "all", nominal, total_objects, scratches));
     ImpactGrid merged = out.groups[0].grid;
     for (std::size_t b = 1; b < bodies; ++b) merged = merge_grids(merged, out.groups[b].grid);
     out.groups.back().grid = std::move(merged);

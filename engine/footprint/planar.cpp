@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <numbers>
 #include <stdexcept>
 
 namespace strewn {
@@ -137,6 +138,41 @@ std::vector<PlanePoint> grow_hull(const std::vector<PlanePoint>& hull, double ma
     for (double se : {-margin, margin})
       for (double sn : {-margin, margin}) corners.push_back({q.east + se, q.north + sn});
   return convex_hull(std::move(corners));
+}
+
+std::vector<PlanePoint> bounded_hull(const std::vector<PlanePoint>& hull, std::size_t most) {
+  if (hull.size() <= most || most < 3) return hull;
+  const std::size_t h = hull.size();
+  auto dot = [&](std::size_t i, double ue, double un) {
+    return hull[i].east * ue + hull[i].north * un;
+  };
+  // Support values in directions theta_j = 2 pi j / most, the support vertex advancing
+  // counter-clockwise with the direction.
+  std::vector<double> support(most);
+  std::size_t at = 0;
+  for (std::size_t i = 1; i < h; ++i)
+    if (dot(i, 1.0, 0.0) > dot(at, 1.0, 0.0)) at = i;
+  for (std::size_t j = 0; j < most; ++j) {
+    const double theta =
+        2.0 * std::numbers::pi * static_cast<double>(j) / static_cast<double>(most);
+    const double ue = std::cos(theta), un = std::sin(theta);
+    for (std::size_t steps = 0; steps < h && dot((at + 1) % h, ue, un) >= dot(at, ue, un); ++steps)
+      at = (at + 1) % h;
+    support[j] = dot(at, ue, un);
+  }
+  // Vertices: where the supporting lines of neighbouring directions meet.
+  std::vector<PlanePoint> outer;
+  outer.reserve(most);
+  for (std::size_t j = 0; j < most; ++j) {
+    const std::size_t k = (j + 1) % most;
+    const double a = 2.0 * std::numbers::pi * static_cast<double>(j) / static_cast<double>(most);
+    const double b = 2.0 * std::numbers::pi * static_cast<double>(k) / static_cast<double>(most);
+    // cos a x + sin a y = s_j and cos b x + sin b y = s_k (Cramer's rule; det = sin(b - a)).
+    const double det = std::sin(b - a);
+    outer.push_back({(support[j] * std::sin(b) - support[k] * std::sin(a)) / det,
+                     (std::cos(a) * support[k] - std::cos(b) * support[j]) / det});
+  }
+  return convex_hull(std::move(outer));
 }
 
 double polygon_area(std::span<const PlanePoint> r) {

@@ -46,6 +46,13 @@ std::vector<PlanePoint> convex_hull(std::vector<PlanePoint> points);
 /// in east and in north of the hull is inside. Turns a degenerate hull into a polygon.
 std::vector<PlanePoint> grow_hull(const std::vector<PlanePoint>& hull, double margin);
 
+/// A convex polygon of at most `most` vertices that contains the counter-clockwise convex polygon
+/// `hull`: the hull itself when it has that few, otherwise the polygon bounded by its supporting
+/// lines in `most` equally spaced directions (an outer approximation; each vertex lies beyond the
+/// hull by at most its width times (1 / cos(pi / most) - 1)). Found by rotating the support
+/// vertex around the hull, O(most + vertices).
+std::vector<PlanePoint> bounded_hull(const std::vector<PlanePoint>& hull, std::size_t most);
+
 /// Signed area, positive when counter-clockwise (shoelace formula), m^2.
 double polygon_area(std::span<const PlanePoint> ring);
 

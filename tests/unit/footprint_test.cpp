@@ -349,6 +349,33 @@ TEST(Footprint, HazardPolygonCoverageIsCounted) {
   }
 }
 
+// Impacts on a curve (a footprint driven by one ballistic coefficient) are all hull vertices: the
+// polygon keeps at most 128 + 4 vertices by its outer approximation, its coverage is still the
+// count of impacts inside (ray casting), and its area exceeds the exact hull's by at most the
+// bound of the circumscribed 128-gon, (1 / cos(pi / 128))^2 - 1 = 6e-4 of it, plus the margin.
+TEST(Footprint, PolygonOfImpactsOnACurveIsBoundedAndStillHoldsThem) {
+  OwnedTable t;
+  const int count = 20000;
+  for (int i = 0; i < count; ++i) {
+    const double a = 2.0 * std::numbers::pi * i / count;
+    t.add(0, 300.0 * std::cos(a), 120.0 * std::sin(a));
+  }
+  FootprintSettings s = one_body(count);
+  s.levels = {0.99};
+  s.polygon_margin = 1e-3;
+  const Footprint f = compute_footprint(t.view(), s);
+  const HazardPolygon& p = f.groups[0].polygons[0];
+  ASSERT_TRUE(p.determined);
+  EXPECT_LE(p.ring.size(), 132u);
+  std::size_t inside = 0;
+  for (int i = 0; i < count; ++i) inside += inside_by_ray(p.ring, t.east[i], t.north[i]);
+  EXPECT_NEAR(p.coverage, static_cast<double>(inside) / count, 2.0 / count);
+  EXPECT_GE(p.coverage, 0.99);
+  const double ellipse = std::numbers::pi * 300.0 * 120.0;
+  EXPECT_GT(p.area, 0.99 * ellipse);
+  EXPECT_LT(p.area, ellipse * (std::pow(1.0 / std::cos(std::numbers::pi / 128.0), 2) + 1e-4));
+}
+
 // Failed flights count as landing infinitely far: they widen the containment, reach the bound
 // when they are too many, and stand at both ends of downrange and crossrange.
 TEST(Footprint, FailedFlightsCountAsInfinitelyFar) {

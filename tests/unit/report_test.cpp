@@ -6,6 +6,7 @@
 #include <gtest/gtest.h>
 
 #include <H5Cpp.h>
+#include <unistd.h>
 
 #include <GeographicLib/Geodesic.hpp>
 #include <filesystem>
@@ -40,7 +41,9 @@ std::string slurp(const std::filesystem::path& path) {
 class Report : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
-    dir_ = std::filesystem::temp_directory_path() / "strewn-report-test";
+    // One folder per process: ctest runs each test of this suite in its own process, in parallel.
+    dir_ = std::filesystem::temp_directory_path() /
+           ("strewn-report-test-" + std::to_string(::getpid()));
     std::filesystem::remove_all(dir_);
     std::filesystem::create_directories(dir_);
     file_ = (dir_ / "ridge.h5").string();
