@@ -235,19 +235,31 @@ void write_record_text(std::ostream& out, const StudyRecord& r) {
     out << line;
   }
   if (!f.groups.empty()) {
+    // The inputs that move the impact most: by the largest of their rank correlations with
+    // downrange, crossrange and distance (a shift of the footprint shows in the first two, a
+    // widening in the third).
     auto sensitivity = f.groups.back().sensitivity;
-    std::erase_if(sensitivity, [](const auto& s) { return std::isnan(s.distance); });
-    std::sort(sensitivity.begin(), sensitivity.end(), [](const auto& a, const auto& b) {
-      return std::abs(a.distance) > std::abs(b.distance);
-    });
+    auto strength = [](const InputSensitivity& x) {
+      double most = 0.0;
+      for (double v : {x.downrange, x.crossrange, x.distance})
+        if (std::isfinite(v)) most = std::max(most, std::abs(v));
+      return most;
+    };
+    std::stable_sort(sensitivity.begin(), sensitivity.end(),
+                     [&](const auto& a, const auto& b) { return strength(a) > strength(b); });
     if (!sensitivity.empty()) {
-      out << "\nwhat drives the spread (Spearman rank correlation with the distance from the "
-             "centre, all bodies):\n";
-      for (std::size_t k = 0; k < std::min<std::size_t>(5, sensitivity.size()); ++k) {
-        char line[160];
-        std::snprintf(line, sizeof line, "  %+.2f  %s\n", sensitivity[k].distance,
-                      sensitivity[k].input.c_str());
-        out << line;
+      out << "\nwhat drives the spread (Spearman rank correlation of each input with the impact's "
+             "position and energy, all bodies):\n   down  cross  dist.  energy  input\n";
+      auto rho = [](double v) {
+        char text[16];
+        if (std::isnan(v)) return std::string("    -");
+        std::snprintf(text, sizeof text, "%+.2f", v);
+        return std::string(text);
+      };
+      for (std::size_t k = 0; k < std::min<std::size_t>(6, sensitivity.size()); ++k) {
+        const auto& x = sensitivity[k];
+        out << "  " << rho(x.downrange) << "  " << rho(x.crossrange) << "  " << rho(x.distance)
+            << "   " << rho(x.energy) << "  " << x.input << "\n";
       }
     }
   }

@@ -35,5 +35,13 @@ expect 2 "binary file" -- "$strewn" trace "$work/binary.toml"
 expect 2 "missing file" -- "$strewn" trace "$work/missing.toml"
 expect 2 "no command" -- "$strewn"
 expect 2 "unknown option" -- "$strewn" trace "$source_dir/inputs/ridge-drop.toml" --speed 3
+# report: results files that are not what they must be are refused with status 2.
+expect 2 "report of a missing results file" -- "$strewn" report "$work/missing.h5"
+head -c 300 /dev/urandom >"$work/binary.h5"
+expect 2 "report of a file that is not HDF5" -- "$strewn" report "$work/binary.h5"
+expect 0 "a small study" -- "$strewn" run "$source_dir/tests/data/canopy-by-height.toml" -n 100 -o "$work/small.h5" --quiet
+head -c 4000 "$work/small.h5" >"$work/truncated.h5"
+expect 2 "report of a truncated results file" -- "$strewn" report "$work/truncated.h5" --json
+expect 0 "report of a whole results file" -- "$strewn" report "$work/small.h5" --json
 echo "exit codes: $failures failed"
 exit $((failures > 0))

@@ -4,6 +4,7 @@
 // and the rank correlation of a bivariate normal.
 #include <gtest/gtest.h>
 
+#include <tbb/global_control.h>
 #include <boost/math/distributions/binomial.hpp>
 #include <boost/math/distributions/chi_squared.hpp>
 #include <boost/math/distributions/normal.hpp>
@@ -458,6 +459,34 @@ TEST(Footprint, RuleStatuses) {
   const RuleCheck open = check(0, 1000, 1e-3);  // 2995 samples would show it (Wilks)
   EXPECT_EQ(open.status, RuleStatus::undetermined);
   EXPECT_EQ(open.samples_needed, 2995u);
+}
+
+// The figures do not depend on the thread count (the sections run as tasks; each writes its own).
+TEST(Footprint, SameFiguresOnOneAndTwoThreads) {
+  OwnedTable t;
+  boost::random::mt19937 engine(3);
+  boost::random::normal_distribution<double> normal;
+  t.names = {"x.a", "x.b", "x.c"};
+  t.inputs.assign(3, {});
+  for (int i = 0; i < 30000; ++i) {
+    const double a = normal(engine), b = normal(engine), c = normal(engine);
+    t.add(static_cast<std::uint16_t>(i % 3), 40 * a + 5 * c, 15 * b + 3 * a * a, i % 501 != 0,
+          10 + a);
+    t.inputs[0].push_back(a);
+    t.inputs[1].push_back(b);
+    t.inputs[2].push_back(std::round(c * 4));  // ties
+  }
+  FootprintSettings s;
+  s.body_names = {"p", "q", "r"};
+  s.body_counts = {1, 2, 3};
+  s.releases = 10000;
+  auto figures = [&](std::size_t threads) {
+    tbb::global_control limit(tbb::global_control::max_allowed_parallelism, threads);
+    StudyRecord record;
+    record.footprint = compute_footprint(t.view(), s);
+    return record_json(record, false).dump();
+  };
+  EXPECT_EQ(figures(1), figures(2));
 }
 
 // The footprint of a study is the same read back from its results file.
