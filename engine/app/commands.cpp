@@ -65,9 +65,12 @@ std::string output_path(const RunArguments& a, const Scenario& s) {
 
 int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& out) {
   const Scenario& s = model.scenario();
-  if (*a.sample >= static_cast<std::uint64_t>(s.study.samples))
+  // A study grown toward study.target_width may reach study.max_samples.
+  const auto limit = static_cast<std::uint64_t>(s.study.target_width ? s.study.max_samples
+                                                                     : s.study.samples);
+  if (*a.sample >= limit)
     throw UsageError("--sample " + std::to_string(*a.sample) + " is outside the study's " +
-                     std::to_string(s.study.samples) + " samples");
+                     std::to_string(limit) + " samples");
   nlohmann::json j{{"sample", *a.sample}, {"seed", s.study.seed}};
   bool all_landed = true;
   for (std::size_t b = 0; b < model.bodies(); ++b) {
