@@ -3,6 +3,7 @@
 #include <CLI/CLI.hpp>
 #include <iostream>
 #include <optional>
+#include <sstream>
 
 #include <tbb/global_control.h>
 #include <unistd.h>
@@ -12,6 +13,9 @@
 #include <chrono>
 #include <filesystem>
 
+#include "cluster/distributed_study.hpp"
+#include "cluster/job.hpp"
+#include "cluster/sweep.hpp"
 #include "io/atmosphere_table.hpp"
 #include "io/footprint_report.hpp"
 #include "io/report_files.hpp"
@@ -54,6 +58,7 @@ struct RunArguments {
   std::optional<std::uint64_t> sample;
   bool quiet = false;
   bool json = false;
+  bool timing = false;
 };
 
 // The results file: -o, else the scenario's [output] file, else results/<scenario name>.h5.
@@ -66,8 +71,8 @@ std::string output_path(const RunArguments& a, const Scenario& s) {
 int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& out) {
   const Scenario& s = model.scenario();
   // A study grown toward study.target_width may reach study.max_samples.
-  const auto limit = static_cast<std::uint64_t>(s.study.target_width ? s.study.max_samples
-                                                                     : s.study.samples);
+  const auto limit =
+      static_cast<std::uint64_t>(s.study.target_width ? s.study.max_samples : s.study.samples);
   if (*a.sample >= limit)
     throw UsageError("--sample " + std::to_string(*a.sample) + " is outside the study's " +
                      std::to_string(limit) + " samples");
@@ -103,7 +108,7 @@ int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& ou
   return all_landed ? kExitDone : kExitFailure;
 }
 
-int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& err) {
+int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& err, const Job& job) {
   Scenario scenario = load_scenario(a.scenario);
   if (a.samples > 0) scenario.study.samples = static_cast<long>(a.samples);
   if (a.seed) scenario.study.seed = *a.seed;
@@ -114,17 +119,18 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   if (a.threads > 0)
     limit.emplace(tbb::global_control::max_allowed_parallelism,
                   static_cast<std::size_t>(a.threads));
-  if (a.sample) return run_replay(a, model, out);
+  if (a.sample) return job.leader() ? run_replay(a, model, out) : kExitDone;
 
   const std::string path = output_path(a, scenario);
   // Refuse an unwritable destination before any flight.
   const auto folder = std::filesystem::path(path).parent_path();
   if (!folder.empty() && !std::filesystem::is_directory(folder))
     throw IoError(path + ": the folder " + folder.string() + " does not exist");
+  const auto start_wall = std::chrono::steady_clock::now();
 
   StudyOptions options;
   options.samples = samples;
-  const bool show = !a.quiet && ::isatty(STDERR_FILENO);
+  const bool show = !a.quiet && job.leader() && ::isatty(STDERR_FILENO);
   const auto start = std::chrono::steady_clock::now();
   if (show) {
     options.progress = [&](std::uint64_t done) {
@@ -141,9 +147,15 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   const int threads = a.threads > 0 ? a.threads
                                     : static_cast<int>(tbb::global_control::active_value(
                                           tbb::global_control::max_allowed_parallelism));
-  StudyRun run = run_and_write(model, world, options, path, threads, scenario.output.samples);
+  StudyRun run = run_on_ranks(job, model, world, options, path, threads, scenario.output.samples);
+  if (!job.leader()) return kExitDone;
   if (show) err << "\n";
   run.record.file = path;
+  if (a.timing)
+    err << "timing: "
+        << std::chrono::duration<double>(std::chrono::steady_clock::now() - start_wall).count()
+        << " s for the study on " << job.size() << (job.size() == 1 ? " rank" : " ranks") << " of "
+        << threads << (threads == 1 ? " thread\n" : " threads\n");
   if (a.json)
     out << record_json(run.record, false).dump(2) << '\n';
   else
@@ -201,6 +213,16 @@ int run_report(const ReportArguments& a, std::ostream& out) {
 }  // namespace
 
 int run_command_line(int argc, const char* const* argv, std::ostream& out, std::ostream& err) {
+  const Job single;
+  return run_command_line(argc, argv, out, err, single);
+}
+
+int run_command_line(int argc, const char* const* argv, std::ostream& out_stream,
+                     std::ostream& err_stream, const Job& job) {
+  // Only rank 0 speaks; the others keep quiet unless something fails on them alone.
+  std::ostringstream silent;
+  std::ostream& out = job.leader() ? out_stream : silent;
+  std::ostream& err = job.leader() ? err_stream : silent;
   CLI::App app{
       "strewn: Monte Carlo engine for drop and drift safety studies.\n"
       "Results are engineering estimates; exclusion zones are set by the responsible "
@@ -232,6 +254,26 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out, std::
                       "Replay this one sample with its trajectory (writes nothing)");
   run_cmd->add_flag("--quiet", run.quiet, "No progress line");
   run_cmd->add_flag("--json", run.json, "Print the summary as JSON");
+  run_cmd->add_flag(
+      "--timing", run.timing,
+      "Print the study's wall time (from input read to file written) on standard error");
+
+  std::string sweep_file;
+  std::uint64_t sweep_samples = 0;
+  SweepOptions sweep;
+  auto* sweep_cmd = app.add_subcommand(
+      "sweep", "Run every case of a parameter sweep (a complete study each) into one results file");
+  sweep_cmd->add_option("SWEEP", sweep_file, "Sweep file (TOML)")->required();
+  sweep_cmd->add_option("-n", sweep_samples, "Samples per case (default: the base scenario's)")
+      ->check(CLI::PositiveNumber);
+  sweep_cmd->add_option("-j", sweep.threads, "Threads per rank (default: all)")
+      ->check(CLI::PositiveNumber);
+  sweep_cmd->add_option("-o", sweep.output,
+                        "Results file (default: the sweep's output, else results/<sweep>.h5)");
+  sweep_cmd->add_flag(
+      "--fresh", sweep.fresh,
+      "Run every case again (default: a stopped sweep resumes, skipping finished cases)");
+  sweep_cmd->add_flag("--quiet", sweep.quiet, "No line per finished case");
 
   ReportArguments report;
   auto* report_cmd = app.add_subcommand(
@@ -271,7 +313,16 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out, std::
 
   try {
     if (*trace_cmd) return run_trace(trace, out);
-    if (*run_cmd) return run_study_command(run, out, err);
+    if (*run_cmd) return run_study_command(run, out, err, job);
+    if (*sweep_cmd) {
+      const SweepPlan plan = load_sweep(sweep_file, sweep_samples);
+      std::optional<tbb::global_control> limit;
+      if (sweep.threads > 0)
+        limit.emplace(tbb::global_control::max_allowed_parallelism,
+                      static_cast<std::size_t>(sweep.threads));
+      return run_sweep(job, plan, sweep, out, err);
+    }
+    if (!job.leader()) return kExitDone;  // the other commands run on rank 0 only
     if (*report_cmd) return run_report(report, out);
     if (*check_cmd) {
       const Scenario scenario = load_scenario(check_scenario);
@@ -301,6 +352,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out, std::
     err << "error: " << e.what() << '\n';
     return kExitFailure;
   } catch (const std::exception& e) {
+    if (!job.leader()) err_stream << "error (rank " << job.rank() << "): " << e.what() << '\n';
     err << "error: " << e.what() << '\n';
     return kExitFailure;
   }

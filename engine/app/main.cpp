@@ -1,8 +1,9 @@
-// strewn: the command-line entry point. All the work is in app/commands.cpp.
 #include <iostream>
 
 #include "app/commands.hpp"
+#include "cluster/job.hpp"
 
 int main(int argc, char** argv) {
-  return strewn::run_command_line(argc, argv, std::cout, std::cerr);
+  const strewn::Job job(argc, argv);  // MPI, when built with it
+  return strewn::run_command_line(argc, argv, std::cout, std::cerr, job);
 }

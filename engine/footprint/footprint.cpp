@@ -186,197 +186,209 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
   const bool ranked = m >= 3;
   std::vector<double> r_dist(m), r_down(m), r_cross(m), r_energy(m);
   const Principal axes = principal_axes(f.covariance);
+  const bool place = (s.sections & kPlaceAndSpread) != 0, shapes = (s.sections & kShapes) != 0;
   tbb::task_group tasks;
 
   // Containment about the centre; failed rows at +inf.
-  tasks.run([&] {
-    RankScratch& scratch = scratches.local();
-    std::vector<double> sorted, distance(m);
-    for (std::size_t k = 0; k < m; ++k) {
-      const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
-      distance[k] = std::sqrt(de * de + dn * dn);
-    }
-    sort_and_rank(distance, &sorted, r_dist, scratch);
-    sorted.resize(g.rows, kInfinity);
-    f.containment = containment_sorted(sorted, s.levels, s.confidence);
-  });
+  if (place)
+    tasks.run([&] {
+      RankScratch& scratch = scratches.local();
+      std::vector<double> sorted, distance(m);
+      for (std::size_t k = 0; k < m; ++k) {
+        const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
+        distance[k] = std::sqrt(de * de + dn * dn);
+      }
+      sort_and_rank(distance, &sorted, r_dist, scratch);
+      sorted.resize(g.rows, kInfinity);
+      f.containment = containment_sorted(sorted, s.levels, s.confidence);
+    });
 
   // CEP: the median distance about the mean impact point, and its Gaussian counterpart.
-  tasks.run([&] {
-    std::vector<double> about_mean(m);
-    for (std::size_t k = 0; k < m; ++k) {
-      const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
-      about_mean[k] = std::sqrt(de * de + dn * dn);
-    }
-    about_mean.resize(g.rows, kInfinity);
-    if (g.rows == 0) {
-      f.cep = kNaN;
-    } else {
-      const std::uint64_t rank = quantile_rank(g.rows, 0.5);
-      std::nth_element(about_mean.begin(), about_mean.begin() + static_cast<long>(rank - 1),
-                       about_mean.end());
-      f.cep = about_mean[rank - 1];
-    }
-    f.cep_gaussian = m >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
-  });
-
-  // Ellipses (Gaussian approximation) and the share of the rows counted inside each, in one pass.
-  tasks.run([&] {
-    const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
-    const double det = a * c - b * b;
-    std::vector<std::uint64_t> inside(s.levels.size(), 0);
-    std::vector<double> scale2(s.levels.size());
-    for (std::size_t l = 0; l < s.levels.size(); ++l) scale2[l] = -2.0 * std::log1p(-s.levels[l]);
-    if (det > 0.0)
+  if (shapes)
+    tasks.run([&] {
+      std::vector<double> about_mean(m);
       for (std::size_t k = 0; k < m; ++k) {
         const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
-        const double d2 = (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
-        for (std::size_t l = 0; l < scale2.size(); ++l) inside[l] += d2 <= scale2[l] ? 1 : 0;
+        about_mean[k] = std::sqrt(de * de + dn * dn);
       }
-    for (std::size_t l = 0; l < s.levels.size(); ++l) {
-      DispersionEllipse el;
-      el.level = s.levels[l];
-      el.scale = std::sqrt(scale2[l]);
-      el.semi_major = el.scale * std::sqrt(axes.major);
-      el.semi_minor = el.scale * std::sqrt(axes.minor);
-      el.bearing = axes.bearing;
-      el.counted = g.rows ? static_cast<double>(inside[l]) / static_cast<double>(g.rows) : kNaN;
-      f.ellipses.push_back(el);
-    }
-  });
+      about_mean.resize(g.rows, kInfinity);
+      if (g.rows == 0) {
+        f.cep = kNaN;
+      } else {
+        const std::uint64_t rank = quantile_rank(g.rows, 0.5);
+        std::nth_element(about_mean.begin(), about_mean.begin() + static_cast<long>(rank - 1),
+                         about_mean.end());
+        f.cep = about_mean[rank - 1];
+      }
+      f.cep_gaussian = m >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
+    });
+
+  // Ellipses (Gaussian approximation) and the share of the rows counted inside each, in one pass.
+  if (shapes)
+    tasks.run([&] {
+      const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
+      const double det = a * c - b * b;
+      std::vector<std::uint64_t> inside(s.levels.size(), 0);
+      std::vector<double> scale2(s.levels.size());
+      for (std::size_t l = 0; l < s.levels.size(); ++l) scale2[l] = -2.0 * std::log1p(-s.levels[l]);
+      if (det > 0.0)
+        for (std::size_t k = 0; k < m; ++k) {
+          const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
+          const double d2 = (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
+          for (std::size_t l = 0; l < scale2.size(); ++l) inside[l] += d2 <= scale2[l] ? 1 : 0;
+        }
+      for (std::size_t l = 0; l < s.levels.size(); ++l) {
+        DispersionEllipse el;
+        el.level = s.levels[l];
+        el.scale = std::sqrt(scale2[l]);
+        el.semi_major = el.scale * std::sqrt(axes.major);
+        el.semi_minor = el.scale * std::sqrt(axes.minor);
+        el.bearing = axes.bearing;
+        el.counted = g.rows ? static_cast<double>(inside[l]) / static_cast<double>(g.rows) : kNaN;
+        f.ellipses.push_back(el);
+      }
+    });
 
   // Downrange (along the bearing) and crossrange (to its right) about the centre.
-  tasks.run([&] {
-    RankScratch& scratch = scratches.local();
-    const double th = s.downrange_bearing * std::numbers::pi / 180.0;
-    const double ue = std::sin(th), un = std::cos(th);  // downrange unit vector
-    std::vector<double> down(m), cross(m), sd, sc;
-    for (std::size_t k = 0; k < m; ++k) {
-      const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
-      down[k] = de * ue + dn * un;
-      cross[k] = de * un - dn * ue;
-    }
-    sort_and_rank(down, &sd, r_down, scratch);
-    sort_and_rank(cross, &sc, r_cross, scratch);
-    for (double q : tail_probabilities(s.levels)) {
-      f.downrange.push_back(signed_quantile(sd, f.failed, q, s.confidence));
-      f.crossrange.push_back(signed_quantile(sc, f.failed, q, s.confidence));
-    }
-  });
+  if (place)
+    tasks.run([&] {
+      RankScratch& scratch = scratches.local();
+      const double th = s.downrange_bearing * std::numbers::pi / 180.0;
+      const double ue = std::sin(th), un = std::cos(th);  // downrange unit vector
+      std::vector<double> down(m), cross(m), sd, sc;
+      for (std::size_t k = 0; k < m; ++k) {
+        const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
+        down[k] = de * ue + dn * un;
+        cross[k] = de * un - dn * ue;
+      }
+      sort_and_rank(down, &sd, r_down, scratch);
+      sort_and_rank(cross, &sc, r_cross, scratch);
+      for (double q : tail_probabilities(s.levels)) {
+        f.downrange.push_back(signed_quantile(sd, f.failed, q, s.confidence));
+        f.crossrange.push_back(signed_quantile(sc, f.failed, q, s.confidence));
+      }
+    });
 
   // Hazard polygons: the convex hull of the k impacts nearest the mean in Mahalanobis distance,
   // k the rank of the distribution-free upper bound at the level, grown by the margin. The k
   // impacts it is built on lie inside by construction; every other impact is tested.
-  tasks.run([&] {
-    RankScratch& scratch = scratches.local();
-    // Mahalanobis distances (squared) about the mean, with the covariance made positive definite
-    // by the polygon margin when the impacts are degenerate (all on a line or a point).
-    const double floor =
-        std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
-    const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
-    const double det = a * c - b * b;
-    auto& keyed = scratch.keyed;
-    keyed.resize(m);
-    for (std::size_t k = 0; k < m; ++k) {
-      const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
-      keyed[k] = {(c * de * de - 2.0 * b * de * dn + a * dn * dn) / det,
-                  static_cast<std::uint32_t>(k)};
-    }
-    // Rank k of each level, and why a level has none.
-    f.polygons.resize(s.levels.size());
-    std::vector<std::size_t> order;  // determined levels, by rank ascending
-    for (std::size_t l = 0; l < s.levels.size(); ++l) {
-      HazardPolygon& poly = f.polygons[l];
-      poly.level = s.levels[l];
-      poly.rank = upper_bound_rank(g.rows, poly.level, s.confidence);
-      if (poly.rank > g.rows) {
-        poly.samples_needed = samples_for_bound(poly.level, s.confidence);
-        poly.reason = "too few samples for the bound";
-      } else if (poly.rank > m) {
-        poly.reason = "failed flights reach the bound (they count as landing infinitely far)";
-      } else {
-        order.push_back(l);
+  if (shapes)
+    tasks.run([&] {
+      RankScratch& scratch = scratches.local();
+      // Mahalanobis distances (squared) about the mean, with the covariance made positive definite
+      // by the polygon margin when the impacts are degenerate (all on a line or a point).
+      const double floor =
+          std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
+      const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
+      const double det = a * c - b * b;
+      auto& keyed = scratch.keyed;
+      keyed.resize(m);
+      for (std::size_t k = 0; k < m; ++k) {
+        const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
+        keyed[k] = {(c * de * de - 2.0 * b * de * dn + a * dn * dn) / det,
+                    static_cast<std::uint32_t>(k)};
       }
-    }
-    std::sort(order.begin(), order.end(), [&](std::size_t x, std::size_t y) {
-      return f.polygons[x].rank < f.polygons[y].rank;
+      // Rank k of each level, and why a level has none.
+      f.polygons.resize(s.levels.size());
+      std::vector<std::size_t> order;  // determined levels, by rank ascending
+      for (std::size_t l = 0; l < s.levels.size(); ++l) {
+        HazardPolygon& poly = f.polygons[l];
+        poly.level = s.levels[l];
+        poly.rank = upper_bound_rank(g.rows, poly.level, s.confidence);
+        if (poly.rank > g.rows) {
+          poly.samples_needed = samples_for_bound(poly.level, s.confidence);
+          poly.reason = "too few samples for the bound";
+        } else if (poly.rank > m) {
+          poly.reason = "failed flights reach the bound (they count as landing infinitely far)";
+        } else {
+          order.push_back(l);
+        }
+      }
+      std::sort(order.begin(), order.end(), [&](std::size_t x, std::size_t y) {
+        return f.polygons[x].rank < f.polygons[y].rank;
+      });
+      // Selections from the largest rank down make every nearest set a prefix of keyed.
+      auto by_distance = [](const auto& x, const auto& y) { return x.first < y.first; };
+      std::size_t prefix = m;
+      for (auto l = order.rbegin(); l != order.rend(); ++l) {
+        const auto k = static_cast<std::size_t>(f.polygons[*l].rank);
+        if (k < prefix) {
+          std::nth_element(keyed.begin(), keyed.begin() + static_cast<long>(k),
+                           keyed.begin() + static_cast<long>(prefix), by_distance);
+          prefix = k;
+        }
+      }
+      // Hulls from the smallest set up: the hull of a larger prefix is the hull of the smaller
+      // prefix's hull vertices and the points added, so each point enters one hull computation.
+      std::vector<PlanePoint> hull;
+      std::size_t done = 0;
+      for (std::size_t l : order) {
+        HazardPolygon& poly = f.polygons[l];
+        const auto k = static_cast<std::size_t>(poly.rank);
+        std::vector<PlanePoint> candidates = hull;
+        candidates.reserve(hull.size() + (k - done));
+        for (std::size_t j = done; j < k; ++j)
+          candidates.push_back({e[keyed[j].second], n[keyed[j].second]});
+        // Bounded before it seeds the next level: impacts on a curve are all hull vertices, and the
+        // outer approximation only ever adds area (docs/statistics.md).
+        hull = bounded_hull(convex_hull(std::move(candidates)), kPolygonVertices);
+        done = k;
+        poly.ring = grow_hull(hull, s.polygon_margin);
+        const ConvexPolygon convex(poly.ring);
+        std::uint64_t inside = k;  // the points the hull was built on lie inside it
+        for (std::size_t j = k; j < m; ++j)
+          inside += convex.contains(e[keyed[j].second], n[keyed[j].second]) ? 1 : 0;
+        poly.coverage = static_cast<double>(inside) / static_cast<double>(g.rows);
+        poly.area = polygon_area(poly.ring);
+        poly.determined = true;
+      }
     });
-    // Selections from the largest rank down make every nearest set a prefix of keyed.
-    auto by_distance = [](const auto& x, const auto& y) { return x.first < y.first; };
-    std::size_t prefix = m;
-    for (auto l = order.rbegin(); l != order.rend(); ++l) {
-      const auto k = static_cast<std::size_t>(f.polygons[*l].rank);
-      if (k < prefix) {
-        std::nth_element(keyed.begin(), keyed.begin() + static_cast<long>(k),
-                         keyed.begin() + static_cast<long>(prefix), by_distance);
-        prefix = k;
-      }
-    }
-    // Hulls from the smallest set up: the hull of a larger prefix is the hull of the smaller
-    // prefix's hull vertices and the points added, so each point enters one hull computation.
-    std::vector<PlanePoint> hull;
-    std::size_t done = 0;
-    for (std::size_t l : order) {
-      HazardPolygon& poly = f.polygons[l];
-      const auto k = static_cast<std::size_t>(poly.rank);
-      std::vector<PlanePoint> candidates = hull;
-      candidates.reserve(hull.size() + (k - done));
-      for (std::size_t j = done; j < k; ++j)
-        candidates.push_back({e[keyed[j].second], n[keyed[j].second]});
-      hull = convex_hull(std::move(candidates));
-      done = k;
-      poly.ring = grow_hull(bounded_hull(hull, kPolygonVertices), s.polygon_margin);
-      const ConvexPolygon convex(poly.ring);
-      std::uint64_t inside = k;  // the points the hull was built on lie inside it
-      for (std::size_t j = k; j < m; ++j)
-        inside += convex.contains(e[keyed[j].second], n[keyed[j].second]) ? 1 : 0;
-      poly.coverage = static_cast<double>(inside) / static_cast<double>(g.rows);
-      poly.area = polygon_area(poly.ring);
-      poly.determined = true;
-    }
-  });
 
   // Speed and energy: upper quantiles with one-sided bounds (failures at +inf); exceedance.
-  tasks.run([&] {
-    RankScratch& scratch = scratches.local();
-    std::vector<double> sorted, values(m);
-    for (std::size_t k = 0; k < m; ++k) values[k] = t.speed[g.landed[k]];
-    sort_doubles(values, scratch);
-    values.resize(g.rows, kInfinity);
-    f.speed = containment_sorted(values, s.levels, s.confidence);
+  if (place)
+    tasks.run([&] {
+      RankScratch& scratch = scratches.local();
+      std::vector<double> sorted, values(m);
+      for (std::size_t k = 0; k < m; ++k) values[k] = t.speed[g.landed[k]];
+      sort_doubles(values, scratch);
+      values.resize(g.rows, kInfinity);
+      f.speed = containment_sorted(values, s.levels, s.confidence);
 
-    std::uint64_t above = f.failed;
-    values.resize(m);
-    for (std::size_t k = 0; k < m; ++k) {
-      values[k] = t.energy[g.landed[k]];
-      if (values[k] > s.energy_threshold) ++above;
-    }
-    sort_and_rank(values, &sorted, r_energy, scratch);
-    sorted.resize(g.rows, kInfinity);
-    f.energy = containment_sorted(sorted, s.levels, s.confidence);
-    f.energy_exceedance = {s.energy_threshold,
-                           above,
-                           g.rows,
-                           g.rows ? static_cast<double>(above) / static_cast<double>(g.rows) : kNaN,
-                           clopper_pearson_lower(above, g.rows, s.confidence),
-                           clopper_pearson_upper(above, g.rows, s.confidence)};
+      std::uint64_t above = f.failed;
+      values.resize(m);
+      for (std::size_t k = 0; k < m; ++k) {
+        values[k] = t.energy[g.landed[k]];
+        if (values[k] > s.energy_threshold) ++above;
+      }
+      sort_and_rank(values, &sorted, r_energy, scratch);
+      sorted.resize(g.rows, kInfinity);
+      f.energy = containment_sorted(sorted, s.levels, s.confidence);
+      f.energy_exceedance = {
+          s.energy_threshold,
+          above,
+          g.rows,
+          g.rows ? static_cast<double>(above) / static_cast<double>(g.rows) : kNaN,
+          clopper_pearson_lower(above, g.rows, s.confidence),
+          clopper_pearson_upper(above, g.rows, s.confidence)};
 
-    // Time of flight over the landed rows.
-    values.resize(m);
-    for (std::size_t k = 0; k < m; ++k) values[k] = t.time[g.landed[k]];
-    sort_doubles(values, scratch);
-    f.time_min = m ? values.front() : kNaN;
-    f.time_max = m ? values.back() : kNaN;
-    std::vector<double> qs{0.5};
-    for (double p : s.levels) qs.push_back(p);
-    std::sort(qs.begin(), qs.end());
-    qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
-    for (double q : qs) f.time.push_back(signed_quantile(values, 0, q, s.confidence));
-  });
+      // Time of flight over the landed rows.
+      values.resize(m);
+      for (std::size_t k = 0; k < m; ++k) values[k] = t.time[g.landed[k]];
+      sort_doubles(values, scratch);
+      f.time_min = m ? values.front() : kNaN;
+      f.time_max = m ? values.back() : kNaN;
+      std::vector<double> qs{0.5};
+      for (double p : s.levels) qs.push_back(p);
+      std::sort(qs.begin(), qs.end());
+      qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
+      for (double q : qs) f.time.push_back(signed_quantile(values, 0, q, s.confidence));
+    });
   tasks.wait();
 
   // Spearman sensitivities over the landed rows.
-  if (ranked) {
+  if (!place) {
+    // left to the other half (merge_sections)
+  } else if (ranked) {
     f.sensitivity.resize(t.inputs.size());
     tbb::parallel_for(std::size_t{0}, t.inputs.size(), [&](std::size_t d) {
       RankScratch& scratch = scratches.local();
@@ -474,6 +486,25 @@ double Footprint::widest_relative_width() const {
   return widest;
 }
 
+void merge_sections(Footprint& shapes, const Footprint& place_and_spread) {
+  if (shapes.groups.size() != place_and_spread.groups.size())
+    throw std::invalid_argument("merge_sections: the halves have different groups");
+  for (std::size_t k = 0; k < shapes.groups.size(); ++k) {
+    GroupFootprint& into = shapes.groups[k];
+    const GroupFootprint& from = place_and_spread.groups[k];
+    into.containment = from.containment;
+    into.downrange = from.downrange;
+    into.crossrange = from.crossrange;
+    into.speed = from.speed;
+    into.energy = from.energy;
+    into.time = from.time;
+    into.time_min = from.time_min;
+    into.time_max = from.time_max;
+    into.energy_exceedance = from.energy_exceedance;
+    into.sensitivity = from.sensitivity;
+  }
+}
+
 double gaussian_circle_radius(const std::array<double, 3>& covariance, double p) {
   const Principal axes = principal_axes(covariance);
   const double s1 = std::sqrt(axes.major), s2 = std::sqrt(axes.minor);
@@ -537,9 +568,9 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
         compute_group(t, s, rows[b], s.body_names[b], nominal, s.body_counts[b], scratches));
     total_objects += s.body_counts[b];
   }
+  const bool shapes = (s.sections & kShapes) != 0;
   // Each body's grid from its own rows (its own count per object), merged for "all".
-  std::vector<ImpactGrid> grids;
-  for (std::size_t b = 0; b < bodies; ++b) {
+  for (std::size_t b = 0; b < bodies && shapes; ++b) {
     std::vector<double> e, n;
     for (std::uint32_t row : rows[b].landed) {
       e.push_back(t.east[row]);
@@ -556,13 +587,15 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
         s.centre == CentreRule::nominal ? s.nominal_impacts[0] : PlanePoint{};
     out.groups.push_back(
         compute_group(t, s, rows[bodies], "all", nominal, total_objects, scratches));
-    ImpactGrid merged = out.groups[0].grid;
-    for (std::size_t b = 1; b < bodies; ++b) merged = merge_grids(merged, out.groups[b].grid);
-    out.groups.back().grid = std::move(merged);
+    if (shapes) {
+      ImpactGrid merged = out.groups[0].grid;
+      for (std::size_t b = 1; b < bodies; ++b) merged = merge_grids(merged, out.groups[b].grid);
+      out.groups.back().grid = std::move(merged);
+    }
   }
 
   // The user's rules, for each body and for all.
-  for (std::size_t k = 0; k < out.groups.size(); ++k) {
+  for (std::size_t k = 0; k < out.groups.size() && shapes; ++k) {
     const GroupFootprint& g = out.groups[k];
     const GroupRows& r = k < bodies ? rows[k] : rows[bodies];
     if (bodies == 1 && k == 0) continue;  // one body: its figures are those of "all"

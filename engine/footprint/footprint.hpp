@@ -46,6 +46,15 @@ struct RuleLimits {
   std::optional<double> max_exceed;    ///< accepted probability of an impact above it
 };
 
+/// The two halves of the figures, so that two processes can compute them side by side.
+enum FootprintSection : unsigned {
+  /// containment, downrange and crossrange, speed, energy, time, exceedance, sensitivities
+  kPlaceAndSpread = 1,
+  /// CEP, ellipses, hazard polygons, grid, rules
+  kShapes = 2,
+  kAllSections = 3,
+};
+
 struct FootprintSettings {
   std::vector<double> levels{0.5, 0.9, 0.99, 0.999};
   double confidence = 0.95;
@@ -61,6 +70,7 @@ struct FootprintSettings {
   std::vector<double> body_counts;  ///< objects of each body per release (grid densities)
   std::uint64_t releases = 0;       ///< samples in the study
   RuleLimits rules;
+  unsigned sections = kAllSections;  ///< FootprintSection bits: which figures to compute
 };
 
 /// An estimated quantile with its two-sided distribution-free interval (+-inf: undetermined).
@@ -165,6 +175,9 @@ struct Footprint {
 
 /// Computes every figure. Throws std::invalid_argument for inconsistent settings.
 Footprint compute_footprint(const ImpactTable& table, const FootprintSettings& settings);
+
+/// Completes a footprint computed with kShapes by the kPlaceAndSpread figures of the same rows.
+void merge_sections(Footprint& shapes, const Footprint& place_and_spread);
 
 /// Radius of the circle about the mean holding probability p of a bivariate Gaussian with the
 /// given covariance (Hoyt's distribution, by Gauss-Kronrod quadrature and TOMS 748 from

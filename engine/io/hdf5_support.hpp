@@ -5,10 +5,15 @@
 
 #include <algorithm>
 #include <cstdint>
+#include <mutex>
 #include <string>
 #include <vector>
 
 namespace strewn::hdf5 {
+
+/// One lock for every HDF5 call of the process: the library and its C++ API are not safe for
+/// concurrent calls (a sweep writes several cases' files from several threads).
+std::recursive_mutex& hdf5_mutex();
 
 template <class T>
 H5::PredType type_of();
@@ -121,6 +126,8 @@ void write_vector(H5::Group& group, const std::string& name, const std::vector<T
     properties.setChunk(1, &chunk);
     properties.setShuffle();
     properties.setDeflate(1);
+  } else if (count * sizeof(T) <= 16384) {
+    properties.setLayout(H5D_COMPACT);  // small: the data lives in the object header
   }
   H5::DataSet set = group.createDataSet(name, type_of<T>(), space, properties);
   if (count) set.write(values.data(), type_of<T>());

@@ -17,6 +17,11 @@
 
 namespace strewn {
 
+std::recursive_mutex& hdf5::hdf5_mutex() {
+  static std::recursive_mutex lock;
+  return lock;
+}
+
 std::string sha256_hex(const std::string& text) {
   unsigned char digest[EVP_MAX_MD_SIZE];
   unsigned int length = 0;
@@ -34,16 +39,22 @@ namespace {
 
 using namespace hdf5;
 
-// An extendible column: chunked (at most 64 Ki rows a chunk), byte-shuffled and deflated.
+// An extendible column: chunked (at most 64 Ki rows a chunk); with [output] compress, also
+// byte-shuffled and deflated at level 1 (as small as level 4 on these columns, for less CPU).
+// Deflating costs about 1.3 us per row on the writing thread for 40 % less disk; off by default,
+// because the writer is the one serial part of a study on many ranks (docs/cluster.md).
 template <class T>
-H5::DataSet create_column(H5::Group& group, const std::string& name, std::size_t rows) {
+H5::DataSet create_column(H5::Group& group, const std::string& name, std::size_t rows,
+                          bool compress) {
   const hsize_t zero = 0, unlimited = H5S_UNLIMITED;
   H5::DataSpace space(1, &zero, &unlimited);
   H5::DSetCreatPropList properties;
   const hsize_t chunk = std::clamp<hsize_t>(rows, 1, 65536);
   properties.setChunk(1, &chunk);
-  properties.setShuffle();
-  properties.setDeflate(1);  // level 1: as small as 4 on these columns, for less CPU
+  if (compress) {
+    properties.setShuffle();
+    properties.setDeflate(1);
+  }
   return group.createDataSet(name, type_of<T>(), space, properties);
 }
 
@@ -102,6 +113,7 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
   temporary_ = (final_path.parent_path() /
                 (final_path.filename().string() + ".partial-" + std::to_string(::getpid())))
                    .string();
+  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   H5::Exception::dontPrint();
   io_guard(path_, [&] {
     auto open = std::make_unique<Open>();
@@ -125,13 +137,14 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
     write_strings_attribute(open->samples, "input_names", input_names);
     if (keep_samples) {
       auto& c = open->columns;
-      c.push_back(create_column<std::uint16_t>(open->samples, "body", rows));
+      const bool z = scenario.output.compress;
+      c.push_back(create_column<std::uint16_t>(open->samples, "body", rows, z));
       for (const char* name : {"east", "north", "time", "speed", "energy"})
-        c.push_back(create_column<double>(open->samples, name, rows));
-      c.push_back(create_column<std::uint8_t>(open->samples, "status", rows));
-      c.push_back(create_column<std::uint8_t>(open->samples, "canopy", rows));
+        c.push_back(create_column<double>(open->samples, name, rows, z));
+      c.push_back(create_column<std::uint8_t>(open->samples, "status", rows, z));
+      c.push_back(create_column<std::uint8_t>(open->samples, "canopy", rows, z));
       for (const auto& name : input_names)
-        c.push_back(create_column<double>(open->samples, name, rows));
+        c.push_back(create_column<double>(open->samples, name, rows, z));
     }
     open_ = std::move(open);
   });
@@ -139,6 +152,7 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
 
 ResultsWriter::~ResultsWriter() {
   if (!open_) return;
+  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   open_.reset();  // closes the file
   std::error_code ignored;
   std::filesystem::remove(temporary_, ignored);
@@ -146,6 +160,7 @@ ResultsWriter::~ResultsWriter() {
 
 void ResultsWriter::write(const StudyColumns& c, std::size_t first, std::size_t end) {
   if (!open_ || !open_->keep_samples || end <= first) return;
+  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   io_guard(path_, [&] {
     auto& d = open_->columns;
     append(d[0], c.body, first, end);
@@ -161,6 +176,7 @@ void ResultsWriter::write(const StudyColumns& c, std::size_t first, std::size_t 
 }
 
 void ResultsWriter::finish(const StudyRecord& record) {
+  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   io_guard(path_, [&] {
     H5::H5File& file = open_->file;
     write_attribute(file, "seed", record.seed);
@@ -169,6 +185,7 @@ void ResultsWriter::finish(const StudyRecord& record) {
     write_attribute(file, "failed", record.failed);
     write_attribute(file, "threads", record.threads);
     write_attribute(file, "rounds", record.rounds);
+    write_attribute(file, "ranks", record.ranks);
     write_footprint(file, record);
     file.flush(H5F_SCOPE_GLOBAL);
     open_.reset();  // closed before the rename
@@ -184,9 +201,7 @@ void write_results(const std::string& path, const Scenario& scenario, const Stud
   writer.finish(record);
 }
 
-namespace {
-// Appends the rows of a later part to the study so far.
-void append_part(StudyResult& total, StudyResult&& part) {
+void append_rows(StudyResult& total, StudyResult&& part) {
   if (total.columns.rows() == 0 && total.samples == 0) {
     total = std::move(part);
     return;
@@ -226,7 +241,6 @@ std::uint64_t next_sample_count(std::uint64_t n, double width, double target,
   auto next = static_cast<std::uint64_t>(std::ceil(wanted / 1024.0)) * 1024;
   return std::min(std::max(next, n + 1), max_samples);
 }
-}  // namespace
 
 StudyRun run_and_write(const SampleModel& model, const World& world, StudyOptions options,
                        const std::string& path, int threads, bool keep_samples) {
@@ -243,7 +257,7 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
     StudyOptions part = options;
     part.first_sample = run.result.samples;
     part.samples = total - run.result.samples;
-    append_part(run.result, run_study(model, part));
+    append_rows(run.result, run_study(model, part));
     ++rounds;
     footprint = compute_footprint(impact_table(run.result.columns),
                                   footprint_settings(s, world, run.result.samples));
@@ -259,7 +273,46 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
   return run;
 }
 
+std::vector<std::byte> footprint_image(const StudyRecord& record) {
+  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
+  H5::Exception::dontPrint();
+  try {
+    H5::FileAccPropList access;
+    access.setCore(1 << 20, false);  // in memory, never on disk
+    H5::H5File file("footprint-image", H5F_ACC_TRUNC, H5::FileCreatPropList::DEFAULT, access);
+    write_footprint(file, record);
+    file.flush(H5F_SCOPE_GLOBAL);
+    const ssize_t size = H5Fget_file_image(file.getId(), nullptr, 0);
+    if (size < 0) throw IoError("cannot take the image of the footprint");
+    std::vector<std::byte> image(static_cast<std::size_t>(size));
+    if (H5Fget_file_image(file.getId(), image.data(), image.size()) < 0)
+      throw IoError("cannot take the image of the footprint");
+    return image;
+  } catch (const H5::Exception& e) {
+    throw IoError("cannot take the image of the footprint (" + e.getDetailMsg() + ")");
+  }
+}
+
+Footprint footprint_from_image(std::span<const std::byte> image) {
+  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
+  H5::Exception::dontPrint();
+  try {
+    H5::FileAccPropList access;
+    access.setCore(1 << 20, false);
+    // The library copies the image in; it is only read.
+    if (H5Pset_file_image(access.getId(), const_cast<std::byte*>(image.data()), image.size()) < 0)
+      throw IoError("cannot read the image of the footprint");
+    H5::H5File file("footprint-image", H5F_ACC_RDONLY, H5::FileCreatPropList::DEFAULT, access);
+    StudyRecord record;
+    read_footprint(file, record);
+    return std::move(record.footprint);
+  } catch (const H5::Exception& e) {
+    throw IoError("cannot read the image of the footprint (" + e.getDetailMsg() + ")");
+  }
+}
+
 ResultsFile read_results(const std::string& path, bool with_samples) {
+  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   H5::Exception::dontPrint();
   if (!std::filesystem::exists(path)) throw InputFileError(path + ": no such results file");
   if (std::filesystem::is_directory(path))
@@ -286,6 +339,8 @@ ResultsFile read_results(const std::string& path, bool with_samples) {
     record.completed = read_attribute<std::uint64_t>(file, "completed");
     record.failed = read_attribute<std::uint64_t>(file, "failed");
     record.threads = read_attribute<int>(file, "threads");
+    record.rounds = read_attribute<int>(file, "rounds");
+    record.ranks = read_attribute<int>(file, "ranks");
     {
       H5::DataSet text = file.openDataSet("scenario");
       text.read(record.scenario_text, text.getStrType());

@@ -9,8 +9,10 @@
 //
 // The file is written under a temporary name beside the final one and renamed when complete, so
 // a file under the final name is always whole.
+#include <cstddef>
 #include <cstdint>
 #include <memory>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -48,6 +50,16 @@ class ResultsWriter : public RowSink {
 void write_results(const std::string& path, const Scenario& scenario, const StudyResult& result,
                    const StudyRecord& record, bool keep_samples = true);
 
+/// Appends the rows of a later part (or another rank's block) to a study's rows, in order.
+void append_rows(StudyResult& total, StudyResult&& part);
+
+/// The next sample count of a study grown toward `target` (relative width): widths of
+/// order-statistic bounds shrink about as 1/sqrt(n), so n (w / target)^2 with a 20 % margin, at
+/// least 1.5 and at most 4 times n; an undetermined bound asks for the samples it needs. Rounded
+/// up to a multiple of 1024, at most max_samples.
+std::uint64_t next_sample_count(std::uint64_t n, double width, double target,
+                                const Footprint& footprint, std::uint64_t max_samples);
+
 /// A study run to its end: every row, and its record with the footprint.
 struct StudyRun {
   StudyResult result;
@@ -74,6 +86,11 @@ struct ResultsFile {
 /// Reads a results file. Throws InputFileError for a missing, truncated or foreign file, or
 /// another format version.
 ResultsFile read_results(const std::string& path, bool with_samples = true);
+
+/// The footprint as bytes (an in-memory HDF5 image of /footprint, through the same code as the
+/// results file), to pass between processes, and back.
+std::vector<std::byte> footprint_image(const StudyRecord& record);
+Footprint footprint_from_image(std::span<const std::byte> image);
 
 /// SHA-256 of a text, as 64 hexadecimal digits (OpenSSL).
 std::string sha256_hex(const std::string& text);

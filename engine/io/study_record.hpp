@@ -20,6 +20,7 @@ struct StudyRecord {
   std::string engine_version, created, scenario_sha256, scenario_text, file;
   std::uint64_t seed = 0, samples = 0, completed = 0, failed = 0;
   int threads = 1;
+  int ranks = 1;                                       ///< MPI ranks of the run
   std::optional<double> latitude, longitude;           ///< the site's WGS84 origin, degrees
   double ground = 0.0;                                 ///< m above mean sea level
   PlanePoint release;                                  ///< nominal release point, m

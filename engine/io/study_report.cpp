@@ -144,7 +144,8 @@ nlohmann::json scenario_json(const Scenario& s) {
   if (s.rules.energy_limit) rules["energy_limit"] = *s.rules.energy_limit;
   if (s.rules.max_exceed) rules["max_exceed"] = *s.rules.max_exceed;
   j["rules"] = rules;
-  j["output"] = {{"file", s.output.file}, {"samples", s.output.samples}};
+  j["output"] = {
+      {"file", s.output.file}, {"samples", s.output.samples}, {"compress", s.output.compress}};
   nlohmann::json inputs = nlohmann::json::array();
   for (const auto& in : s.sampled_inputs)
     inputs.push_back({{"name", in.name},

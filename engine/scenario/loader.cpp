@@ -583,6 +583,7 @@ class Loader {
   void read_output(Table o) {
     if (auto file = o.text("file")) scenario_.output.file = *file;
     if (auto samples = o.boolean("samples")) scenario_.output.samples = *samples;
+    if (auto compress = o.boolean("compress")) scenario_.output.compress = *compress;
     o.finish();
   }
 

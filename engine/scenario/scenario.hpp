@@ -119,6 +119,7 @@ struct RulesSpec {
 struct OutputSpec {
   std::string file;
   bool samples = true;
+  bool compress = false;  ///< deflate the per-sample columns (smaller files, slower writes)
 };
 
 /// A sampled input: its key path (e.g. "bundle.mass") and distribution.

@@ -1,0 +1,179 @@
+#include "cluster/distributed_study.hpp"
+
+#include <cstring>
+#include <optional>
+
+namespace strewn {
+
+namespace {
+
+constexpr int kRowsTag = 11;
+constexpr std::size_t kRowsPerMessage = 65536;
+
+template <class T>
+void put(std::vector<std::byte>& out, const std::vector<T>& column, std::size_t first,
+         std::size_t end) {
+  const std::size_t bytes = (end - first) * sizeof(T);
+  const std::size_t at = out.size();
+  out.resize(at + bytes);
+  if (bytes) std::memcpy(out.data() + at, column.data() + first, bytes);
+}
+
+template <class T>
+void take(const std::vector<std::byte>& in, std::size_t& at, std::vector<T>& column,
+          std::size_t rows) {
+  const std::size_t old = column.size();
+  column.resize(old + rows);
+  if (rows) std::memcpy(column.data() + old, in.data() + at, rows * sizeof(T));
+  at += rows * sizeof(T);
+}
+
+// Rows [first, end) of the columns as one message: the row count, then each column in turn.
+std::vector<std::byte> pack(const StudyColumns& c, std::size_t first, std::size_t end) {
+  std::vector<std::byte> out;
+  const std::uint64_t rows = end - first;
+  out.resize(sizeof rows);
+  std::memcpy(out.data(), &rows, sizeof rows);
+  put(out, c.body, first, end);
+  put(out, c.east, first, end);
+  put(out, c.north, first, end);
+  put(out, c.time, first, end);
+  put(out, c.speed, first, end);
+  put(out, c.energy, first, end);
+  put(out, c.status, first, end);
+  put(out, c.canopy, first, end);
+  for (const auto& input : c.inputs) put(out, input, first, end);
+  return out;
+}
+
+// Appends a message's rows to `c` and returns how many there were.
+std::size_t unpack(const std::vector<std::byte>& in, StudyColumns& c) {
+  std::uint64_t rows = 0;
+  std::memcpy(&rows, in.data(), sizeof rows);
+  std::size_t at = sizeof rows;
+  take(in, at, c.body, rows);
+  take(in, at, c.east, rows);
+  take(in, at, c.north, rows);
+  take(in, at, c.time, rows);
+  take(in, at, c.speed, rows);
+  take(in, at, c.energy, rows);
+  take(in, at, c.status, rows);
+  take(in, at, c.canopy, rows);
+  for (auto& input : c.inputs) take(in, at, input, rows);
+  return rows;
+}
+
+}  // namespace
+
+namespace {
+
+constexpr int kFootprintTag = 12;
+constexpr std::uint64_t kNoMore = 0;
+
+// Sends rows [0, rows) of `c` to `to`, in messages of kRowsPerMessage rows.
+void send_rows(const Job& job, int to, const StudyColumns& c) {
+  for (std::size_t first = 0; first < c.rows(); first += kRowsPerMessage)
+    job.send(to, pack(c, first, std::min(c.rows(), first + kRowsPerMessage)), kRowsTag);
+}
+
+// Receives `rows` rows from `from` (every message, before anything else is done with them, so the
+// sender is not held up) as a part of a study.
+StudyResult receive_rows(const Job& job, int from, std::uint64_t rows,
+                         const std::vector<std::string>& input_names, std::size_t bodies) {
+  StudyResult piece;
+  piece.bodies = bodies;
+  piece.columns.input_names = input_names;
+  piece.columns.inputs.resize(input_names.size());
+  for (std::uint64_t received = 0; received < rows;)
+    received += unpack(job.receive(from, kRowsTag), piece.columns);
+  piece.samples = rows / bodies;
+  for (std::uint8_t st : piece.columns.status) (st == 0 ? piece.completed : piece.failed)++;
+  return piece;
+}
+
+}  // namespace
+
+// Rank 0 writes the file and computes half of the statistics (kShapes); rank 1 computes the other
+// half (kPlaceAndSpread) meanwhile. The order of the messages keeps both busy and cannot
+// deadlock:
+//   rank 0: send its rows to 1; receive 1's, write them; receive 2's, ...; compute its half;
+//           receive rank 1's half and merge;
+//   rank 1: receive 0's rows; send its own to 0; receive 2's, ...; compute its half; send it;
+//   rank r >= 2: send its rows to 1, then to 0.
+StudyRun run_on_ranks(const Job& job, const SampleModel& model, const World& world,
+                      StudyOptions options, const std::string& path, int threads,
+                      bool keep_samples) {
+  if (job.size() == 1) return run_and_write(model, world, options, path, threads, keep_samples);
+  const Scenario& s = model.scenario();
+  const std::size_t bodies = model.bodies();
+  std::vector<std::string> names;
+  for (const auto& input : model.sampler().inputs()) names.push_back(input.name);
+  std::optional<ResultsWriter> writer;
+  if (job.leader()) writer.emplace(path, s, names, options.samples * bodies, keep_samples);
+  constexpr int kStatistics = 1;
+
+  StudyRun run;  // rank 0: the rows in the file; rank 1: the rows for the statistics
+  std::uint64_t done = 0, total = options.samples;
+  int rounds = 0;
+  Footprint footprint;
+  while (true) {
+    const auto rows_of = [&](int rank) {
+      return rank_share(total - done, job.size(), rank).count * bodies;
+    };
+    const SampleRange share = rank_share(total - done, job.size(), job.rank());
+    StudyOptions part = options;
+    part.first_sample = done + share.first;
+    part.samples = share.count;
+    part.sink = job.leader() ? &*writer : nullptr;
+    if (!job.leader()) part.progress = nullptr;
+    StudyResult mine = run_study(model, part);
+    if (job.leader()) {
+      send_rows(job, kStatistics, mine.columns);
+      append_rows(run.result, std::move(mine));
+      for (int from = 1; from < job.size(); ++from) {
+        StudyResult piece = receive_rows(job, from, rows_of(from), names, bodies);
+        writer->write(piece.columns, 0, piece.columns.rows());
+        append_rows(run.result, std::move(piece));
+      }
+      // The other half of the statistics, while rank 1 computes its half.
+      FootprintSettings settings = footprint_settings(s, world, run.result.samples);
+      settings.sections = kShapes;
+      footprint = compute_footprint(impact_table(run.result.columns), settings);
+      merge_sections(footprint, footprint_from_image(job.receive(kStatistics, kFootprintTag)));
+    } else if (job.rank() == kStatistics) {
+      append_rows(run.result, receive_rows(job, 0, rows_of(0), names, bodies));
+      send_rows(job, 0, mine.columns);
+      append_rows(run.result, std::move(mine));
+      for (int from = 2; from < job.size(); ++from)
+        append_rows(run.result, receive_rows(job, from, rows_of(from), names, bodies));
+      FootprintSettings settings = footprint_settings(s, world, run.result.samples);
+      settings.sections = kPlaceAndSpread;
+      StudyRecord partial;
+      partial.footprint = compute_footprint(impact_table(run.result.columns), settings);
+      job.send(0, footprint_image(partial), kFootprintTag);
+    } else {
+      send_rows(job, kStatistics, mine.columns);
+      send_rows(job, 0, mine.columns);
+    }
+    ++rounds;
+    done = total;
+    std::uint64_t next = kNoMore;
+    if (job.leader() && s.study.target_width) {
+      const double width = footprint.widest_relative_width();
+      const auto max_samples = static_cast<std::uint64_t>(s.study.max_samples);
+      if (width > *s.study.target_width && total < max_samples)
+        next = next_sample_count(total, width, *s.study.target_width, footprint, max_samples);
+    }
+    next = job.broadcast(next);
+    if (next == kNoMore) break;
+    total = next;
+  }
+  if (!job.leader()) return {};
+  run.record = make_record(s, run.result, std::move(footprint), s.study.seed, threads);
+  run.record.rounds = rounds;
+  run.record.ranks = job.size();
+  writer->finish(run.record);
+  return run;
+}
+
+}  // namespace strewn

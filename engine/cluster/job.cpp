@@ -1,0 +1,128 @@
+#include "cluster/job.hpp"
+
+#include <algorithm>
+#include <cstdlib>
+#include <stdexcept>
+
+#ifdef STREWN_WITH_MPI
+#include <mpi.h>
+#endif
+
+namespace strewn {
+
+SampleRange rank_share(std::uint64_t samples, int ranks, int rank) {
+  const auto n = static_cast<std::uint64_t>(ranks), r = static_cast<std::uint64_t>(rank);
+  const std::uint64_t base = samples / n, extra = samples % n;
+  return {r * base + std::min(r, extra), base + (r < extra ? 1 : 0)};
+}
+
+#ifdef STREWN_WITH_MPI
+
+bool Job::built_with_mpi() {
+  return true;
+}
+
+namespace {
+// Launched by an MPI launcher or a scheduler's process manager? (Open MPI's mpirun, PMI and PMIx
+// as Slurm and MPICH set them.) Without one, strewn is a single process: initialising MPI as a
+// singleton would cost a third of a second on every command.
+bool under_launcher() {
+  for (const char* name : {"OMPI_COMM_WORLD_SIZE", "PMIX_RANK", "PMI_RANK", "PMI_SIZE"})
+    if (std::getenv(name)) return true;
+  return false;
+}
+}  // namespace
+
+Job::Job(int& argc, char**& argv) {
+  if (!under_launcher()) return;
+  int provided = 0;
+  MPI_Init_thread(&argc, &argv, MPI_THREAD_SERIALIZED, &provided);
+  initialised_ = true;
+  if (provided < MPI_THREAD_SERIALIZED) {
+    MPI_Finalize();
+    throw std::runtime_error(
+        "this MPI library cannot serve a second thread (MPI_THREAD_SERIALIZED)");
+  }
+  MPI_Comm_rank(MPI_COMM_WORLD, &rank_);
+  MPI_Comm_size(MPI_COMM_WORLD, &size_);
+}
+
+Job::~Job() {
+  if (initialised_) MPI_Finalize();
+}
+
+void Job::send(int to, std::span<const std::byte> bytes, int tag) const {
+  const auto size = static_cast<std::uint64_t>(bytes.size());
+  MPI_Send(&size, 1, MPI_UINT64_T, to, tag, MPI_COMM_WORLD);
+  // In pieces of at most 1 GiB: MPI counts are int.
+  constexpr std::uint64_t kPiece = std::uint64_t{1} << 30;
+  for (std::uint64_t at = 0; at < size; at += kPiece)
+    MPI_Send(bytes.data() + at, static_cast<int>(std::min(kPiece, size - at)), MPI_BYTE, to, tag,
+             MPI_COMM_WORLD);
+}
+
+std::vector<std::byte> Job::receive(int from, int tag) const {
+  std::uint64_t size = 0;
+  MPI_Recv(&size, 1, MPI_UINT64_T, from, tag, MPI_COMM_WORLD, MPI_STATUS_IGNORE);
+  std::vector<std::byte> bytes(size);
+  constexpr std::uint64_t kPiece = std::uint64_t{1} << 30;
+  for (std::uint64_t at = 0; at < size; at += kPiece)
+    MPI_Recv(bytes.data() + at, static_cast<int>(std::min(kPiece, size - at)), MPI_BYTE, from, tag,
+             MPI_COMM_WORLD, MPI_STATUS_IGNORE);
+  return bytes;
+}
+
+std::vector<std::byte> Job::receive_any(int tag, int& from) const {
+  std::uint64_t size = 0;
+  MPI_Status status;
+  MPI_Recv(&size, 1, MPI_UINT64_T, MPI_ANY_SOURCE, tag, MPI_COMM_WORLD, &status);
+  from = status.MPI_SOURCE;
+  std::vector<std::byte> bytes(size);
+  constexpr std::uint64_t kPiece = std::uint64_t{1} << 30;
+  for (std::uint64_t at = 0; at < size; at += kPiece)
+    MPI_Recv(bytes.data() + at, static_cast<int>(std::min(kPiece, size - at)), MPI_BYTE, from, tag,
+             MPI_COMM_WORLD, MPI_STATUS_IGNORE);
+  return bytes;
+}
+
+std::uint64_t Job::broadcast(std::uint64_t value) const {
+  if (size_ > 1) MPI_Bcast(&value, 1, MPI_UINT64_T, 0, MPI_COMM_WORLD);
+  return value;
+}
+
+void Job::barrier() const {
+  if (size_ > 1) MPI_Barrier(MPI_COMM_WORLD);
+}
+
+void Job::abort(int status) const {
+  if (size_ > 1) MPI_Abort(MPI_COMM_WORLD, status);
+  std::exit(status);
+}
+
+#else  // a single process
+
+bool Job::built_with_mpi() {
+  return false;
+}
+Job::Job(int&, char**&) {}
+Job::~Job() = default;
+void Job::send(int, std::span<const std::byte>, int) const {
+  throw std::logic_error("Job::send on a single-process job");
+}
+std::vector<std::byte> Job::receive(int, int) const {
+  throw std::logic_error("Job::receive on a single-process job");
+}
+std::vector<std::byte> Job::receive_any(int, int&) const {
+  throw std::logic_error("Job::receive_any on a single-process job");
+}
+std::uint64_t Job::broadcast(std::uint64_t value) const {
+  return value;
+}
+void Job::barrier() const {}
+void Job::abort(int status) const {
+  std::exit(status);
+}
+
+#endif
+
+}  // namespace strewn

@@ -1,0 +1,56 @@
+#pragma once
+// The processes of a run: one, or the ranks of an MPI job when strewn is built with MPI and
+// launched by mpirun or a batch scheduler (docs/cluster.md). Without MPI, or without a launcher,
+// a Job is a single rank and everything runs on threads.
+//
+// MPI is initialised with MPI_THREAD_SERIALIZED: TBB worker threads never call MPI, and the one
+// extra thread that does (the case manager of a sweep, on rank 0) runs while its rank's main
+// thread makes no MPI call.
+#include <cstdint>
+#include <span>
+#include <string>
+#include <vector>
+
+namespace strewn {
+
+class Job {
+ public:
+  /// A single-process job (no MPI).
+  Job() = default;
+  /// Initialises MPI when strewn was built with it and was started by an MPI launcher (mpirun,
+  /// srun: the environment says so); finalises it on destruction. Otherwise a single process.
+  Job(int& argc, char**& argv);
+  ~Job();
+  Job(const Job&) = delete;
+  Job& operator=(const Job&) = delete;
+
+  [[nodiscard]] int rank() const { return rank_; }
+  [[nodiscard]] int size() const { return size_; }
+  [[nodiscard]] bool leader() const { return rank_ == 0; }
+  /// True when built with MPI (whatever the number of ranks).
+  static bool built_with_mpi();
+
+  // Point-to-point and collective helpers over MPI_COMM_WORLD (no-ops on a single rank).
+  void send(int to, std::span<const std::byte> bytes, int tag) const;
+  std::vector<std::byte> receive(int from, int tag) const;
+  /// A message with this tag from any rank; `from` is set to the sender.
+  std::vector<std::byte> receive_any(int tag, int& from) const;
+  /// Rank 0's value, on every rank.
+  [[nodiscard]] std::uint64_t broadcast(std::uint64_t value) const;
+  void barrier() const;
+  /// Ends every rank at once (an error on one rank must not leave the others waiting).
+  [[noreturn]] void abort(int status) const;
+
+ private:
+  int rank_ = 0, size_ = 1;
+  bool initialised_ = false;
+};
+
+/// Samples [first, first + count) of rank `rank` among `ranks`: contiguous blocks in rank order,
+/// the remainder one each to the first ranks.
+struct SampleRange {
+  std::uint64_t first = 0, count = 0;
+};
+SampleRange rank_share(std::uint64_t samples, int ranks, int rank);
+
+}  // namespace strewn

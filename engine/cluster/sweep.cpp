@@ -1,0 +1,446 @@
+#include "cluster/sweep.hpp"
+
+#include <tbb/parallel_for.h>
+
+#include <toml++/toml.h>
+#include <atomic>
+#include <chrono>
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <iomanip>
+#include <mutex>
+#include <sstream>
+#include <thread>
+
+#include "core/errors.hpp"
+#include "io/report_files.hpp"
+#include "io/results_file.hpp"
+#include "io/sweep_file.hpp"
+#include "scenario/reader.hpp"
+#include "scenario/world.hpp"
+#include "study/sample_model.hpp"
+
+namespace strewn {
+
+namespace {
+
+namespace fs = std::filesystem;
+using scenario_detail::Bounds;
+using scenario_detail::Diagnostics;
+using scenario_detail::Table;
+
+std::string read_text(const std::string& path, Diagnostics& d, const std::string& key, long line) {
+  std::error_code ec;
+  if (fs::is_directory(path, ec)) {
+    d.add(key, line, path + " is a folder, not a file");
+    return {};
+  }
+  std::ifstream in(path, std::ios::binary);
+  if (!in) {
+    d.add(key, line, path + " cannot be read (no such file, or no permission)");
+    return {};
+  }
+  std::ostringstream buffer;
+  buffer << in.rdbuf();
+  return buffer.str();
+}
+
+const char* node_kind(const toml::node& n) {
+  if (n.is_string()) return "a string";
+  if (n.is_boolean()) return "true or false";
+  if (n.is_array()) return "a list";
+  if (n.is_table()) return "a table";
+  return "not a number";
+}
+
+// Where an axis key lands in the base scenario: the table that holds (or will hold) its last
+// part. Bodies are named by their `name` (or "body" when the only body has none). Returns null
+// with a message when the path cannot be placed.
+toml::table* place(toml::table& root, const std::vector<std::string>& parts, std::string& problem) {
+  toml::table* at = &root;
+  std::size_t i = 0;
+  if (auto* bodies = root["body"].as_array(); bodies && !parts.empty()) {
+    for (auto& b : *bodies) {
+      auto* body = b.as_table();
+      if (!body) continue;
+      const auto name = (*body)["name"].value<std::string>();
+      if ((name && *name == parts[0]) || (!name && bodies->size() == 1 && parts[0] == "body")) {
+        at = body;
+        i = 1;
+        break;
+      }
+    }
+  }
+  for (; i + 1 < parts.size(); ++i) {
+    toml::node* next = at->get(parts[i]);
+    if (!next) {
+      at = at->insert_or_assign(parts[i], toml::table{}).first->second.as_table();
+      continue;
+    }
+    if (!next->is_table()) {
+      problem = parts[i] + " is " + node_kind(*next) + ", not a table";
+      return nullptr;
+    }
+    at = next->as_table();
+  }
+  return at;
+}
+
+std::vector<std::string> split_key(const std::string& key) {
+  std::vector<std::string> parts;
+  std::string part;
+  std::istringstream in(key);
+  while (std::getline(in, part, '.')) parts.push_back(part);
+  return parts;
+}
+
+std::string format_value(double v) {
+  std::ostringstream s;
+  s << std::setprecision(12) << v;
+  return s.str();
+}
+
+std::string case_label(const SweepPlan& plan, std::size_t index) {
+  std::string label;
+  for (std::size_t a = 0; a < plan.axes.size(); ++a)
+    label += (a ? ", " : "") + plan.axes[a].key + " = " + format_value(plan.cases[index].values[a]);
+  return label;
+}
+
+}  // namespace
+
+SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
+  SweepPlan plan;
+  plan.path = path;
+  Diagnostics d(path);
+  plan.text = read_text(path, d, "", 0);
+  if (!d.empty()) throw ScenarioError(d.take());
+  if (plan.text.find('\0') != std::string::npos)
+    throw ScenarioError({{path, "", 0, "is a binary file, not a TOML sweep"}});
+  toml::table root;
+  try {
+    root = toml::parse(plan.text, path);
+  } catch (const toml::parse_error& e) {
+    throw ScenarioError(
+        {{path, "", static_cast<long>(e.source().begin.line), std::string(e.description())}});
+  }
+  Table top(d, &root, "");
+  const auto base = top.text("base", {}, true);
+  const auto combine = top.text("combine", {"grid", "zip"});
+  plan.zip = combine && *combine == "zip";
+  const auto output = top.text("output");
+  std::vector<Table> axes = top.tables("axis");
+  if (axes.empty() && !top.has("axis")) d.add("axis", 0L, "at least one [[axis]] is required");
+  top.finish();
+
+  // The base scenario, as a TOML table to place the axis values in.
+  toml::table base_table;
+  std::string base_text;
+  if (base) {
+    plan.base_path = (fs::path(path).parent_path() / *base).lexically_normal().string();
+    base_text = read_text(plan.base_path, d, "base", top.line_of("base"));
+    if (!base_text.empty()) {
+      try {
+        base_table = toml::parse(base_text, plan.base_path);
+      } catch (const toml::parse_error& e) {
+        d.add("base", top.line_of("base"),
+              plan.base_path + ":" + std::to_string(e.source().begin.line) + ": " +
+                  std::string(e.description()));
+        base_text.clear();
+      }
+    }
+  }
+  plan.output = output ? (fs::path(path).parent_path() / *output).lexically_normal().string()
+                       : "results/" + fs::path(path).stem().string() + ".h5";
+
+  for (auto& axis : axes) {
+    SweepAxis a;
+    const auto key = axis.text("key", {}, true);
+    const toml::array* values = axis.array("values");
+    if (!values) {
+      d.add(axis.key_path("values"), axis.line(), "is required: a list of numbers");
+    } else if (values->empty()) {
+      d.add(axis.key_path("values"), axis.line_of("values"),
+            "is empty: an axis needs at least one value");
+    } else {
+      a.integers = true;
+      for (const auto& v : *values) {
+        a.integers = a.integers && v.is_integer();
+        const auto number = scenario_detail::as_number(v);
+        if (!number || !std::isfinite(*number)) {
+          d.add(axis.key_path("values"), axis.line_of("values"), "must hold finite numbers only");
+          break;
+        }
+        a.values.push_back(*number);
+      }
+    }
+    axis.finish();
+    if (key) {
+      a.key = *key;
+      a.line = axis.line_of("key");
+      // The key must be a number in the base scenario (or a key it does not give yet, which the
+      // scenario check below accepts or refuses).
+      if (!base_text.empty()) {
+        toml::table probe = base_table;
+        std::string problem;
+        const auto parts = split_key(a.key);
+        toml::table* holder = parts.empty() ? nullptr : place(probe, parts, problem);
+        if (!holder) {
+          d.add(axis.key_path("key"), axis.line_of("key"),
+                a.key + " is not a key of the scenario" + (problem.empty() ? "" : ": " + problem));
+        } else if (const toml::node* existing = holder->get(parts.back())) {
+          if (existing->is_table())
+            d.add(axis.key_path("key"), axis.line_of("key"),
+                  a.key + " is a distribution in " + *base +
+                      "; sweep one of its parameters, e.g. " + a.key +
+                      (existing->as_table()->contains("mean") ? ".mean" : ".median"));
+          else if (!existing->is_number())
+            d.add(axis.key_path("key"), axis.line_of("key"),
+                  a.key + " is " + node_kind(*existing) + " in " + *base +
+                      "; an axis sweeps numeric keys only");
+        }
+      }
+    }
+    plan.axes.push_back(std::move(a));
+  }
+  if (plan.zip && !plan.axes.empty()) {
+    for (std::size_t i = 1; i < plan.axes.size(); ++i)
+      if (plan.axes[i].values.size() != plan.axes[0].values.size())
+        d.add("axis[" + std::to_string(i) + "].values", axes[i].line_of("values"),
+              "has " + std::to_string(plan.axes[i].values.size()) + " values but axis[0] has " +
+                  std::to_string(plan.axes[0].values.size()) +
+                  ": \"zip\" axes go in step and must be equally long");
+  }
+  if (!d.empty()) throw ScenarioError(d.take());
+
+  // The cases: grid (first axis slowest) or zip.
+  std::vector<std::vector<double>> combos;
+  if (plan.zip) {
+    for (std::size_t i = 0; i < plan.axes[0].values.size(); ++i) {
+      std::vector<double> c;
+      for (const auto& a : plan.axes) c.push_back(a.values[i]);
+      combos.push_back(c);
+    }
+  } else {
+    combos.push_back({});
+    for (const auto& a : plan.axes) {
+      std::vector<std::vector<double>> next;
+      for (const auto& c : combos)
+        for (double v : a.values) {
+          auto longer = c;
+          longer.push_back(v);
+          next.push_back(std::move(longer));
+        }
+      combos = std::move(next);
+    }
+  }
+  for (std::size_t index = 0; index < combos.size(); ++index) {
+    toml::table t = base_table;
+    for (std::size_t a = 0; a < plan.axes.size(); ++a) {
+      std::string problem;
+      const auto parts = split_key(plan.axes[a].key);
+      toml::table* holder = place(t, parts, problem);
+      const double v = combos[index][a];
+      const toml::node* existing = holder->get(parts.back());
+      if ((plan.axes[a].integers || (existing && existing->is_integer())) && v == std::floor(v) &&
+          std::abs(v) < 9e18)
+        holder->insert_or_assign(parts.back(), static_cast<std::int64_t>(v));
+      else
+        holder->insert_or_assign(parts.back(), v);
+    }
+    if (samples_override > 0) {
+      if (!t["study"].is_table()) t.insert_or_assign("study", toml::table{});
+      t["study"].as_table()->insert_or_assign("samples",
+                                              static_cast<std::int64_t>(samples_override));
+    }
+    std::ostringstream text;
+    text << "# case " << index << " of the sweep " << fs::path(path).filename().string() << ": "
+         << "the base scenario " << fs::path(plan.base_path).filename().string() << " with ";
+    for (std::size_t a = 0; a < plan.axes.size(); ++a)
+      text << (a ? ", " : "") << plan.axes[a].key << " = " << format_value(combos[index][a]);
+    text << "\n" << toml::toml_formatter(t) << "\n";
+    plan.cases.push_back({combos[index], text.str()});
+  }
+  // Every case must be a valid scenario before anything runs.
+  std::vector<Problem> problems;
+  for (std::size_t index = 0; index < plan.cases.size(); ++index) {
+    try {
+      const Scenario s = parse_scenario(plan.cases[index].text, plan.base_path);
+      (void)SampleModel(s, build_world(s), 1);  // correlations hold together
+      if (index == 0) plan.samples = static_cast<std::uint64_t>(s.study.samples);
+    } catch (const ScenarioError& e) {
+      for (const auto& p : e.problems()) {
+        // Name the axis whose key the problem is about, at its line in the sweep file.
+        std::string key_path = p.key_path;
+        long line = 0;
+        for (std::size_t a = 0; a < plan.axes.size(); ++a) {
+          const std::string& k = plan.axes[a].key;
+          if (p.key_path == k || k.rfind(p.key_path + ".", 0) == 0 ||
+              p.key_path.rfind(k + ".", 0) == 0) {
+            key_path = "axis[" + std::to_string(a) + "].key";
+            line = plan.axes[a].line;
+            break;
+          }
+        }
+        problems.push_back({path, key_path, line,
+                            "case " + std::to_string(index) + " (" + case_label(plan, index) +
+                                "): " + (key_path != p.key_path ? p.key_path + ": " : "") +
+                                p.message});
+      }
+    }
+    if (problems.size() > 20) break;  // the same mistake repeats in every case
+  }
+  if (!problems.empty()) throw ScenarioError(problems);
+  return plan;
+}
+
+namespace {
+
+std::string case_file(const std::string& folder, std::size_t index) {
+  std::ostringstream name;
+  name << "case-" << std::setw(5) << std::setfill('0') << index << ".h5";
+  return (fs::path(folder) / name.str()).string();
+}
+
+// A case is finished when its file reads back and was made from the same case scenario.
+bool finished(const std::string& file, const std::string& text) {
+  std::error_code ec;
+  if (!fs::exists(file, ec)) return false;
+  try {
+    return read_results(file, false).record.scenario_sha256 == sha256_hex(text);
+  } catch (const std::exception&) {
+    return false;
+  }
+}
+
+void run_case(const SweepPlan& plan, std::size_t index, const std::string& file, int threads) {
+  const Scenario s = parse_scenario(plan.cases[index].text, plan.base_path);
+  const World world = build_world(s);
+  const auto samples = static_cast<std::uint64_t>(s.study.samples);
+  const SampleModel model(s, world, samples);
+  StudyOptions options;
+  options.samples = samples;
+  (void)run_and_write(model, world, options, file, threads, s.output.samples);
+}
+
+constexpr int kRequestTag = 21, kAnswerTag = 22;
+
+}  // namespace
+
+int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options, std::ostream& out,
+              std::ostream& err) {
+  const std::string output = options.output.empty() ? plan.output : options.output;
+  const std::string folder = output + ".cases";
+  std::vector<std::size_t> pending;
+  int threads = options.threads;
+  if (threads <= 0) threads = static_cast<int>(std::thread::hardware_concurrency());
+  if (job.leader()) {
+    const auto parent = fs::path(output).parent_path();
+    if (!parent.empty() && !fs::is_directory(parent))
+      throw IoError(output + ": the folder " + parent.string() + " does not exist");
+    std::error_code ec;
+    if (options.fresh) fs::remove_all(folder, ec);
+    fs::create_directories(folder, ec);
+    if (ec)
+      throw IoError(folder + ": cannot create the folder of the cases (" + ec.message() + ")");
+    // Files left half-written by a stopped run.
+    for (const auto& entry : fs::directory_iterator(folder))
+      if (entry.path().filename().string().find(".partial-") != std::string::npos)
+        fs::remove(entry.path(), ec);
+    for (std::size_t i = 0; i < plan.cases.size(); ++i)
+      if (!finished(case_file(folder, i), plan.cases[i].text)) pending.push_back(i);
+    const std::size_t skipped = plan.cases.size() - pending.size();
+    if (!options.quiet && skipped > 0)
+      err << "sweep: " << skipped << " of " << plan.cases.size() << " cases already finished in "
+          << folder << "; running the other " << pending.size() << "\n";
+  }
+  std::mutex print;
+  auto report_done = [&](std::size_t index) {
+    if (options.quiet) return;
+    std::lock_guard<std::mutex> lock(print);
+    err << "sweep: case " << index << " done (" << case_label(plan, index) << ")\n";
+  };
+  std::atomic<std::size_t> next{0};
+  auto take = [&]() -> std::int64_t {
+    const std::size_t k = next++;
+    return k < pending.size() ? static_cast<std::int64_t>(pending[k]) : -1;
+  };
+
+  if (job.size() == 1) {
+    // Threads on one machine: cases dealt in order as threads finish; each case's study uses the
+    // threads left free (TBB shares them).
+    tbb::parallel_for(std::size_t{0}, pending.size(), std::size_t{1}, [&](std::size_t) {
+      const std::int64_t index = take();
+      if (index < 0) return;
+      run_case(plan, static_cast<std::size_t>(index),
+               case_file(folder, static_cast<std::size_t>(index)), threads);
+      report_done(static_cast<std::size_t>(index));
+    });
+  } else if (job.leader()) {
+    // The manager: a thread that answers every other rank's request with the next case index,
+    // and -1 when none is left; rank 0's own thread takes cases from the same counter.
+    std::thread manager([&] {
+      int stopped = 0;
+      while (stopped < job.size() - 1) {
+        int from = -1;
+        const auto request = job.receive_any(kRequestTag, from);
+        (void)request;
+        const std::int64_t index = take();
+        job.send(from, std::as_bytes(std::span(&index, 1)), kAnswerTag);
+        if (index < 0) ++stopped;
+      }
+    });
+    try {
+      for (std::int64_t index = take(); index >= 0; index = take()) {
+        run_case(plan, static_cast<std::size_t>(index),
+                 case_file(folder, static_cast<std::size_t>(index)), threads);
+        report_done(static_cast<std::size_t>(index));
+      }
+    } catch (const std::exception& e) {
+      err << "error: " << e.what() << "\n";
+      job.abort(3);
+    }
+    manager.join();
+  } else {
+    try {
+      while (true) {
+        const std::int64_t ask = 0;
+        job.send(0, std::as_bytes(std::span(&ask, 1)), kRequestTag);
+        const auto answer = job.receive(0, kAnswerTag);
+        std::int64_t index = -1;
+        std::memcpy(&index, answer.data(), sizeof index);
+        if (index < 0) break;
+        run_case(plan, static_cast<std::size_t>(index),
+                 case_file(folder, static_cast<std::size_t>(index)), threads);
+      }
+    } catch (const std::exception& e) {
+      err << "error (rank " << job.rank() << "): " << e.what() << "\n";
+      job.abort(3);
+    }
+  }
+  job.barrier();
+  if (!job.leader()) return 0;
+
+  // Rank 0 gathers the cases, in index order, into the sweep's file and its CSV summary.
+  std::vector<SweepCaseSource> sources;
+  std::vector<std::string> keys;
+  for (const auto& a : plan.axes) keys.push_back(a.key);
+  for (std::size_t i = 0; i < plan.cases.size(); ++i) {
+    const std::string file = case_file(folder, i);
+    if (!finished(file, plan.cases[i].text))
+      throw IoError(file + ": case " + std::to_string(i) + " did not finish");
+    sources.push_back({file, plan.cases[i].values});
+  }
+  const std::string csv = write_sweep_file(output, plan.text, keys, plan.zip, sources, job.size());
+  const std::string csv_path = (fs::path(output).replace_extension("").string()) + "-summary.csv";
+  write_report_file(csv_path, csv);
+  std::error_code ec;
+  fs::remove_all(folder, ec);
+  out << "strewn sweep: " << plan.cases.size() << " cases of " << plan.base_path << "\n"
+      << "results   " << output << "\nsummary   " << csv_path << "\n\n"
+      << csv;
+  return 0;
+}
+
+}  // namespace strewn

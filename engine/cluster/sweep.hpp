@@ -1,0 +1,58 @@
+#pragma once
+// Parameter sweeps: one base scenario, axes of values for numeric scenario keys, every case a
+// complete study (docs/cluster.md, sweep file in docs/commands.md).
+//
+// A sweep is checked whole before any case runs: every axis names a numeric key of the scenario
+// (by its key path, bodies by name, e.g. "release.altitude", "bundle.mass.mean"), every value list
+// is non-empty, "zip" axes are equally long, and every case is a valid scenario. Cases are dealt
+// out as workers finish: to the ranks of an MPI job by a manager thread on rank 0, and to threads
+// on one machine. Each finished case is a results file of its own (written whole, then renamed)
+// in a folder beside the sweep's output, so a stopped sweep resumes where it stopped; rank 0 then
+// gathers them into one file. The results do not depend on who ran which case.
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "cluster/job.hpp"
+
+namespace strewn {
+
+struct SweepAxis {
+  std::string key;
+  std::vector<double> values;
+  long line = 0;          ///< where its key stands in the sweep file, for messages
+  bool integers = false;  ///< every value written as a TOML integer: placed as integers
+};
+
+struct SweepCase {
+  std::vector<double> values;  ///< one per axis
+  std::string text;            ///< the case's scenario (TOML)
+};
+
+struct SweepPlan {
+  std::string path, text;  ///< the sweep file as given and as read
+  std::string base_path;   ///< the base scenario, resolved against the sweep file's folder
+  bool zip = false;
+  std::vector<SweepAxis> axes;
+  std::vector<SweepCase> cases;  ///< grid: the first axis varies slowest
+  std::string output;            ///< the sweep's results file
+  std::uint64_t samples = 0;     ///< per case (the base scenario's, or -n)
+};
+
+/// Reads and checks a sweep file and every case. Throws ScenarioError with every problem (the
+/// sweep file's line and key path), before anything runs.
+SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override = 0);
+
+struct SweepOptions {
+  int threads = 0;     ///< threads per rank (0: all)
+  bool fresh = false;  ///< ignore finished cases of an earlier, stopped run
+  bool quiet = false;
+  std::string output;  ///< overrides the plan's output
+};
+
+/// Runs the sweep on every rank of the job; rank 0 writes the sweep file and its CSV summary and
+/// prints where they are. Returns the exit status.
+int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options, std::ostream& out,
+              std::ostream& err);
+
+}  // namespace strewn

@@ -1,0 +1,167 @@
+#include "io/sweep_file.hpp"
+
+#include <H5Cpp.h>
+#include <unistd.h>
+
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <mutex>
+
+#include "core/errors.hpp"
+#include "core/version.hpp"
+#include "io/hdf5_support.hpp"
+#include "io/results_file.hpp"
+
+namespace strewn {
+
+using namespace hdf5;
+
+namespace {
+std::string number_text(double v) {
+  if (std::isnan(v)) return "";
+  if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
+  char text[40];
+  std::snprintf(text, sizeof text, "%.10g", v);
+  return text;
+}
+std::string level_text(double level) {
+  char text[32];
+  std::snprintf(text, sizeof text, "%g", level);
+  return text;
+}
+}  // namespace
+
+std::string write_sweep_file(const std::string& path, const std::string& sweep_text,
+                             const std::vector<std::string>& axis_keys, bool zip,
+                             const std::vector<SweepCaseSource>& cases, int ranks) {
+  namespace fs = std::filesystem;
+  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
+  H5::Exception::dontPrint();
+  const fs::path final_path(path);
+  const std::string temporary =
+      (final_path.parent_path() /
+       (final_path.filename().string() + ".partial-" + std::to_string(::getpid())))
+          .string();
+  // Summary columns, filled case by case.
+  std::vector<std::string> names{"case"};
+  for (const auto& k : axis_keys) names.push_back(k);
+  std::vector<std::vector<double>> numbers;  // per column after "case" and the axes
+  std::vector<std::string> number_names, text_names;
+  std::vector<std::vector<std::string>> texts;
+  std::string csv;
+  try {
+    H5::H5File file(temporary, H5F_ACC_TRUNC);
+    write_attribute(file, "format_version", kResultsFormatVersion);
+    write_attribute(file, "kind", std::string("sweep"));
+    write_attribute(file, "engine_version", std::string(kEngineVersion));
+    write_attribute(file, "combine", std::string(zip ? "zip" : "grid"));
+    write_attribute(file, "cases", static_cast<std::uint64_t>(cases.size()));
+    write_attribute(file, "ranks", ranks);
+    write_strings_attribute(file, "axes", axis_keys);
+    {
+      H5::StrType type(H5::PredType::C_S1, std::max<std::size_t>(1, sweep_text.size()));
+      file.createDataSet("sweep", type, H5::DataSpace()).write(sweep_text.c_str(), type);
+    }
+    H5::Group all_cases = file.createGroup("cases");
+    std::vector<std::uint64_t> index_column;
+    std::vector<std::vector<double>> axis_columns(axis_keys.size());
+    for (std::size_t i = 0; i < cases.size(); ++i) {
+      const ResultsFile source = read_results(cases[i].file, false);
+      const StudyRecord& r = source.record;
+      H5::H5File in(cases[i].file, H5F_ACC_RDONLY);
+      H5::Group target = all_cases.createGroup(std::to_string(i));
+      for (const char* object : {"scenario", "samples", "footprint"})
+        if (in.nameExists(object) &&
+            H5Ocopy(in.getId(), object, target.getId(), object, H5P_DEFAULT, H5P_DEFAULT) < 0)
+          throw IoError(path + ": cannot copy " + object + " of " + cases[i].file);
+      write_attribute(target, "engine_version", r.engine_version);
+      write_attribute(target, "created", r.created);
+      write_attribute(target, "seed", r.seed);
+      write_attribute(target, "samples", r.samples);
+      write_attribute(target, "completed", r.completed);
+      write_attribute(target, "failed", r.failed);
+      write_attribute(target, "scenario_sha256", r.scenario_sha256);
+      write_attribute(target, "threads", r.threads);
+      write_attribute(target, "ranks", r.ranks);
+      write_attribute(target, "rounds", r.rounds);
+      for (std::size_t a = 0; a < axis_keys.size(); ++a)
+        write_attribute(target, axis_keys[a], cases[i].values.at(a));
+
+      // The summary row.
+      index_column.push_back(i);
+      for (std::size_t a = 0; a < axis_keys.size(); ++a)
+        axis_columns[a].push_back(cases[i].values.at(a));
+      std::vector<std::pair<std::string, double>> row_numbers;
+      for (const auto& g : r.footprint.groups)
+        for (const auto& c : g.containment) {
+          row_numbers.emplace_back(g.name + ".radius_" + level_text(c.level), c.radius);
+          row_numbers.emplace_back(g.name + ".radius_upper_" + level_text(c.level),
+                                   c.radius_upper ? *c.radius_upper : std::nan(""));
+        }
+      std::vector<std::pair<std::string, std::string>> row_texts;
+      for (const auto& k : r.footprint.rules)
+        row_texts.emplace_back(k.group + "." + k.rule + ".status", to_string(k.status));
+      if (i == 0) {
+        for (const auto& [name, v] : row_numbers) number_names.push_back(name);
+        for (const auto& [name, v] : row_texts) text_names.push_back(name);
+        numbers.assign(number_names.size(), {});
+        texts.assign(text_names.size(), {});
+      }
+      if (row_numbers.size() != number_names.size() || row_texts.size() != text_names.size())
+        throw IoError(path + ": case " + std::to_string(i) +
+                      " has other bodies, levels or rules than case 0; a sweep's cases must "
+                      "report the same figures");
+      for (std::size_t k = 0; k < row_numbers.size(); ++k)
+        numbers[k].push_back(row_numbers[k].second);
+      for (std::size_t k = 0; k < row_texts.size(); ++k) texts[k].push_back(row_texts[k].second);
+    }
+    H5::Group summary = file.createGroup("summary");
+    std::vector<std::string> order{"case"};
+    write_vector(summary, "case", index_column);
+    for (std::size_t a = 0; a < axis_keys.size(); ++a) {
+      write_vector(summary, axis_keys[a], axis_columns[a]);
+      order.push_back(axis_keys[a]);
+    }
+    for (std::size_t k = 0; k < number_names.size(); ++k) {
+      write_vector(summary, number_names[k], numbers[k]);
+      order.push_back(number_names[k]);
+    }
+    for (std::size_t k = 0; k < text_names.size(); ++k) {
+      write_strings(summary, text_names[k], texts[k]);
+      order.push_back(text_names[k]);
+    }
+    write_strings_attribute(summary, "columns", order);
+
+    // The same table as CSV.
+    auto cell = [&](const std::string& text, bool first) {
+      if (!first) csv += ',';
+      csv += text;
+    };
+    for (std::size_t c = 0; c < order.size(); ++c) cell(order[c], c == 0);
+    csv += '\n';
+    for (std::size_t i = 0; i < cases.size(); ++i) {
+      cell(std::to_string(i), true);
+      for (std::size_t a = 0; a < axis_keys.size(); ++a)
+        cell(number_text(axis_columns[a][i]), false);
+      for (std::size_t k = 0; k < number_names.size(); ++k) cell(number_text(numbers[k][i]), false);
+      for (std::size_t k = 0; k < text_names.size(); ++k) cell(texts[k][i], false);
+      csv += '\n';
+    }
+    file.flush(H5F_SCOPE_GLOBAL);
+  } catch (const H5::Exception& e) {
+    std::error_code ignored;
+    fs::remove(temporary, ignored);
+    throw IoError(path + ": cannot write the sweep file (" + e.getDetailMsg() + ")");
+  } catch (...) {
+    std::error_code ignored;
+    fs::remove(temporary, ignored);
+    throw;
+  }
+  std::error_code error;
+  fs::rename(temporary, final_path, error);
+  if (error) throw IoError(path + ": cannot put the sweep file in place (" + error.message() + ")");
+  return csv;
+}
+
+}  // namespace strewn
