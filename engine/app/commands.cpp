@@ -68,6 +68,30 @@ std::string output_path(const RunArguments& a, const Scenario& s) {
   return "results/" + std::filesystem::path(a.scenario).stem().string() + ".h5";
 }
 
+// Refuses a study whose rows and statistics would not fit in this machine's memory, saying how
+// much they would take (ranks 0 and 1 hold every row, so more ranks do not help).
+void check_memory(const Scenario& s, const SampleModel& model) {
+  const auto samples = static_cast<double>(
+      s.study.target_width ? std::max(s.study.max_samples, s.study.samples) : s.study.samples);
+  // Per row: the columns (44 B and 8 B per sampled input) and the statistics' working arrays
+  // (about 100 B at their peak, docs/cluster.md).
+  const double per_row = 44.0 + 8.0 * static_cast<double>(model.sampler().dimensions()) + 100.0;
+  const double need = samples * static_cast<double>(model.bodies()) * per_row;
+  const double have = static_cast<double>(::sysconf(_SC_PHYS_PAGES)) *
+                      static_cast<double>(::sysconf(_SC_PAGE_SIZE));
+  if (have > 0.0 && need > 0.8 * have) {
+    char text[300];
+    std::snprintf(text, sizeof text,
+                  "%.0f samples would need about %.1f GiB of memory for their rows and statistics; "
+                  "this machine has %.1f GiB. Run fewer samples, or several studies with different "
+                  "seeds",
+                  samples, need / 1073741824.0, have / 1073741824.0);
+    throw ScenarioError(
+        {{s.path, s.study.target_width ? "study.max_samples" : "study.samples",
+          s.study.target_width ? s.study.max_samples_line : s.study.samples_line, text}});
+  }
+}
+
 int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& out) {
   const Scenario& s = model.scenario();
   // A study grown toward study.target_width may reach study.max_samples.
@@ -122,11 +146,17 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   if (a.sample) return job.leader() ? run_replay(a, model, out) : kExitDone;
 
   const std::string path = output_path(a, scenario);
+  // Where the path came from, for messages: the scenario's [output] file, or the command line.
+  const std::string origin =
+      !a.output.empty() || scenario.output.file.empty()
+          ? ""
+          : scenario.path + ":" + std::to_string(scenario.output.file_line) + ": output.file: ";
   // Refuse an unwritable destination before any flight.
   const auto folder = std::filesystem::path(path).parent_path();
   if (!folder.empty() && !std::filesystem::is_directory(folder))
-    throw IoError(path + ": the folder " + folder.string() + " does not exist");
+    throw IoError(origin + path + ": the folder " + folder.string() + " does not exist");
   const auto start_wall = std::chrono::steady_clock::now();
+  check_memory(scenario, model);
 
   StudyOptions options;
   options.samples = samples;
@@ -147,7 +177,12 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   const int threads = a.threads > 0 ? a.threads
                                     : static_cast<int>(tbb::global_control::active_value(
                                           tbb::global_control::max_allowed_parallelism));
-  StudyRun run = run_on_ranks(job, model, world, options, path, threads, scenario.output.samples);
+  StudyRun run;
+  try {
+    run = run_on_ranks(job, model, world, options, path, threads, scenario.output.samples);
+  } catch (const IoError& e) {
+    throw IoError(origin + e.what());
+  }
   if (!job.leader()) return kExitDone;
   if (show) err << "\n";
   run.record.file = path;
@@ -326,7 +361,8 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
     if (*report_cmd) return run_report(report, out);
     if (*check_cmd) {
       const Scenario scenario = load_scenario(check_scenario);
-      (void)SampleModel(scenario, build_world(scenario), 1);  // correlations hold together
+      const SampleModel model(scenario, build_world(scenario), 1);  // correlations hold together
+      check_memory(scenario, model);
       if (check_json)
         out << scenario_json(scenario).dump(2) << '\n';
       else

@@ -9,6 +9,7 @@
 #include <filesystem>
 #include <fstream>
 #include <iomanip>
+#include <iostream>
 #include <mutex>
 #include <sstream>
 #include <thread>
@@ -415,7 +416,7 @@ int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options
                  case_file(folder, static_cast<std::size_t>(index)), threads);
       }
     } catch (const std::exception& e) {
-      err << "error (rank " << job.rank() << "): " << e.what() << "\n";
+      std::cerr << "error (rank " << job.rank() << "): " << e.what() << "\n";
       job.abort(3);
     }
   }

@@ -510,6 +510,8 @@ class Loader {
   void read_study(Table s) {
     auto& st = scenario_.study;
     st.samples = s.integer("samples", 1, 2000000000L).value_or(st.samples);
+    st.samples_line = s.line_of("samples");
+    st.max_samples_line = s.line_of("max_samples");
     if (const toml::node* n = s.node("seed")) {
       const auto* i = n->as_integer();
       if (!i || i->get() < 0)
@@ -581,7 +583,10 @@ class Loader {
   }
 
   void read_output(Table o) {
-    if (auto file = o.text("file")) scenario_.output.file = *file;
+    if (auto file = o.text("file")) {
+      scenario_.output.file = *file;
+      scenario_.output.file_line = o.line_of("file");
+    }
     if (auto samples = o.boolean("samples")) scenario_.output.samples = *samples;
     if (auto compress = o.boolean("compress")) scenario_.output.compress = *compress;
     o.finish();

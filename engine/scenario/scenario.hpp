@@ -106,6 +106,7 @@ struct StudySpec {
   double grid = 10.0;              ///< m
   std::optional<double> target_width;
   long max_samples = 2000000;
+  long samples_line = 0, max_samples_line = 0;  ///< where they stand in the scenario, for messages
   double max_failed = 0.001;
 };
 
@@ -120,6 +121,7 @@ struct OutputSpec {
   std::string file;
   bool samples = true;
   bool compress = false;  ///< deflate the per-sample columns (smaller files, slower writes)
+  long file_line = 0;     ///< where `file` stands in the scenario, for messages
 };
 
 /// A sampled input: its key path (e.g. "bundle.mass") and distribution.

@@ -1,0 +1,43 @@
+#!/usr/bin/env bash
+# The bad-input catalogue: every malformed scenario here (catalogue.tsv: file, exit status, the
+# message it must produce) is refused by `strewn run` with that status and message, the file's
+# name, line and key path, and nothing written. Scenario problems are refused by `strewn check`
+# as well.
+# Usage: run.sh STREWN_BINARY
+set -uo pipefail
+strewn="$(realpath "$1")"
+here="$(cd "$(dirname "$0")" && pwd)"
+work="$(mktemp -d)"
+trap 'rm -rf "$work"' EXIT
+failures=0 cases=0
+while IFS=$'\t' read -r file status expected; do
+  [[ -z "$file" || "$file" == \#* ]] && continue
+  cases=$((cases + 1))
+  run="$work/$cases"
+  mkdir -p "$run/results"  # the default output folder exists: only the case's own problem counts
+  (cd "$run" && timeout 60 "$strewn" run "$here/$file" --quiet >"$run/out" 2>"$run/err"; echo $? >"$run/status")
+  got=$(cat "$run/status")
+  problem=""
+  [[ "$got" == "$status" ]] || problem="exit $got, expected $status"
+  if [[ "$expected" == "~"* ]]; then
+    grep -qF -- "${expected#\~}" "$run/err" || problem="$problem; message lacks: ${expected#\~}"
+  else
+    grep -qF -- "$file$expected" "$run/err" || problem="$problem; message lacks: $file$expected"
+  fi
+  [[ -s "$run/out" ]] && problem="$problem; standard output not empty"
+  left=$(find "$run" -name '*.h5*' | head -1)
+  [[ -n "$left" ]] && problem="$problem; wrote $left"
+  if [[ "$status" == 2 ]]; then
+    timeout 60 "$strewn" check "$here/$file" >/dev/null 2>&1
+    check=$?
+    [[ "$check" == 2 ]] || problem="$problem; check exit $check"
+  fi
+  if [[ -n "$problem" ]]; then
+    echo "FAIL: $file: ${problem#; }"
+    sed 's/^/      /' "$run/err" | head -5
+    failures=$((failures + 1))
+  fi
+done <"$here/catalogue.tsv"
+echo "bad-input catalogue: $cases cases, $failures failed"
+((cases >= 50)) || { echo "FAIL: the catalogue must hold at least 50 cases"; exit 1; }
+exit $((failures > 0))
