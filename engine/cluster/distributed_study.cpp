@@ -96,9 +96,9 @@ StudyResult receive_rows(const Job& job, int from, std::uint64_t rows,
 // Rank 0 writes the file and computes half of the statistics (kShapes); rank 1 computes the other
 // half (kPlaceAndSpread) meanwhile. The order of the messages keeps both busy and cannot
 // deadlock:
-//   rank 0: send its rows to 1; receive 1's, write them; receive 2's, ...; compute its half;
-//           receive rank 1's half and merge;
-//   rank 1: receive 0's rows; send its own to 0; receive 2's, ...; compute its half; send it;
+//   rank 0: send its rows to 1 while receiving 1's (non-blocking sends); write them; receive
+//           2's, ...; compute its half; receive rank 1's half and merge;
+//   rank 1: send its rows to 0 while receiving 0's; receive 2's, ...; compute its half; send it;
 //   rank r >= 2: send its rows to 1, then to 0.
 StudyRun run_on_ranks(const Job& job, const SampleModel& model, const World& world,
                       StudyOptions options, const std::string& path, int threads,
@@ -128,21 +128,33 @@ StudyRun run_on_ranks(const Job& job, const SampleModel& model, const World& wor
     if (!job.leader()) part.progress = nullptr;
     StudyResult mine = run_study(model, part);
     if (job.leader()) {
-      send_rows(job, kStatistics, mine.columns);
+      // Its rows go to rank 1 while rank 1's come here: both directions at once.
+      Job::Sends sends;
+      for (std::size_t first = 0; first < mine.columns.rows(); first += kRowsPerMessage)
+        sends.add(job, kStatistics,
+                  pack(mine.columns, first, std::min(mine.columns.rows(), first + kRowsPerMessage)),
+                  kRowsTag);
       append_rows(run.result, std::move(mine));
       for (int from = 1; from < job.size(); ++from) {
         StudyResult piece = receive_rows(job, from, rows_of(from), names, bodies);
+        if (from == kStatistics) sends.finish();
         writer->write(piece.columns, 0, piece.columns.rows());
         append_rows(run.result, std::move(piece));
       }
+      sends.finish();
       // The other half of the statistics, while rank 1 computes its half.
       FootprintSettings settings = footprint_settings(s, world, run.result.samples);
       settings.sections = kShapes;
       footprint = compute_footprint(impact_table(run.result.columns), settings);
       merge_sections(footprint, footprint_from_image(job.receive(kStatistics, kFootprintTag)));
     } else if (job.rank() == kStatistics) {
+      Job::Sends sends;
+      for (std::size_t first = 0; first < mine.columns.rows(); first += kRowsPerMessage)
+        sends.add(job, 0,
+                  pack(mine.columns, first, std::min(mine.columns.rows(), first + kRowsPerMessage)),
+                  kRowsTag);
       append_rows(run.result, receive_rows(job, 0, rows_of(0), names, bodies));
-      send_rows(job, 0, mine.columns);
+      sends.finish();
       append_rows(run.result, std::move(mine));
       for (int from = 2; from < job.size(); ++from)
         append_rows(run.result, receive_rows(job, from, rows_of(from), names, bodies));

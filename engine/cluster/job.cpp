@@ -61,6 +61,38 @@ void Job::send(int to, std::span<const std::byte> bytes, int tag) const {
              MPI_COMM_WORLD);
 }
 
+struct Job::Sends::State {
+  std::vector<std::unique_ptr<std::uint64_t>> sizes;
+  std::vector<std::vector<std::byte>> buffers;
+  std::vector<MPI_Request> requests;
+};
+Job::Sends::Sends() : state_(std::make_unique<State>()) {}
+Job::Sends::~Sends() {
+  finish();
+}
+void Job::Sends::add(const Job&, int to, std::vector<std::byte> bytes, int tag) {
+  constexpr std::uint64_t kPiece = std::uint64_t{1} << 30;
+  auto& st = *state_;
+  st.sizes.push_back(std::make_unique<std::uint64_t>(bytes.size()));
+  st.buffers.push_back(std::move(bytes));
+  const auto& data = st.buffers.back();
+  st.requests.emplace_back();
+  MPI_Isend(st.sizes.back().get(), 1, MPI_UINT64_T, to, tag, MPI_COMM_WORLD, &st.requests.back());
+  for (std::uint64_t at = 0; at < data.size(); at += kPiece) {
+    st.requests.emplace_back();
+    MPI_Isend(data.data() + at, static_cast<int>(std::min<std::uint64_t>(kPiece, data.size() - at)),
+              MPI_BYTE, to, tag, MPI_COMM_WORLD, &st.requests.back());
+  }
+}
+void Job::Sends::finish() {
+  if (!state_ || state_->requests.empty()) return;
+  MPI_Waitall(static_cast<int>(state_->requests.size()), state_->requests.data(),
+              MPI_STATUSES_IGNORE);
+  state_->requests.clear();
+  state_->buffers.clear();
+  state_->sizes.clear();
+}
+
 std::vector<std::byte> Job::receive(int from, int tag) const {
   std::uint64_t size = 0;
   MPI_Recv(&size, 1, MPI_UINT64_T, from, tag, MPI_COMM_WORLD, MPI_STATUS_IGNORE);
@@ -112,6 +144,15 @@ void Job::send(int, std::span<const std::byte>, int) const {
 std::vector<std::byte> Job::receive(int, int) const {
   throw std::logic_error("Job::receive on a single-process job");
 }
+struct Job::Sends::State {
+  bool unused = false;
+};
+Job::Sends::Sends() : state_(std::make_unique<State>()) {}
+Job::Sends::~Sends() = default;
+void Job::Sends::add(const Job&, int, std::vector<std::byte>, int) {
+  throw std::logic_error("Job::Sends on a single-process job");
+}
+void Job::Sends::finish() {}
 std::vector<std::byte> Job::receive_any(int, int&) const {
   throw std::logic_error("Job::receive_any on a single-process job");
 }

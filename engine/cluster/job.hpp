@@ -7,6 +7,7 @@
 // extra thread that does (the case manager of a sweep, on rank 0) runs while its rank's main
 // thread makes no MPI call.
 #include <cstdint>
+#include <memory>
 #include <span>
 #include <string>
 #include <vector>
@@ -32,6 +33,23 @@ class Job {
 
   // Point-to-point and collective helpers over MPI_COMM_WORLD (no-ops on a single rank).
   void send(int to, std::span<const std::byte> bytes, int tag) const;
+  /// Messages sent without waiting (MPI_Isend): they complete while this rank waits in other MPI
+  /// calls, so two ranks can exchange in both directions at once. Call finish() before dropping.
+  class Sends {
+   public:
+    Sends();
+    ~Sends();
+    Sends(const Sends&) = delete;
+    Sends& operator=(const Sends&) = delete;
+    /// Sends `bytes` (kept until finished) to `to`.
+    void add(const Job& job, int to, std::vector<std::byte> bytes, int tag);
+    /// Waits until every message is delivered.
+    void finish();
+
+   private:
+    struct State;
+    std::unique_ptr<State> state_;
+  };
   std::vector<std::byte> receive(int from, int tag) const;
   /// A message with this tag from any rank; `from` is set to the sender.
   std::vector<std::byte> receive_any(int tag, int& from) const;
