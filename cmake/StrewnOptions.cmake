@@ -7,6 +7,12 @@ target_compile_options(strewn_options INTERFACE -fno-math-errno)
 if(STREWN_WERROR)
   target_compile_options(strewn_options INTERFACE -Werror)
 endif()
+if(STREWN_FUZZ)
+  # Every library instrumented for libFuzzer's coverage, with ASan and UBSan (clang only).
+  target_compile_options(strewn_options INTERFACE -fsanitize=fuzzer-no-link,address,undefined
+                                                  -fno-omit-frame-pointer -fno-sanitize-recover=all)
+  target_link_options(strewn_options INTERFACE -fsanitize=address,undefined)
+endif()
 if(STREWN_SANITIZE)
   target_compile_options(strewn_options INTERFACE -fsanitize=address,undefined -fno-omit-frame-pointer
                                                   -fno-sanitize-recover=all)

@@ -7,6 +7,9 @@
 
 #include <tbb/global_control.h>
 #include <unistd.h>
+
+#include <atomic>
+#include <csignal>
 #include "core/errors.hpp"
 #include "core/version.hpp"
 
@@ -59,6 +62,36 @@ struct RunArguments {
   bool quiet = false;
   bool json = false;
   bool timing = false;
+  bool resume = false;
+};
+
+// Set by SIGINT and SIGTERM while a study runs (a lock-free atomic store is safe in a handler).
+std::atomic<bool> stop_requested{false};
+extern "C" void request_stop(int) {
+  stop_requested.store(true);
+}
+
+// Installs the handlers for the life of a run and restores the previous ones after.
+class StopOnSignals {
+ public:
+  StopOnSignals() {
+    stop_requested = false;
+    struct sigaction action {};
+    action.sa_handler = request_stop;
+    sigemptyset(&action.sa_mask);
+    sigaction(SIGINT, &action, &old_int_);
+    sigaction(SIGTERM, &action, &old_term_);
+  }
+  ~StopOnSignals() {
+    sigaction(SIGINT, &old_int_, nullptr);
+    sigaction(SIGTERM, &old_term_, nullptr);
+  }
+  StopOnSignals(const StopOnSignals&) = delete;
+  StopOnSignals& operator=(const StopOnSignals&) = delete;
+
+ private:
+  struct sigaction old_int_ {
+  }, old_term_{};
 };
 
 // The results file: -o, else the scenario's [output] file, else results/<scenario name>.h5.
@@ -179,9 +212,27 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
                                           tbb::global_control::max_allowed_parallelism));
   StudyRun run;
   try {
-    run = run_on_ranks(job, model, world, options, path, threads, scenario.output.samples);
+    if (job.size() == 1) {
+      // One process: a checkpoint beside the output, and SIGINT / SIGTERM stop cleanly.
+      const StopOnSignals signals;
+      RunControl control;
+      control.stop = &stop_requested;
+      control.checkpoint = true;
+      control.resume = a.resume;
+      run = run_and_write(model, world, options, path, threads, scenario.output.samples, control);
+    } else {
+      if (a.resume) throw UsageError("--resume works on one process; run it without mpirun");
+      run = run_on_ranks(job, model, world, options, path, threads, scenario.output.samples);
+    }
   } catch (const IoError& e) {
     throw IoError(origin + e.what());
+  }
+  if (run.result.interrupted) {
+    if (show) err << "\n";
+    err << "interrupted: " << run.result.samples << " of " << samples << " samples are kept in "
+        << path << ".checkpoint; no results file was written. Run the "
+        << "same command with --resume to go on.\n";
+    return kExitInterrupted;
   }
   if (!job.leader()) return kExitDone;
   if (show) err << "\n";
@@ -289,6 +340,8 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
                       "Replay this one sample with its trajectory (writes nothing)");
   run_cmd->add_flag("--quiet", run.quiet, "No progress line");
   run_cmd->add_flag("--json", run.json, "Print the summary as JSON");
+  run_cmd->add_flag("--resume", run.resume,
+                    "Go on from the checkpoint a stopped run left beside its output");
   run_cmd->add_flag(
       "--timing", run.timing,
       "Print the study's wall time (from input read to file written) on standard error");

@@ -9,6 +9,7 @@ namespace strewn {
 inline constexpr int kExitDone = 0;
 inline constexpr int kExitInvalid = 2;
 inline constexpr int kExitFailure = 3;
+inline constexpr int kExitInterrupted = 4;  ///< SIGINT or SIGTERM: finished samples checkpointed
 
 /// Runs strewn with the given arguments, writing results to `out` and messages to `err`.
 class Job;

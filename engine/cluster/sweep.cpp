@@ -37,6 +37,11 @@ std::string read_text(const std::string& path, Diagnostics& d, const std::string
     d.add(key, line, path + " is a folder, not a file");
     return {};
   }
+  if (fs::exists(path, ec) &&
+      (!fs::is_regular_file(path, ec) || fs::file_size(path, ec) > (16u << 20))) {
+    d.add(key, line, path + " is not a regular TOML file of at most 16 MiB");
+    return {};
+  }
   std::ifstream in(path, std::ios::binary);
   if (!in) {
     d.add(key, line, path + " cannot be read (no such file, or no permission)");

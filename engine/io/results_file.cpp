@@ -4,14 +4,17 @@
 #include <openssl/evp.h>
 #include <unistd.h>
 
+#include <atomic>
 #include <chrono>
 #include <cstdio>
 #include <ctime>
 #include <filesystem>
+#include <optional>
 
 #include "core/errors.hpp"
 #include "core/version.hpp"
 #include "footprint/footprint.hpp"
+#include "io/checkpoint.hpp"
 #include "io/footprint_file.hpp"
 #include "io/hdf5_support.hpp"
 
@@ -82,12 +85,40 @@ std::string now_iso8601() {
 
 }  // namespace
 
+namespace {
+std::atomic<bool> unclean_close{false};
+}  // namespace
+
+bool hdf5_left_unclean() {
+  return unclean_close.load();
+}
+
 struct ResultsWriter::Open {
   H5::H5File file;
   H5::Group samples;
   std::vector<H5::DataSet>
       columns;  // body, east, north, time, speed, energy, status, canopy, inputs...
   bool keep_samples = true;
+
+  // Closes everything, explicitly: after a failed write (a full disk) a close can fail too.
+  // Returns false then; the caller must not destroy this object, whose HDF5 destructors would
+  // close the same identifiers again (HDF5 1.10 crashes on that), and the program ends without
+  // HDF5's exit-time clean-up (hdf5_left_unclean).
+  bool close() {
+    bool clean = true;
+    auto attempt = [&](auto& object) {
+      try {
+        object.close();
+      } catch (const H5::Exception&) {
+        clean = false;
+      }
+    };
+    for (auto& c : columns) attempt(c);
+    attempt(samples);
+    attempt(file);
+    if (!clean) unclean_close = true;
+    return clean;
+  }
 };
 
 namespace {
@@ -153,7 +184,10 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
 ResultsWriter::~ResultsWriter() {
   if (!open_) return;
   const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
-  open_.reset();  // closes the file
+  if (open_->close())
+    open_.reset();
+  else
+    (void)open_.release();  // left to the end of the program, see Open::close()
   std::error_code ignored;
   std::filesystem::remove(temporary_, ignored);
 }
@@ -188,6 +222,10 @@ void ResultsWriter::finish(const StudyRecord& record) {
     write_attribute(file, "ranks", record.ranks);
     write_footprint(file, record);
     file.flush(H5F_SCOPE_GLOBAL);
+    if (!open_->close()) {
+      (void)open_.release();  // see Open::close()
+      throw IoError(path_ + ": cannot close the results file");
+    }
     open_.reset();  // closed before the rename
     std::filesystem::rename(temporary_, path_);
   });
@@ -242,22 +280,97 @@ std::uint64_t next_sample_count(std::uint64_t n, double width, double target,
   return std::min(std::max(next, n + 1), max_samples);
 }
 
+namespace {
+// Rows of samples [first, first + count) of a study's rows.
+StudyResult slice_samples(const StudyResult& from, std::uint64_t first, std::uint64_t count) {
+  StudyResult piece;
+  const std::size_t bodies = std::max<std::size_t>(1, from.bodies);
+  piece.bodies = bodies;
+  piece.samples = count;
+  const std::size_t a = first * bodies, b = (first + count) * bodies;
+  const auto& c = from.columns;
+  auto& p = piece.columns;
+  auto cut = [&](auto& to, const auto& column) {
+    to.assign(column.begin() + a, column.begin() + b);
+  };
+  cut(p.body, c.body);
+  cut(p.east, c.east);
+  cut(p.north, c.north);
+  cut(p.time, c.time);
+  cut(p.speed, c.speed);
+  cut(p.energy, c.energy);
+  cut(p.status, c.status);
+  cut(p.canopy, c.canopy);
+  p.input_names = c.input_names;
+  p.inputs.resize(c.inputs.size());
+  for (std::size_t d = 0; d < c.inputs.size(); ++d) cut(p.inputs[d], c.inputs[d]);
+  for (std::uint8_t st : p.status) (st == 0 ? piece.completed : piece.failed)++;
+  return piece;
+}
+
+// Rows go to the results file and, when kept, to the checkpoint.
+class Tee : public RowSink {
+ public:
+  Tee(ResultsWriter& writer, Checkpoint* checkpoint) : writer_(writer), checkpoint_(checkpoint) {}
+  void write(const StudyColumns& c, std::size_t first, std::size_t end) override {
+    writer_.write(c, first, end);
+    if (checkpoint_) checkpoint_->append(c, first, end);
+  }
+
+ private:
+  ResultsWriter& writer_;
+  Checkpoint* checkpoint_;
+};
+}  // namespace
+
 StudyRun run_and_write(const SampleModel& model, const World& world, StudyOptions options,
-                       const std::string& path, int threads, bool keep_samples) {
+                       const std::string& path, int threads, bool keep_samples,
+                       const RunControl& control) {
   const Scenario& s = model.scenario();
   std::vector<std::string> names;
   for (const auto& input : model.sampler().inputs()) names.push_back(input.name);
   ResultsWriter writer(path, s, names, options.samples * model.bodies(), keep_samples);
-  options.sink = &writer;
+  std::optional<Checkpoint> checkpoint;
+  StudyResult preloaded;
+  if (control.checkpoint || control.resume) {
+    checkpoint.emplace(path + ".checkpoint",
+                       Checkpoint::Identity{sha256_hex(s.text), s.study.seed, options.samples,
+                                            model.bodies(), names.size()},
+                       names, control.resume);
+    preloaded = checkpoint->take_rows();
+    preloaded.bodies = model.bodies();
+  }
+  Tee tee(writer, checkpoint ? &*checkpoint : nullptr);
+  options.sink = &tee;
+  options.stop = control.stop;
   StudyRun run;
+  run.result.bodies = model.bodies();
+  run.result.columns.input_names = names;
+  run.result.columns.inputs.resize(names.size());
   std::uint64_t total = options.samples;
   int rounds = 0;
   Footprint footprint;
   while (true) {
-    StudyOptions part = options;
-    part.first_sample = run.result.samples;
-    part.samples = total - run.result.samples;
-    append_rows(run.result, run_study(model, part));
+    // Samples [done, total): first those the checkpoint holds, then flown.
+    if (run.result.samples < std::min(total, preloaded.samples)) {
+      StudyResult piece = slice_samples(preloaded, run.result.samples,
+                                        std::min(total, preloaded.samples) - run.result.samples);
+      writer.write(piece.columns, 0, piece.columns.rows());
+      append_rows(run.result, std::move(piece));
+      if (options.progress) options.progress(run.result.samples);
+    }
+    if (run.result.samples < total) {
+      StudyOptions part = options;
+      part.first_sample = run.result.samples;
+      part.samples = total - run.result.samples;
+      StudyResult flown = run_study(model, part);
+      const bool stopped = flown.interrupted;
+      append_rows(run.result, std::move(flown));
+      if (stopped) {
+        run.result.interrupted = true;
+        return run;  // the writer removes its temporary file; the checkpoint stays
+      }
+    }
     ++rounds;
     footprint = compute_footprint(impact_table(run.result.columns),
                                   footprint_settings(s, world, run.result.samples));
@@ -270,6 +383,7 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
   run.record = make_record(s, run.result, std::move(footprint), s.study.seed, threads);
   run.record.rounds = rounds;
   writer.finish(run.record);
+  if (checkpoint) checkpoint->remove();
   return run;
 }
 

@@ -9,6 +9,7 @@
 //
 // The file is written under a temporary name beside the final one and renamed when complete, so
 // a file under the final name is always whole.
+#include <atomic>
 #include <cstddef>
 #include <cstdint>
 #include <memory>
@@ -60,6 +61,13 @@ void append_rows(StudyResult& total, StudyResult&& part);
 std::uint64_t next_sample_count(std::uint64_t n, double width, double target,
                                 const Footprint& footprint, std::uint64_t max_samples);
 
+/// How a run may be stopped and taken up again.
+struct RunControl {
+  const std::atomic<bool>* stop = nullptr;  ///< set (by SIGINT or SIGTERM) to stop early
+  bool checkpoint = false;  ///< keep `<path>.checkpoint` as the study runs (io/checkpoint.hpp)
+  bool resume = false;      ///< start from the rows of an existing checkpoint
+};
+
 /// A study run to its end: every row, and its record with the footprint.
 struct StudyRun {
   StudyResult result;
@@ -70,8 +78,12 @@ struct StudyRun {
 /// compressed and written while the next one computes; the footprint follows. With
 /// study.target_width, parts of samples are added (indices continuing, so reproducibly) until
 /// the widest containment bound is that tight or study.max_samples is reached.
+/// With a RunControl: a stopped run returns with result.interrupted set, no file under the final
+/// name, and its finished rows kept in the checkpoint; a resumed run flies only what the
+/// checkpoint lacks.
 StudyRun run_and_write(const SampleModel& model, const World& world, StudyOptions options,
-                       const std::string& path, int threads, bool keep_samples = true);
+                       const std::string& path, int threads, bool keep_samples = true,
+                       const RunControl& control = {});
 
 /// A results file read back: the record (root attributes and /footprint) and, when asked and
 /// kept, the per-sample columns.
@@ -91,6 +103,10 @@ ResultsFile read_results(const std::string& path, bool with_samples = true);
 /// results file), to pass between processes, and back.
 std::vector<std::byte> footprint_image(const StudyRecord& record);
 Footprint footprint_from_image(std::span<const std::byte> image);
+
+/// True after an HDF5 file failed to close (a full disk): the library then cannot shut down
+/// cleanly, so the program should end without its exit-time clean-up (app/main.cpp).
+bool hdf5_left_unclean();
 
 /// SHA-256 of a text, as 64 hexadecimal digits (OpenSSL).
 std::string sha256_hex(const std::string& text);

@@ -719,6 +719,11 @@ Scenario load_scenario(const std::string& path) {
   std::error_code ec;
   if (std::filesystem::is_directory(path, ec))
     throw ScenarioError({{path, "", 0, "is a folder, not a scenario file"}});
+  // A regular file of sane size only: /dev/zero or a pipe would be read for ever.
+  if (std::filesystem::exists(path, ec) && !std::filesystem::is_regular_file(path, ec))
+    throw ScenarioError({{path, "", 0, "is not a regular file (a scenario is a TOML file)"}});
+  if (std::filesystem::exists(path, ec) && std::filesystem::file_size(path, ec) > (16u << 20))
+    throw ScenarioError({{path, "", 0, "is larger than 16 MiB; a scenario is a small TOML file"}});
   std::ifstream in(path, std::ios::binary);
   if (!in) throw ScenarioError({{path, "", 0, "cannot be read (no such file, or no permission)"}});
   std::ostringstream buffer;

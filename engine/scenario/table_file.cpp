@@ -2,6 +2,7 @@
 
 #include <charconv>
 #include <cmath>
+#include <filesystem>
 #include <fstream>
 #include <sstream>
 
@@ -26,6 +27,17 @@ std::vector<std::string> split(const std::string& line) {
 }  // namespace
 
 TableFile read_table_file(const std::string& path, const std::vector<std::string>& columns) {
+  // A regular file of sane size only: a device (/dev/zero), a pipe or a folder would make the
+  // reading hang or fail obscurely.
+  constexpr std::uintmax_t kLargest = std::uintmax_t{64} << 20;
+  std::error_code fs_error;
+  const auto status = std::filesystem::status(path, fs_error);
+  if (fs_error || !std::filesystem::exists(status))
+    throw TableFileError(path + ": cannot be read (no such file, or no permission)");
+  if (!std::filesystem::is_regular_file(status))
+    throw TableFileError(path + ": is not a regular file (a table must be a CSV file)");
+  if (std::filesystem::file_size(path, fs_error) > kLargest)
+    throw TableFileError(path + ": is larger than 64 MiB; a sounding or wind table is far smaller");
   std::ifstream in(path);
   if (!in) throw TableFileError(path + ": cannot be read (no such file, or no permission)");
   TableFile table;

@@ -101,12 +101,29 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
   const int workers = tbb::this_task_arena::max_concurrency();
   tbb::parallel_for(0, workers, [&](int) {
     for (std::uint64_t k = next_block++; k < blocks; k = next_block++) {
+      if (options.stop && options.stop->load()) break;
       run_block(k * block, std::min(options.samples, (k + 1) * block));
       const std::uint64_t r = k / kBlocksPerRound;
       if (--remaining[r] == 0) drain();
     }
   });
   drain();  // nothing can be left, but make sure
+  if (next_round.load() < rounds) {
+    // Stopped: keep the rounds that were finished (and written) in order, a prefix of samples.
+    const std::uint64_t kept =
+        std::min(options.samples, next_round.load() * kBlocksPerRound * block);
+    result.interrupted = true;
+    result.samples = kept;
+    c.body.resize(kept * bodies);
+    c.east.resize(kept * bodies);
+    c.north.resize(kept * bodies);
+    c.time.resize(kept * bodies);
+    c.speed.resize(kept * bodies);
+    c.energy.resize(kept * bodies);
+    c.status.resize(kept * bodies);
+    c.canopy.resize(kept * bodies);
+    for (auto& input : c.inputs) input.resize(kept * bodies);
+  }
   for (std::uint8_t st : c.status) (st == 0 ? result.completed : result.failed)++;
   return result;
 }

@@ -47,6 +47,9 @@ struct StudyOptions {
   /// with the samples done so far.
   std::function<void(std::uint64_t done)> progress;
   RowSink* sink = nullptr;  ///< optional
+  /// When set (a signal handler may set it), workers take no new block; the rounds finished in
+  /// order are still written and the result holds them: a prefix of the samples.
+  const std::atomic<bool>* stop = nullptr;
 };
 
 struct StudyResult {
@@ -55,6 +58,7 @@ struct StudyResult {
   std::uint64_t completed = 0;  ///< rows that landed
   std::uint64_t failed = 0;     ///< rows that did not
   std::size_t bodies = 0;
+  bool interrupted = false;  ///< stopped early: `samples` counts the prefix that was finished
 };
 
 /// Runs the study on the threads TBB may use (limit them with tbb::global_control).

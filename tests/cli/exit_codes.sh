@@ -33,6 +33,7 @@ expect 2 "TOML syntax error" -- "$strewn" trace "$work/syntax.toml"
 head -c 300 /dev/urandom >"$work/binary.toml"
 expect 2 "binary file" -- "$strewn" trace "$work/binary.toml"
 expect 2 "missing file" -- "$strewn" trace "$work/missing.toml"
+expect 2 "a device, not a file (read for ever if taken as one)" -- timeout 20 "$strewn" check /dev/zero
 expect 2 "no command" -- "$strewn"
 expect 2 "unknown option" -- "$strewn" trace "$source_dir/inputs/ridge-drop.toml" --speed 3
 # report: results files that are not what they must be are refused with status 2.

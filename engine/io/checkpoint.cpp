@@ -1,0 +1,157 @@
+#include "io/checkpoint.hpp"
+
+#include <unistd.h>
+#include <zlib.h>
+
+#include <cstring>
+#include <filesystem>
+#include <sstream>
+
+#include "core/errors.hpp"
+
+namespace strewn {
+
+namespace {
+
+constexpr std::uint64_t kRecordMagic = 0x73747277636b7074ULL;  // "strwckpt"
+
+std::string header_of(const Checkpoint::Identity& id) {
+  std::ostringstream h;
+  h << "strewn checkpoint 1\n"
+    << id.scenario_sha256 << ' ' << id.seed << ' ' << id.samples << ' ' << id.bodies << ' '
+    << id.inputs << '\n';
+  return h.str();
+}
+
+template <class T>
+void put(std::vector<unsigned char>& out, const std::vector<T>& column, std::size_t first,
+         std::size_t end) {
+  const std::size_t bytes = (end - first) * sizeof(T), at = out.size();
+  out.resize(at + bytes);
+  if (bytes) std::memcpy(out.data() + at, column.data() + first, bytes);
+}
+
+template <class T>
+bool take(const std::vector<unsigned char>& in, std::size_t& at, std::vector<T>& column,
+          std::size_t rows) {
+  if (at + rows * sizeof(T) > in.size()) return false;
+  const std::size_t old = column.size();
+  column.resize(old + rows);
+  if (rows) std::memcpy(column.data() + old, in.data() + at, rows * sizeof(T));
+  at += rows * sizeof(T);
+  return true;
+}
+
+std::uint32_t crc_of(const std::vector<unsigned char>& bytes) {
+  uLong crc = crc32(0L, Z_NULL, 0);
+  // zlib takes at most 4 GiB at a time.
+  for (std::size_t at = 0; at < bytes.size(); at += std::size_t{1} << 30)
+    crc = crc32(crc, bytes.data() + at,
+                static_cast<uInt>(std::min(bytes.size() - at, std::size_t{1} << 30)));
+  return static_cast<std::uint32_t>(crc);
+}
+
+}  // namespace
+
+Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::string>& input_names,
+                       bool resume)
+    : path_(std::move(path)), bodies_(std::max<std::size_t>(1, id.bodies)) {
+  const std::string header = header_of(id);
+  rows_.bodies = bodies_;
+  rows_.columns.input_names = input_names;
+  rows_.columns.inputs.resize(input_names.size());
+  std::uint64_t good_bytes = 0;
+  if (resume && std::filesystem::exists(path_)) {
+    std::FILE* in = std::fopen(path_.c_str(), "rb");
+    if (!in) throw IoError(path_ + ": cannot read the checkpoint");
+    std::string head(header.size(), '\0');
+    const bool whole_header = std::fread(head.data(), 1, head.size(), in) == head.size();
+    if (whole_header && head != header) {
+      std::fclose(in);
+      throw UsageError(path_ +
+                       ": this checkpoint belongs to another study (scenario, seed or "
+                       "sample count differ); run without --resume to start over");
+    }
+    if (whole_header) {
+      good_bytes = header.size();
+      while (true) {  // complete records only
+        std::uint64_t fields[3];
+        if (std::fread(fields, sizeof fields, 1, in) != 1 || fields[0] != kRecordMagic) break;
+        std::vector<unsigned char> payload(fields[2]);
+        std::uint32_t crc = 0;
+        if (fields[2] > (std::uint64_t{1} << 40) ||
+            std::fread(payload.data(), 1, payload.size(), in) != payload.size() ||
+            std::fread(&crc, sizeof crc, 1, in) != 1 || crc != crc_of(payload))
+          break;
+        StudyColumns& c = rows_.columns;
+        std::size_t at = 0;
+        const std::size_t n = fields[1];
+        bool ok = take(payload, at, c.body, n) && take(payload, at, c.east, n) &&
+                  take(payload, at, c.north, n) && take(payload, at, c.time, n) &&
+                  take(payload, at, c.speed, n) && take(payload, at, c.energy, n) &&
+                  take(payload, at, c.status, n) && take(payload, at, c.canopy, n);
+        for (auto& input : c.inputs) ok = ok && take(payload, at, input, n);
+        if (!ok || at != payload.size()) break;
+        good_bytes += sizeof fields + payload.size() + sizeof crc;
+      }
+    }
+    std::fclose(in);
+    const std::size_t rows = rows_.columns.rows();
+    // Whole samples only (a record always holds whole samples; be safe).
+    const std::size_t keep = rows / bodies_ * bodies_;
+    if (keep != rows) throw IoError(path_ + ": the checkpoint holds a part of a sample");
+    rows_.samples = rows / bodies_;
+    for (std::uint8_t st : rows_.columns.status) (st == 0 ? rows_.completed : rows_.failed)++;
+  }
+  if (good_bytes > 0) {
+    // Cut off a torn end, and go on appending.
+    std::error_code ec;
+    std::filesystem::resize_file(path_, good_bytes, ec);
+    if (ec) throw IoError(path_ + ": cannot repair the checkpoint (" + ec.message() + ")");
+    file_ = std::fopen(path_.c_str(), "ab");
+  } else {
+    file_ = std::fopen(path_.c_str(), "wb");
+    if (file_ && (std::fwrite(header.data(), 1, header.size(), file_) != header.size() ||
+                  std::fflush(file_) != 0))
+      throw IoError(path_ + ": cannot write the checkpoint");
+  }
+  if (!file_) throw IoError(path_ + ": cannot write the checkpoint (" + std::strerror(errno) + ")");
+}
+
+Checkpoint::~Checkpoint() {
+  if (file_) std::fclose(file_);
+}
+
+StudyResult Checkpoint::take_rows() {
+  return std::move(rows_);
+}
+
+void Checkpoint::append(const StudyColumns& c, std::size_t first, std::size_t end) {
+  if (!file_ || end <= first) return;
+  std::vector<unsigned char> payload;
+  put(payload, c.body, first, end);
+  put(payload, c.east, first, end);
+  put(payload, c.north, first, end);
+  put(payload, c.time, first, end);
+  put(payload, c.speed, first, end);
+  put(payload, c.energy, first, end);
+  put(payload, c.status, first, end);
+  put(payload, c.canopy, first, end);
+  for (const auto& input : c.inputs) put(payload, input, first, end);
+  const std::uint64_t fields[3] = {kRecordMagic, end - first, payload.size()};
+  const std::uint32_t crc = crc_of(payload);
+  if (std::fwrite(fields, sizeof fields, 1, file_) != 1 ||
+      std::fwrite(payload.data(), 1, payload.size(), file_) != payload.size() ||
+      std::fwrite(&crc, sizeof crc, 1, file_) != 1 || std::fflush(file_) != 0 ||
+      ::fdatasync(::fileno(file_)) != 0)
+    throw IoError(path_ + ": cannot write the checkpoint (" + std::strerror(errno) + ")");
+}
+
+void Checkpoint::remove() {
+  if (file_) std::fclose(file_);
+  file_ = nullptr;
+  std::error_code ignored;
+  std::filesystem::remove(path_, ignored);
+}
+
+}  // namespace strewn

@@ -1,0 +1,54 @@
+#pragma once
+// The checkpoint of a study: the rows finished so far, appended beside the output
+// (`<output>.checkpoint`) round by round as the study runs, each record flushed to disk
+// (fdatasync) and guarded by a CRC-32, so that after any interruption, even SIGKILL or a power
+// cut, `run --resume` finds every record that was complete and flies only the rest. Rows depend
+// only on their sample index, so the resumed study's file equals an uninterrupted one's.
+//
+// Layout: a text header (format, the scenario's SHA-256, seed, samples, bodies, inputs), then
+// records: magic, row count, payload size, payload (the rows, column by column), CRC-32 of the
+// payload. A record torn by a crash fails its size or CRC check and is cut off with all after it.
+#include <cstdint>
+#include <cstdio>
+#include <string>
+#include <vector>
+
+#include "scenario/scenario.hpp"
+#include "study/study.hpp"
+
+namespace strewn {
+
+class Checkpoint {
+ public:
+  /// What the checkpoint belongs to; a checkpoint of another study is refused on resume.
+  struct Identity {
+    std::string scenario_sha256;
+    std::uint64_t seed = 0, samples = 0;
+    std::size_t bodies = 0, inputs = 0;
+  };
+
+  /// Starts `path` afresh, or with `resume` reads back the complete records it holds (none when
+  /// it does not exist). Throws UsageError when it belongs to another study, IoError when it
+  /// cannot be written.
+  Checkpoint(std::string path, Identity identity, const std::vector<std::string>& input_names,
+             bool resume);
+  ~Checkpoint();
+  Checkpoint(const Checkpoint&) = delete;
+  Checkpoint& operator=(const Checkpoint&) = delete;
+
+  /// The rows read back on resume (in index order, from row 0), handed over once.
+  StudyResult take_rows();
+  /// Appends rows [first, end) of the columns as one record, on disk before it returns.
+  void append(const StudyColumns& columns, std::size_t first, std::size_t end);
+  /// Removes the checkpoint (the study's file is in place).
+  void remove();
+  [[nodiscard]] const std::string& path() const { return path_; }
+
+ private:
+  std::string path_;
+  std::FILE* file_ = nullptr;
+  StudyResult rows_;
+  std::size_t bodies_ = 1;
+};
+
+}  // namespace strewn
