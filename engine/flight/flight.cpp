@@ -20,6 +20,8 @@ const char* to_string(FlightStatus status) {
       return "step_too_small";
     case FlightStatus::non_finite:
       return "non_finite";
+    case FlightStatus::floats:
+      return "floats";
   }
   return "?";
 }
@@ -322,6 +324,15 @@ FlightResult FlightRun::run(const ReleaseState& release) {
   }
   if (y[2] <= ground_) {  // released on (or below) the ground
     finish_landing(0.0, release.position, release.velocity);
+    return result_;
+  }
+  // Lighter than the medium where it is densest on the way down (at the ground, for the
+  // atmospheres and liquids here): it would rise or hover, never land. Said at once, rather than
+  // after the step cap. The state stays at the release.
+  if (!(forces_.effective_gravity(ground_) > 0.0)) {
+    result_.status = FlightStatus::floats;
+    result_.position = release.position;
+    result_.velocity = release.velocity;
     return result_;
   }
 

@@ -36,6 +36,7 @@ enum class FlightStatus : std::uint8_t {
   time_limit = 2,      ///< still airborne after FlightOptions::max_time (e.g. a floating body)
   step_too_small = 3,  ///< the integrator could not meet the tolerance
   non_finite = 4,      ///< NaN or infinity in the state or forces
+  floats = 5,          ///< lighter than the medium at the ground: it can never land
 };
 const char* to_string(FlightStatus status);
 
