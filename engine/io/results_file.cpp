@@ -439,6 +439,10 @@ ResultsFile read_results(const std::string& path, bool with_samples) {
     H5::H5File file(path, H5F_ACC_RDONLY);
     if (!file.attrExists("format_version"))
       throw InputFileError(path + ": not a strewn results file (no format_version)");
+    if (file.attrExists("kind") && read_string_attribute(file, "kind") == "sweep")
+      throw InputFileError(path +
+                           ": is the file of a sweep; its studies are under /cases/<index>/ "
+                           "and its summary beside it as CSV");
     r.format_version = read_attribute<int>(file, "format_version");
     if (r.format_version != kResultsFormatVersion)
       throw InputFileError(path + ": results format version " + std::to_string(r.format_version) +

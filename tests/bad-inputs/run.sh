@@ -3,6 +3,7 @@
 # message it must produce) is refused by `strewn run` with that status and message, the file's
 # name, line and key path, and nothing written. Scenario problems are refused by `strewn check`
 # as well.
+# In a message, {here} stands for this folder.
 # Usage: run.sh STREWN_BINARY
 set -uo pipefail
 strewn="$(realpath "$1")"
@@ -13,6 +14,7 @@ failures=0 cases=0
 while IFS=$'\t' read -r file status expected; do
   [[ -z "$file" || "$file" == \#* ]] && continue
   cases=$((cases + 1))
+  expected="${expected//\{here\}/$here}"  # {here}: this folder, wherever the clone is
   run="$work/$cases"
   mkdir -p "$run/results"  # the default output folder exists: only the case's own problem counts
   (cd "$run" && timeout 60 "$strewn" run "$here/$file" --quiet >"$run/out" 2>"$run/err"; echo $? >"$run/status")
