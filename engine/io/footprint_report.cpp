@@ -186,7 +186,11 @@ std::string metres(double v) {
   if (std::isnan(v)) return "-";
   if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
   char text[32];
-  std::snprintf(text, sizeof text, "%.1f", v);
+  // Decimetres for field studies; three significant digits below 10 m (a laboratory tank).
+  if (std::abs(v) >= 10.0 || v == 0.0)
+    std::snprintf(text, sizeof text, "%.1f", v);
+  else
+    std::snprintf(text, sizeof text, "%.3g", v);
   return text;
 }
 }  // namespace
@@ -212,14 +216,15 @@ void write_record_text(std::ostream& out, const StudyRecord& r) {
       std::string polygon = "-";
       if (k < g.polygons.size() && g.polygons[k].determined) {
         char p[64];
-        std::snprintf(p, sizeof p, "%.0f (%.4f)", g.polygons[k].area, g.polygons[k].coverage);
+        std::snprintf(p, sizeof p, g.polygons[k].area >= 100.0 ? "%.0f (%.4f)" : "%.3g (%.4f)",
+                      g.polygons[k].area, g.polygons[k].coverage);
         polygon = p;
       }
       std::string ellipse = "-";
       if (k < g.ellipses.size()) {
         char e[64];
-        std::snprintf(e, sizeof e, "%.1f x %.1f", g.ellipses[k].semi_major,
-                      g.ellipses[k].semi_minor);
+        std::snprintf(e, sizeof e, "%s x %s", metres(g.ellipses[k].semi_major).c_str(),
+                      metres(g.ellipses[k].semi_minor).c_str());
         ellipse = e;
       }
       std::snprintf(line, sizeof line, "  %-6g %10s   %13s   %21s   %s\n", c.level,
