@@ -166,6 +166,9 @@ int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& ou
 }
 
 int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& err, const Job& job) {
+  // From the start on one process: a signal while the scenario is read still stops cleanly.
+  std::optional<StopOnSignals> signals;
+  if (job.size() == 1 && !a.sample) signals.emplace();
   Scenario scenario = load_scenario(a.scenario);
   if (a.samples > 0) scenario.study.samples = static_cast<long>(a.samples);
   if (a.seed) scenario.study.seed = *a.seed;
@@ -214,7 +217,6 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   try {
     if (job.size() == 1) {
       // One process: a checkpoint beside the output, and SIGINT / SIGTERM stop cleanly.
-      const StopOnSignals signals;
       RunControl control;
       control.stop = &stop_requested;
       control.checkpoint = true;

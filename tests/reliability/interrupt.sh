@@ -30,7 +30,9 @@ for signal in INT TERM; do
   out="$work/signal-$signal.h5"
   "$strewn" run "$scenario" -n $samples -j 2 -o "$out" --quiet >/dev/null 2>"$work/err" &
   pid=$!
-  sleep 0.4
+  # Once the run is under way (its checkpoint exists; up to 60 s on a slow build), stop it.
+  for _ in $(seq 1 600); do [[ -e "$out.checkpoint" ]] && break; sleep 0.1; done
+  sleep 0.2
   kill -"$signal" "$pid"
   wait "$pid"
   status=$?
