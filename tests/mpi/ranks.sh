@@ -53,13 +53,17 @@ done
 echo "ok: 4-case sweep, identical on 1 and 2 ranks"
 
 # 3. A sweep killed mid-way resumes and ends equal to one run straight.
+start=$(date +%s%N)
 "$strewn" sweep "$sweep" -n 30000 -j 1 -o "$work/straight.h5" --quiet >/dev/null
+duration_ms=$((($(date +%s%N) - start) / 1000000))
 "$strewn" sweep "$sweep" -n 30000 -j 1 -o "$work/killed.h5" --quiet >/dev/null &
 pid=$!
-for _ in $(seq 1 600); do  # until the first case is finished (at most 60 s)
+# Killed after the first case is finished and well before the last (the cases run one at a time).
+for _ in $(seq 1 1200); do
   compgen -G "$work/killed.h5.cases/case-*.h5" >/dev/null && break
-  sleep 0.1
+  sleep 0.05
 done
+sleep "$(awk -v ms="$duration_ms" 'BEGIN { printf "%.3f", ms / 1000 * 0.1 }')"
 kill -9 "$pid" 2>/dev/null || true
 wait "$pid" 2>/dev/null || true
 [[ -e "$work/killed.h5" ]] && fail "a sweep killed mid-way left a file under the final name"

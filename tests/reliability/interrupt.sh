@@ -17,13 +17,16 @@ fail() {
   echo "FAIL: $*"
   failures=$((failures + 1))
 }
-# The ridge drop: about 70 us per sample on one core, so a 40 000-sample run lasts about 1.5 s on
-# two threads, long enough to be stopped at random.
+# The ridge drop: about 70 us per sample on one core, so a 20 000-sample run lasts about 0.7 s on
+# two threads in Release (ten times that under the sanitizers); kills come at random fractions of
+# the time an uninterrupted run takes on this build.
 scenario="$source_dir/inputs/ridge-drop.toml"
-samples=40000
+samples=20000
 summary() { "$strewn" report "$1" --json | python3 -c 'import json,sys; j=json.load(sys.stdin); j.pop("provenance"); j.pop("convergence", None); print(json.dumps(j, sort_keys=True))'; }
 
+start=$(date +%s%N)
 "$strewn" run "$scenario" -n $samples -j 2 -o "$work/straight.h5" --quiet >/dev/null || fail "the uninterrupted run failed"
+duration_ms=$((($(date +%s%N) - start) / 1000000))
 
 # SIGINT and SIGTERM: status 4, a checkpoint, no final file; --resume completes.
 for signal in INT TERM; do
@@ -55,7 +58,7 @@ for trial in 1 2 3; do
   for attempt in 1 2 3 4 5 6; do
     "${args[@]}" >/dev/null 2>&1 &
     pid=$!
-    sleep "0.$((RANDOM % 9 + 1))"
+    sleep "$(awk -v ms="$duration_ms" -v r="$RANDOM" 'BEGIN { printf "%.3f", ms / 1000 * (0.05 + 0.9 * r / 32768) }')"
     if kill -9 "$pid" 2>/dev/null; then kills=$((kills + 1)); fi
     wait "$pid" 2>/dev/null
     [[ -e "$out" ]] && break  # it finished before the kill
