@@ -9,25 +9,15 @@
 #include <sstream>
 
 #include "app/commands.hpp"
+#include "command_line.hpp"
 #include "reference_flight.hpp"
 #include "scenario/world.hpp"
 
 namespace strewn {
 namespace {
 
-struct CommandResult {
-  int status;
-  std::string out, err;
-};
-
-CommandResult run(std::vector<std::string> args) {
-  args.insert(args.begin(), "strewn");
-  std::vector<const char*> argv;
-  for (const auto& a : args) argv.push_back(a.c_str());
-  std::ostringstream out, err;
-  const int status = run_command_line(static_cast<int>(argv.size()), argv.data(), out, err);
-  return {status, out.str(), err.str()};
-}
+using test::CommandResult;
+using test::run;
 
 std::vector<std::string> scenarios() {
   std::vector<std::string> files;

@@ -15,28 +15,15 @@
 #include <sstream>
 
 #include "app/commands.hpp"
+#include "command_line.hpp"
 
 namespace strewn {
 namespace {
 
-struct CommandResult {
-  int status;
-  std::string out, err;
-};
+using test::CommandResult;
+using test::run;
 
-CommandResult run(std::vector<std::string> args) {
-  args.insert(args.begin(), "strewn");
-  std::vector<const char*> argv;
-  for (const auto& a : args) argv.push_back(a.c_str());
-  std::ostringstream out, err;
-  const int status = run_command_line(static_cast<int>(argv.size()), argv.data(), out, err);
-  return {status, out.str(), err.str()};
-}
-
-std::string slurp(const std::filesystem::path& path) {
-  std::ifstream in(path, std::ios::binary);
-  return {std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
-}
+using test::slurp;
 
 class Report : public ::testing::Test {
  protected:

@@ -12,29 +12,16 @@
 #include <sstream>
 
 #include "app/commands.hpp"
+#include "command_line.hpp"
 #include "io/results_file.hpp"
 
 namespace strewn {
 namespace {
 
-struct CommandResult {
-  int status;
-  std::string out, err;
-};
+using test::CommandResult;
+using test::run;
 
-CommandResult run(std::vector<std::string> args) {
-  args.insert(args.begin(), "strewn");
-  std::vector<const char*> argv;
-  for (const auto& a : args) argv.push_back(a.c_str());
-  std::ostringstream out, err;
-  const int status = run_command_line(static_cast<int>(argv.size()), argv.data(), out, err);
-  return {status, out.str(), err.str()};
-}
-
-std::string slurp(const std::filesystem::path& path) {
-  std::ifstream in(path, std::ios::binary);
-  return {std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
-}
+using test::slurp;
 
 // A NaN or an infinity printed as a word ("nan", "-inf", "Infinity"), not inside other words
 // ("Provenance") nor as the HTML entity &infin; for an undetermined bound, which is a statement.
