@@ -94,20 +94,20 @@ void Job::Sends::finish() {
 }
 
 std::vector<std::byte> Job::receive(int from, int tag) const {
-  std::uint64_t size = 0;
-  MPI_Recv(&size, 1, MPI_UINT64_T, from, tag, MPI_COMM_WORLD, MPI_STATUS_IGNORE);
-  std::vector<std::byte> bytes(size);
-  constexpr std::uint64_t kPiece = std::uint64_t{1} << 30;
-  for (std::uint64_t at = 0; at < size; at += kPiece)
-    MPI_Recv(bytes.data() + at, static_cast<int>(std::min(kPiece, size - at)), MPI_BYTE, from, tag,
-             MPI_COMM_WORLD, MPI_STATUS_IGNORE);
-  return bytes;
+  int sender = from;
+  return receive_from(from, tag, sender);
 }
 
 std::vector<std::byte> Job::receive_any(int tag, int& from) const {
+  return receive_from(MPI_ANY_SOURCE, tag, from);
+}
+
+// A message sent by send(): its size, then the bytes in pieces of at most 1 GiB, all from the
+// rank that sent the size (`source` may be MPI_ANY_SOURCE; `from` gets the sender).
+std::vector<std::byte> Job::receive_from(int source, int tag, int& from) const {
   std::uint64_t size = 0;
   MPI_Status status;
-  MPI_Recv(&size, 1, MPI_UINT64_T, MPI_ANY_SOURCE, tag, MPI_COMM_WORLD, &status);
+  MPI_Recv(&size, 1, MPI_UINT64_T, source, tag, MPI_COMM_WORLD, &status);
   from = status.MPI_SOURCE;
   std::vector<std::byte> bytes(size);
   constexpr std::uint64_t kPiece = std::uint64_t{1} << 30;
@@ -155,6 +155,9 @@ void Job::Sends::add(const Job&, int, std::vector<std::byte>, int) {
 void Job::Sends::finish() {}
 std::vector<std::byte> Job::receive_any(int, int&) const {
   throw std::logic_error("Job::receive_any on a single-process job");
+}
+std::vector<std::byte> Job::receive_from(int, int, int&) const {
+  throw std::logic_error("Job::receive on a single-process job");
 }
 std::uint64_t Job::broadcast(std::uint64_t value) const {
   return value;

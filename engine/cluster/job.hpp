@@ -60,6 +60,7 @@ class Job {
   [[noreturn]] void abort(int status) const;
 
  private:
+  std::vector<std::byte> receive_from(int source, int tag, int& from) const;
   int rank_ = 0, size_ = 1;
   bool initialised_ = false;
 };
