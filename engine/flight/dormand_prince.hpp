@@ -47,7 +47,7 @@ class DormandPrince5 {
     f(t, y, k1_);
     ++evaluations_;
     h_ = h_initial > 0.0 ? h_initial : initial_step(f);
-    log_previous_error_ = rough_log2(1e-4);
+    log_previous_error_ = fast_log2(1e-4);
     dense_ready_ = false;
   }
 
@@ -79,11 +79,12 @@ class DormandPrince5 {
         accept(h, hits_limit ? t_max : t_ + h);
         // Step-size proposal with the PI controller of Hairer-Norsett-Wanner (II.4 and DOPRI5:
         // exponent 0.2 - 0.75 beta, beta = 0.04), bounded growth and the usual safety factor.
-        // A few digits are ample for choosing a step: short polynomial forms of log2 and 2^x keep
-        // the controller off the critical path between steps (and are deterministic).
+        // The next step waits on this arithmetic, and a step size needs no more than a few per
+        // cent: log2 and 2^x are read from and written into the bits of the numbers (fast_log2,
+        // fast_exp2), a handful of instructions instead of a libm call or a polynomial.
         const double log_error =
-            rough_log2(std::max(scaled, 1e-10)) - (per_unit_step ? rough_log2(h) : 0.0);
-        double factor = kSafety * rough_exp2(kBeta * log_previous_error_ - kAlpha * log_error);
+            fast_log2(std::max(scaled, 1e-10)) - (per_unit_step ? fast_log2(h) : 0.0);
+        double factor = kSafety * fast_exp2(kBeta * log_previous_error_ - kAlpha * log_error);
         factor = std::clamp(factor, kMinFactor, last_rejected_ ? 1.0 : kMaxFactor);
         log_previous_error_ = log_error;
         last_rejected_ = false;
@@ -149,34 +150,28 @@ class DormandPrince5 {
   }
 
  private:
-  // log2 of a positive normal number to within 1.4e-3: its exponent plus a cubic in the mantissa
-  // (least-squares fit of log2(1 + m) on [0, 1)).
-  static double rough_log2(double x) {
-    const auto bits = std::bit_cast<std::uint64_t>(x);
-    const double exponent = static_cast<double>(static_cast<int>((bits >> 52) & 0x7ff) - 1023);
-    const double m =
-        std::bit_cast<double>((bits & 0x000fffffffffffffULL) | 0x3ff0000000000000ULL) - 1.0;
-    return exponent + m * (1.4234853 + m * (-0.5877338 + m * 0.1655588));
+  // log2 of a positive normal number from its bits: read as an integer and scaled by 2^-52, the
+  // bits are 1023 + exponent + mantissa fraction m, and m stands in for log2(1 + m). Below the
+  // true value by at most 0.0861 (J. F. Blinn, "Floating-point tricks", IEEE Computer Graphics
+  // and Applications 17(4), 1997).
+  static double fast_log2(double x) {
+    return static_cast<double>(std::bit_cast<std::int64_t>(x)) * 0x1p-52 - 1023.0;
   }
-  // 2^x to within 1.3e-4 relative for |x| < 1000: an integer power by the exponent bits times a
-  // cubic for the fraction (least-squares fit of 2^f - 1 on [0, 1]).
-  static double rough_exp2(double x) {
+  // 2^x for |x| <= 1000, the same way back: (x + 1023) 2^52 written as the bits of a double, so
+  // the fraction f of x stands in for 2^f - 1. Above the true value by at most 6.2 % (N. N.
+  // Schraudolph, "A fast, compact approximation of the exponential function", Neural
+  // Computation 11(4), 1999). Both errors lean toward a longer step, by at most 7 % together:
+  // inside the margin of the safety factor 0.9; the flight tests hold the accuracy that results.
+  static double fast_exp2(double x) {
     x = std::clamp(x, -1000.0, 1000.0);
-    // Integer part by the 1.5 * 2^52 rounding (of x - 1/2): floor(x), or x - 1 when x is whole;
-    // f stays in [0, 1] either way, where the cubic holds.
-    constexpr double kRound = 6755399441055744.0;
-    const double whole = ((x - 0.5) + kRound) - kRound;
-    const double f = x - whole;
-    const double fraction = 1.0 + f * (0.6954300 + f * (0.2269401 + f * 0.0773806));
-    const auto exponent = static_cast<std::uint64_t>(static_cast<int>(whole) + 1023) << 52;
-    return fraction * std::bit_cast<double>(exponent);
+    return std::bit_cast<double>(static_cast<std::int64_t>((x + 1023.0) * 0x1p52));
   }
 
  public:
   /// The controller's log2 and 2^x (exposed for their accuracy test,
   /// Integrator.StepSizeArithmeticIsAccurateEnough).
-  static double step_log2(double x) { return rough_log2(x); }
-  static double step_exp2(double x) { return rough_exp2(x); }
+  static double step_log2(double x) { return fast_log2(x); }
+  static double step_exp2(double x) { return fast_exp2(x); }
 
  private:
   static constexpr int kMaxRejections = 60;
@@ -293,13 +288,13 @@ class DormandPrince5 {
     const double d2 = ((k - k1_).cwiseProduct(inverse_tolerance_)).cwiseAbs().maxCoeff() / h0;
     const double dmax = std::max(d1n, d2);
     const double h1 =
-        dmax <= 1e-15 ? std::max(1e-6, h0 * 1e-3) : rough_exp2(0.2 * rough_log2(0.01 / dmax));
+        dmax <= 1e-15 ? std::max(1e-6, h0 * 1e-3) : fast_exp2(0.2 * fast_log2(0.01 / dmax));
     return std::min(100.0 * h0, h1);
   }
 
   State inverse_tolerance_;
   double t_ = 0.0, t_previous_ = 0.0, h_ = 0.0, fixed_step_ = 0.0, reference_time_ = 0.0;
-  double log_previous_error_ = -13.28771237954945;  // log2(1e-4), Hairer's DOPRI5 start
+  double log_previous_error_ = 0.0;  // log2 of the last accepted step's error (set by start)
   bool last_rejected_ = false;
   mutable bool dense_ready_ = false;
   double h_last_ = 0.0, inverse_span_ = 0.0;  // the last step and 1 / its span in time

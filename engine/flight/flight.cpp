@@ -175,6 +175,27 @@ class FlightRun {
                        1e-6 * (t_end - stepper.t()));
   }
 
+  // A step aimed at the ground (aim_at_next_kink) may stop short of it, the aim being a
+  // prediction. When it stops within a sliver of its altitude change above the ground and its
+  // dense output, carried on for a few slivers of its time, reaches the ground, the landing lies
+  // there: a polynomial of the step carried a sliver past its end errs as little as it does inside
+  // it, and a further step would cost a whole step (and often a rejected trial) for that sliver.
+  // Returns the time of the landing, or NaN when there is none so close (or a stage change comes
+  // first).
+  template <class Stepper>
+  double landing_just_ahead(const Stepper& stepper, double t_stop) const {
+    constexpr double kNone = std::numeric_limits<double>::quiet_NaN();
+    const double z0 = stepper.y_previous()[2], z = stepper.y()[2];
+    if (!(z > ground_ && z - ground_ <= kSliver * std::abs(z - z0))) return kNone;
+    const double t = stepper.t();
+    const double t_far = std::min(t + 4.0 * kSliver * (t - stepper.t_previous()), t_stop);
+    if (!(t_far > t)) return kNone;
+    const double z_far = stepper.dense(2, t_far);
+    if (!(z_far <= ground_)) return kNone;
+    return solve_level(stepper, ground_, t, t_far, z - ground_, z_far - ground_,
+                       4.0 * std::numeric_limits<double>::epsilon() * std::max(1.0, t_far));
+  }
+
   // Mach number of a full state.
   [[nodiscard]] double mach_of(const FlightState& y) const {
     const Air air = forces_.medium().air(y[2], forces_.conditions());
@@ -299,6 +320,12 @@ FlightRun::Next FlightRun::integrate(Stepper& stepper, State& y, double& t, doub
     }
     if (z <= ground_) {
       t = locate_level(stepper, ground_);
+      y = stepper.dense(t);
+      finish_landing(t, y.template head<3>(), velocity_of(y, ground_));
+      return Next::ground;
+    }
+    if (const double landing = landing_just_ahead(stepper, t_stop); !std::isnan(landing)) {
+      t = landing;
       y = stepper.dense(t);
       finish_landing(t, y.template head<3>(), velocity_of(y, ground_));
       return Next::ground;

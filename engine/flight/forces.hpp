@@ -53,14 +53,6 @@ class Forces {
   [[gnu::always_inline]] inline void operator()(double t, const FlightState& y,
                                                 FlightState& dydt) const {
     const double z = y[2];
-    Air air;
-    if (needs_full_air_) {
-      air = medium_.air(z, conditions_);
-    } else {
-      air.density = medium_.density(z, conditions_);
-      air.viscosity = 0.0;
-      air.sound_speed = 0.0;
-    }
     double wind_east, wind_north;
     wind_.at(z, wind_east, wind_north);
     const double ux = y[3] - wind_east, uy = y[4] - wind_north, uz = y[5];
@@ -68,10 +60,17 @@ class Forces {
     // The loop-carried chain of the integration runs from one stage's acceleration through the
     // next stage's velocity, air speed and square root back to the drag; the altitude, hence the
     // density, is known earlier. So the density is multiplied in first, off that chain.
-    const double k = constant_cd_ && stage_ == DragStage::body
-                         ? (half_cd_area_per_mass_ * air.density) * speed
-                         : drag_coefficient(t, speed, air) * inverse_mass_;
-    const double g = gravity_at(z) * (1.0 - air.density * inverse_body_density_);
+    double density, k;
+    if (constant_cd_ && stage_ == DragStage::body) {  // the common case: only the density
+      density = medium_.density(z, conditions_);
+      k = (half_cd_area_per_mass_ * density) * speed;
+    } else {
+      const Air air = needs_full_air_ ? medium_.air(z, conditions_)
+                                      : Air{medium_.density(z, conditions_), 0.0, 0.0};
+      density = air.density;
+      k = drag_coefficient(t, speed, air) * inverse_mass_;
+    }
+    const double g = gravity_at(z) * (1.0 - density * inverse_body_density_);
     dydt[0] = y[3];
     dydt[1] = y[4];
     dydt[2] = y[5];

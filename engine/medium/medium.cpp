@@ -15,8 +15,9 @@ void Medium::tabulate(const Model& model, double step, const std::vector<double>
   const double h = (top_ - bottom_) / static_cast<double>(count);
   inverse_step_ = 1.0 / h;
   last_index_ = static_cast<double>(count);
-  last_cell_ = count - 1;
-  cells_.resize(count);
+  // One cell more than the range holds: a flat cell at the top, where the lookup lands when the
+  // altitude is at or above the top (index count, fraction 0), so it needs no test for that end.
+  cells_.resize(count + 1);
   struct Point {
     double t, p, rho;
   };
@@ -50,6 +51,11 @@ void Medium::tabulate(const Model& model, double step, const std::vector<double>
       break;  // the grid is fine enough that no cell holds two kinks
     }
   }
+  const Point top = at(top_);
+  Cell& flat = cells_[count];
+  flat.split = 2.0;
+  piece(flat, 0, top, top, 1.0);
+  piece(flat, 1, top, top, 1.0);
 }
 
 Medium Medium::us1976(double bottom, double top, double step) {

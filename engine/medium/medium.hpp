@@ -104,17 +104,13 @@ class Medium {
     x = std::clamp(x, 0.0, last_index_);
     // The cell index without a float-integer-float round trip: adding 1.5 * 2^52 rounds x - 0.5
     // to an integer held in the low bits (exact for the table's sizes). That integer is floor(x),
-    // or x - 1 when x is whole; either way f = x - i lies in [0, 1].
+    // or x - 1 when x is whole; either way f = x - i lies in [0, 1]. At the top (x = the cell
+    // count) it may be the flat cell past the last one, with f = 0.
     constexpr double kRound = 6755399441055744.0;  // 1.5 * 2^52
     const double shifted = (x - 0.5) + kRound;
-    auto i =
+    const auto i =
         static_cast<std::size_t>(static_cast<std::uint32_t>(std::bit_cast<std::uint64_t>(shifted)));
-    double f = x - (shifted - kRound);
-    if (i > last_cell_) {  // only at the very top of the table
-      i = last_cell_;
-      f = 1.0;
-    }
-    return {cells_[i], f};
+    return {cells_[i], x - (shifted - kRound)};
   }
   // A value on a cell: both pieces are evaluated and one is chosen (no load waits on the choice).
   static double on_cell(const double (&value)[2], const double (&slope)[2], double f,
@@ -139,9 +135,8 @@ class Medium {
   Medium() = default;
 
   Kind kind_ = Kind::us1976;
-  double bottom_ = 0.0, top_ = 0.0;  // geometric altitude range, m
-  double inverse_step_ = 1.0, last_index_ = 0.0;
-  std::size_t last_cell_ = 0;
+  double bottom_ = 0.0, top_ = 0.0;               // geometric altitude range, m
+  double inverse_step_ = 1.0, last_index_ = 0.0;  // last_index_: the number of cells in range
   std::vector<Cell> cells_;
   double uniform_density_ = 0.0, uniform_viscosity_ = 0.0;
   double uniform_sound_speed_ = std::numeric_limits<double>::infinity();

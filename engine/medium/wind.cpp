@@ -41,24 +41,26 @@ void WindProfile::assign_perturbed(const WindProfile& base, std::span<const doub
 
 void WindProfile::derive() {
   const std::size_t n = altitude_.size();
-  east_slope_.resize(n);
-  north_slope_.resize(n);
-  east_intercept_.resize(n);
-  north_intercept_.resize(n);
+  constexpr double kInfinity = std::numeric_limits<double>::infinity();
+  // One piece per interval between layers and one above the top; keeps the storage it has.
+  pieces_.resize(std::max<std::size_t>(n, 1));
+  bottom_ = n > 0 ? altitude_.front() : -kInfinity;
   max_speed_ = 0.0;
   for (std::size_t i = 0; i < n; ++i) {
-    double east_slope = 0.0, north_slope = 0.0;
-    if (i > 0) {
-      const double thickness = altitude_[i] - altitude_[i - 1];
-      east_slope = (east_[i] - east_[i - 1]) / thickness;
-      north_slope = (north_[i] - north_[i - 1]) / thickness;
+    Piece& piece = pieces_[i];
+    if (i + 1 < n) {
+      const double thickness = altitude_[i + 1] - altitude_[i];
+      piece.top = altitude_[i + 1];
+      piece.east_slope = (east_[i + 1] - east_[i]) / thickness;
+      piece.north_slope = (north_[i + 1] - north_[i]) / thickness;
+      piece.east_intercept = east_[i + 1] - piece.east_slope * altitude_[i + 1];
+      piece.north_intercept = north_[i + 1] - piece.north_slope * altitude_[i + 1];
+    } else {
+      piece = Piece{kInfinity, east_[i], 0.0, north_[i], 0.0};
     }
-    east_slope_[i] = east_slope;
-    north_slope_[i] = north_slope;
-    east_intercept_[i] = east_[i] - east_slope * altitude_[i];
-    north_intercept_[i] = north_[i] - north_slope * altitude_[i];
     max_speed_ = std::max(max_speed_, std::hypot(east_[i], north_[i]));
   }
+  if (n == 0) pieces_[0] = Piece{kInfinity, 0.0, 0.0, 0.0, 0.0};
   power_law_ = n > 0 && altitude_.front() - ground_ > kPowerLawFloor;
   max_change_ = 0.0;
   if (n > 0) {

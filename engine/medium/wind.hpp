@@ -10,6 +10,7 @@
 // There is no vertical wind.
 #include <Eigen/Core>
 #include <cstddef>
+#include <limits>
 #include <span>
 #include <vector>
 
@@ -37,26 +38,17 @@ class WindProfile {
   }
   /// The same into two numbers (the force loop's form: no vector temporaries).
   void at(double z, double& east, double& north) const {
-    const std::size_t n = altitude_.size();
-    if (n == 0) {
-      east = north = 0.0;
-      return;
-    }
-    if (z >= altitude_[n - 1]) {
-      east = east_[n - 1];
-      north = north_[n - 1];
-      return;
-    }
-    if (z <= altitude_[0]) {
+    if (z <= bottom_) {
       below_lowest(z, east, north);
       return;
     }
-    // Profiles have few layers: a linear scan beats a binary search. Each layer is stored as
-    // intercept + slope * z, one multiply-add on the force loop's critical path.
-    std::size_t i = 1;
-    while (z > altitude_[i]) ++i;
-    east = east_intercept_[i] + east_slope_[i] * z;
-    north = north_intercept_[i] + north_slope_[i] * z;
+    // Profiles have few layers: a linear scan beats a binary search, and the last piece reaches
+    // to infinity, so the scan needs no bound. Each piece is intercept + slope * z, one
+    // multiply-add on the force loop's critical path.
+    const Piece* piece = pieces_.data();
+    while (z > piece->top) ++piece;
+    east = piece->east_intercept + piece->east_slope * z;
+    north = piece->north_intercept + piece->north_slope * z;
   }
 
   /// Makes this profile `base` with (east, north) added at each of its layers, reusing this
@@ -88,8 +80,15 @@ class WindProfile {
   void derive();  // slopes, intercepts, largest speed and kinks from the layer values
   std::vector<double> altitude_;
   std::vector<double> east_, north_;
-  // Layer i spans (altitude_[i-1], altitude_[i]]: wind = intercept + slope * z there.
-  std::vector<double> east_intercept_, east_slope_, north_intercept_, north_slope_;
+  // The profile above the lowest layer, piece by piece: piece i spans (altitude_[i],
+  // altitude_[i+1]] (the last one up to infinity, constant), wind = intercept + slope * z there.
+  // Calm air is a single still piece over everything.
+  struct Piece {
+    double top;
+    double east_intercept, east_slope, north_intercept, north_slope;
+  };
+  std::vector<Piece> pieces_{Piece{std::numeric_limits<double>::infinity(), 0.0, 0.0, 0.0, 0.0}};
+  double bottom_ = -std::numeric_limits<double>::infinity();  // the lowest layer's altitude
   std::vector<double> kinks_;
   double ground_ = 0.0;
   double max_speed_ = 0.0;
