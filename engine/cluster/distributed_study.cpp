@@ -2,6 +2,7 @@
 
 #include <cstring>
 #include <optional>
+#include <stdexcept>
 
 namespace strewn {
 
@@ -10,56 +11,23 @@ namespace {
 constexpr int kRowsTag = 11;
 constexpr std::size_t kRowsPerMessage = 65536;
 
-template <class T>
-void put(std::vector<std::byte>& out, const std::vector<T>& column, std::size_t first,
-         std::size_t end) {
-  const std::size_t bytes = (end - first) * sizeof(T);
-  const std::size_t at = out.size();
-  out.resize(at + bytes);
-  if (bytes) std::memcpy(out.data() + at, column.data() + first, bytes);
-}
-
-template <class T>
-void take(const std::vector<std::byte>& in, std::size_t& at, std::vector<T>& column,
-          std::size_t rows) {
-  const std::size_t old = column.size();
-  column.resize(old + rows);
-  if (rows) std::memcpy(column.data() + old, in.data() + at, rows * sizeof(T));
-  at += rows * sizeof(T);
-}
-
 // Rows [first, end) of the columns as one message: the row count, then each column in turn.
 std::vector<std::byte> pack(const StudyColumns& c, std::size_t first, std::size_t end) {
   std::vector<std::byte> out;
   const std::uint64_t rows = end - first;
   out.resize(sizeof rows);
   std::memcpy(out.data(), &rows, sizeof rows);
-  put(out, c.body, first, end);
-  put(out, c.east, first, end);
-  put(out, c.north, first, end);
-  put(out, c.time, first, end);
-  put(out, c.speed, first, end);
-  put(out, c.energy, first, end);
-  put(out, c.status, first, end);
-  put(out, c.canopy, first, end);
-  for (const auto& input : c.inputs) put(out, input, first, end);
+  append_row_bytes(c, first, end, out);
   return out;
 }
 
 // Appends a message's rows to `c` and returns how many there were.
 std::size_t unpack(const std::vector<std::byte>& in, StudyColumns& c) {
   std::uint64_t rows = 0;
-  std::memcpy(&rows, in.data(), sizeof rows);
+  if (in.size() >= sizeof rows) std::memcpy(&rows, in.data(), sizeof rows);
   std::size_t at = sizeof rows;
-  take(in, at, c.body, rows);
-  take(in, at, c.east, rows);
-  take(in, at, c.north, rows);
-  take(in, at, c.time, rows);
-  take(in, at, c.speed, rows);
-  take(in, at, c.energy, rows);
-  take(in, at, c.status, rows);
-  take(in, at, c.canopy, rows);
-  for (auto& input : c.inputs) take(in, at, input, rows);
+  if (!take_row_bytes(in, at, rows, c) || at != in.size())
+    throw std::runtime_error("a message of rows between ranks is malformed");
   return rows;
 }
 

@@ -23,30 +23,11 @@ std::string header_of(const Checkpoint::Identity& id) {
   return h.str();
 }
 
-template <class T>
-void put(std::vector<unsigned char>& out, const std::vector<T>& column, std::size_t first,
-         std::size_t end) {
-  const std::size_t bytes = (end - first) * sizeof(T), at = out.size();
-  out.resize(at + bytes);
-  if (bytes) std::memcpy(out.data() + at, column.data() + first, bytes);
-}
-
-template <class T>
-bool take(const std::vector<unsigned char>& in, std::size_t& at, std::vector<T>& column,
-          std::size_t rows) {
-  if (at + rows * sizeof(T) > in.size()) return false;
-  const std::size_t old = column.size();
-  column.resize(old + rows);
-  if (rows) std::memcpy(column.data() + old, in.data() + at, rows * sizeof(T));
-  at += rows * sizeof(T);
-  return true;
-}
-
-std::uint32_t crc_of(const std::vector<unsigned char>& bytes) {
+std::uint32_t crc_of(const std::vector<std::byte>& bytes) {
   uLong crc = crc32(0L, Z_NULL, 0);
   // zlib takes at most 4 GiB at a time.
   for (std::size_t at = 0; at < bytes.size(); at += std::size_t{1} << 30)
-    crc = crc32(crc, bytes.data() + at,
+    crc = crc32(crc, reinterpret_cast<const Bytef*>(bytes.data()) + at,
                 static_cast<uInt>(std::min(bytes.size() - at, std::size_t{1} << 30)));
   return static_cast<std::uint32_t>(crc);
 }
@@ -77,21 +58,14 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
       while (true) {  // complete records only
         std::uint64_t fields[3];
         if (std::fread(fields, sizeof fields, 1, in) != 1 || fields[0] != kRecordMagic) break;
-        std::vector<unsigned char> payload(fields[2]);
+        std::vector<std::byte> payload(fields[2]);
         std::uint32_t crc = 0;
         if (fields[2] > (std::uint64_t{1} << 40) ||
             std::fread(payload.data(), 1, payload.size(), in) != payload.size() ||
             std::fread(&crc, sizeof crc, 1, in) != 1 || crc != crc_of(payload))
           break;
-        StudyColumns& c = rows_.columns;
         std::size_t at = 0;
-        const std::size_t n = fields[1];
-        bool ok = take(payload, at, c.body, n) && take(payload, at, c.east, n) &&
-                  take(payload, at, c.north, n) && take(payload, at, c.time, n) &&
-                  take(payload, at, c.speed, n) && take(payload, at, c.energy, n) &&
-                  take(payload, at, c.status, n) && take(payload, at, c.canopy, n);
-        for (auto& input : c.inputs) ok = ok && take(payload, at, input, n);
-        if (!ok || at != payload.size()) break;
+        if (!take_row_bytes(payload, at, fields[1], rows_.columns) || at != payload.size()) break;
         good_bytes += sizeof fields + payload.size() + sizeof crc;
       }
     }
@@ -128,16 +102,8 @@ StudyResult Checkpoint::take_rows() {
 
 void Checkpoint::append(const StudyColumns& c, std::size_t first, std::size_t end) {
   if (!file_ || end <= first) return;
-  std::vector<unsigned char> payload;
-  put(payload, c.body, first, end);
-  put(payload, c.east, first, end);
-  put(payload, c.north, first, end);
-  put(payload, c.time, first, end);
-  put(payload, c.speed, first, end);
-  put(payload, c.energy, first, end);
-  put(payload, c.status, first, end);
-  put(payload, c.canopy, first, end);
-  for (const auto& input : c.inputs) put(payload, input, first, end);
+  std::vector<std::byte> payload;
+  append_row_bytes(c, first, end, payload);
   const std::uint64_t fields[3] = {kRecordMagic, end - first, payload.size()};
   const std::uint32_t crc = crc_of(payload);
   if (std::fwrite(fields, sizeof fields, 1, file_) != 1 ||

@@ -167,15 +167,14 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
     write_strings_attribute(open->samples, "body_names", names);
     write_strings_attribute(open->samples, "input_names", input_names);
     if (keep_samples) {
-      auto& c = open->columns;
-      const bool z = scenario.output.compress;
-      c.push_back(create_column<std::uint16_t>(open->samples, "body", rows, z));
-      for (const char* name : {"east", "north", "time", "speed", "energy"})
-        c.push_back(create_column<double>(open->samples, name, rows, z));
-      c.push_back(create_column<std::uint8_t>(open->samples, "status", rows, z));
-      c.push_back(create_column<std::uint8_t>(open->samples, "canopy", rows, z));
-      for (const auto& name : input_names)
-        c.push_back(create_column<double>(open->samples, name, rows, z));
+      StudyColumns shape;  // no rows: only the names and types of the columns
+      shape.input_names = input_names;
+      shape.inputs.resize(input_names.size());
+      shape.for_each_column([&](std::string_view name, const auto& column) {
+        using Value = typename std::decay_t<decltype(column)>::value_type;
+        open->columns.push_back(
+            create_column<Value>(open->samples, std::string(name), rows, scenario.output.compress));
+      });
     }
     open_ = std::move(open);
   });
@@ -196,16 +195,9 @@ void ResultsWriter::write(const StudyColumns& c, std::size_t first, std::size_t 
   if (!open_ || !open_->keep_samples || end <= first) return;
   const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   io_guard(path_, [&] {
-    auto& d = open_->columns;
-    append(d[0], c.body, first, end);
-    append(d[1], c.east, first, end);
-    append(d[2], c.north, first, end);
-    append(d[3], c.time, first, end);
-    append(d[4], c.speed, first, end);
-    append(d[5], c.energy, first, end);
-    append(d[6], c.status, first, end);
-    append(d[7], c.canopy, first, end);
-    for (std::size_t k = 0; k < c.inputs.size(); ++k) append(d[8 + k], c.inputs[k], first, end);
+    auto set = open_->columns.begin();
+    c.for_each_column(
+        [&](std::string_view, const auto& column) { append(*set++, column, first, end); });
   });
 }
 
@@ -244,18 +236,9 @@ void append_rows(StudyResult& total, StudyResult&& part) {
     total = std::move(part);
     return;
   }
-  auto& a = total.columns;
-  auto& b = part.columns;
-  auto join = [](auto& x, const auto& y) { x.insert(x.end(), y.begin(), y.end()); };
-  join(a.body, b.body);
-  join(a.east, b.east);
-  join(a.north, b.north);
-  join(a.time, b.time);
-  join(a.speed, b.speed);
-  join(a.energy, b.energy);
-  join(a.status, b.status);
-  join(a.canopy, b.canopy);
-  for (std::size_t d = 0; d < a.inputs.size(); ++d) join(a.inputs[d], b.inputs[d]);
+  total.columns.for_each_column_with(part.columns, [](auto& ours, const auto& theirs) {
+    ours.insert(ours.end(), theirs.begin(), theirs.end());
+  });
   total.samples += part.samples;
   total.completed += part.completed;
   total.failed += part.failed;
@@ -288,22 +271,12 @@ StudyResult slice_samples(const StudyResult& from, std::uint64_t first, std::uin
   piece.bodies = bodies;
   piece.samples = count;
   const std::size_t a = first * bodies, b = (first + count) * bodies;
-  const auto& c = from.columns;
   auto& p = piece.columns;
-  auto cut = [&](auto& to, const auto& column) {
+  p.input_names = from.columns.input_names;
+  p.inputs.resize(from.columns.inputs.size());
+  p.for_each_column_with(from.columns, [&](auto& to, const auto& column) {
     to.assign(column.begin() + a, column.begin() + b);
-  };
-  cut(p.body, c.body);
-  cut(p.east, c.east);
-  cut(p.north, c.north);
-  cut(p.time, c.time);
-  cut(p.speed, c.speed);
-  cut(p.energy, c.energy);
-  cut(p.status, c.status);
-  cut(p.canopy, c.canopy);
-  p.input_names = c.input_names;
-  p.inputs.resize(c.inputs.size());
-  for (std::size_t d = 0; d < c.inputs.size(); ++d) cut(p.inputs[d], c.inputs[d]);
+  });
   for (std::uint8_t st : p.status) (st == 0 ? piece.completed : piece.failed)++;
   return piece;
 }
@@ -470,21 +443,16 @@ ResultsFile read_results(const std::string& path, bool with_samples) {
     r.has_samples = samples.nameExists("east");
     if (with_samples && r.has_samples) {
       StudyColumns& c = r.columns;
-      c.body = read_vector<std::uint16_t>(samples, "body");
-      c.east = read_vector<double>(samples, "east");
-      c.north = read_vector<double>(samples, "north");
-      c.time = read_vector<double>(samples, "time");
-      c.speed = read_vector<double>(samples, "speed");
-      c.energy = read_vector<double>(samples, "energy");
-      c.status = read_vector<std::uint8_t>(samples, "status");
-      c.canopy = read_vector<std::uint8_t>(samples, "canopy");
       c.input_names = read_strings_attribute(samples, "input_names");
-      for (const auto& name : c.input_names) c.inputs.push_back(read_vector<double>(samples, name));
-      const std::size_t rows = c.east.size();
-      bool whole = c.body.size() == rows && c.north.size() == rows && c.time.size() == rows &&
-                   c.speed.size() == rows && c.energy.size() == rows && c.status.size() == rows &&
-                   c.canopy.size() == rows;
-      for (const auto& column : c.inputs) whole = whole && column.size() == rows;
+      c.inputs.resize(c.input_names.size());
+      c.for_each_column([&](std::string_view name, auto& column) {
+        using Value = typename std::decay_t<decltype(column)>::value_type;
+        column = read_vector<Value>(samples, std::string(name));
+      });
+      bool whole = true;
+      c.for_each_column([&](std::string_view, const auto& column) {
+        whole = whole && column.size() == c.rows();
+      });
       if (!whole) throw InputFileError(path + ": the sample columns differ in length");
       for (std::uint16_t b : c.body)
         if (b >= r.body_names.size())

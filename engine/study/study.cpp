@@ -5,6 +5,7 @@
 
 #include <algorithm>
 #include <atomic>
+#include <cstring>
 #include <mutex>
 
 namespace strewn {
@@ -19,6 +20,30 @@ void StudyColumns::resize(std::size_t rows, std::size_t input_count) {
   status.resize(rows);
   canopy.resize(rows);
   inputs.assign(input_count, std::vector<double>(rows));
+}
+
+void append_row_bytes(const StudyColumns& columns, std::size_t first, std::size_t end,
+                      std::vector<std::byte>& out) {
+  columns.for_each_column([&](std::string_view, const auto& column) {
+    const std::size_t bytes = (end - first) * sizeof(column[0]), at = out.size();
+    out.resize(at + bytes);
+    if (bytes) std::memcpy(out.data() + at, column.data() + first, bytes);
+  });
+}
+
+bool take_row_bytes(std::span<const std::byte> in, std::size_t& at, std::size_t rows,
+                    StudyColumns& columns) {
+  std::size_t row_bytes = 0;
+  columns.for_each_column(
+      [&](std::string_view, const auto& column) { row_bytes += sizeof(column[0]); });
+  if (at > in.size() || rows > (in.size() - at) / std::max<std::size_t>(row_bytes, 1)) return false;
+  columns.for_each_column([&](std::string_view, auto& column) {
+    const std::size_t old = column.size(), bytes = rows * sizeof(column[0]);
+    column.resize(old + rows);
+    if (bytes) std::memcpy(column.data() + old, in.data() + at, bytes);
+    at += bytes;
+  });
+  return true;
 }
 
 namespace {

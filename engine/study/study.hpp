@@ -4,9 +4,14 @@
 // run in blocks over TBB's threads; each row depends only on its sample index, so the columns
 // are bit-identical for any thread count and block size.
 #include <atomic>
+#include <cstddef>
 #include <cstdint>
 #include <functional>
+#include <span>
 #include <string>
+#include <string_view>
+#include <tuple>
+#include <utility>
 #include <vector>
 
 #include "flight/flight.hpp"
@@ -27,7 +32,61 @@ struct StudyColumns {
 
   void resize(std::size_t rows, std::size_t input_count);
   [[nodiscard]] std::size_t rows() const { return east.size(); }
+
+  /// Calls f(name, column) on each per-row column in one fixed order: the fixed columns under
+  /// their names in results files, then the inputs under theirs (input_names and inputs match).
+  /// The one list of the columns, for code that treats each alike: files, slices, messages and
+  /// checkpoints.
+  template <class F>
+  void for_each_column(F&& f) {
+    visit(*this, f);
+  }
+  template <class F>
+  void for_each_column(F&& f) const {
+    visit(*this, f);
+  }
+  /// f(ours, theirs) on each pair of matching columns of this table and `other` (same inputs).
+  template <class F>
+  void for_each_column_with(const StudyColumns& other, F&& f) {
+    visit_pairs(*this, other, f);
+  }
+  template <class F>
+  void for_each_column_with(const StudyColumns& other, F&& f) const {
+    visit_pairs(*this, other, f);
+  }
+
+ private:
+  static constexpr auto fixed_columns() {
+    return std::make_tuple(
+        std::pair{"body", &StudyColumns::body}, std::pair{"east", &StudyColumns::east},
+        std::pair{"north", &StudyColumns::north}, std::pair{"time", &StudyColumns::time},
+        std::pair{"speed", &StudyColumns::speed}, std::pair{"energy", &StudyColumns::energy},
+        std::pair{"status", &StudyColumns::status}, std::pair{"canopy", &StudyColumns::canopy});
+  }
+  template <class Table, class F>
+  static void visit(Table& table, F& f) {
+    std::apply([&](const auto&... c) { (f(std::string_view(c.first), table.*c.second), ...); },
+               fixed_columns());
+    for (std::size_t d = 0; d < table.inputs.size(); ++d)
+      f(std::string_view(table.input_names[d]), table.inputs[d]);
+  }
+  template <class Table, class F>
+  static void visit_pairs(Table& ours, const StudyColumns& theirs, F& f) {
+    std::apply([&](const auto&... c) { (f(ours.*c.second, theirs.*c.second), ...); },
+               fixed_columns());
+    for (std::size_t d = 0; d < ours.inputs.size(); ++d) f(ours.inputs[d], theirs.inputs[d]);
+  }
 };
+
+/// Rows [first, end) of every column in turn, appended to `out` as this machine's bytes: for
+/// messages between the ranks of one job and for checkpoints read back on the same machine.
+void append_row_bytes(const StudyColumns& columns, std::size_t first, std::size_t end,
+                      std::vector<std::byte>& out);
+/// Reads `rows` rows of every column from `in` at `at` (advanced past them), as append_row_bytes
+/// wrote them, onto the ends of `columns`. False, with nothing read, when `in` holds too few
+/// bytes.
+bool take_row_bytes(std::span<const std::byte> in, std::size_t& at, std::size_t rows,
+                    StudyColumns& columns);
 
 /// Receives the rows of finished rounds of samples, in order, while later rounds are computed:
 /// the thread that completes a round writes it (one call at a time, on whichever of the study's
