@@ -19,6 +19,14 @@ std::optional<double> from_nan(double v) {
   return std::isnan(v) ? std::nullopt : std::optional<double>(v);
 }
 
+// The energy exceedance's attributes of the energy group, for writing and reading.
+constexpr auto exceedance_fields() {
+  return std::make_tuple(
+      std::pair{"threshold", &Exceedance::threshold}, std::pair{"exceed_count", &Exceedance::count},
+      std::pair{"rows", &Exceedance::rows}, std::pair{"exceed", &Exceedance::share},
+      std::pair{"exceed_lower", &Exceedance::lower}, std::pair{"exceed_upper", &Exceedance::upper});
+}
+
 template <class Item, class F>
 std::vector<double> column(const std::vector<Item>& items, F field) {
   std::vector<double> out;
@@ -160,13 +168,7 @@ void write_group(H5::Group& root, const GroupFootprint& f) {
   write_containment(g, "energy", f.energy);
   {
     H5::Group e = g.openGroup("energy");
-    const auto& x = f.energy_exceedance;
-    write_attribute(e, "threshold", x.threshold);
-    write_attribute(e, "exceed_count", x.count);
-    write_attribute(e, "rows", x.rows);
-    write_attribute(e, "exceed", x.share);
-    write_attribute(e, "exceed_lower", x.lower);
-    write_attribute(e, "exceed_upper", x.upper);
+    write_attributes(e, f.energy_exceedance, exceedance_fields());
   }
   {
     H5::Group s = g.createGroup("sensitivity");
@@ -261,13 +263,7 @@ GroupFootprint read_group(const H5::Group& root, const std::string& name, double
   f.energy = read_containment(g, "energy", confidence);
   {
     H5::Group e = g.openGroup("energy");
-    auto& x = f.energy_exceedance;
-    x.threshold = read_attribute<double>(e, "threshold");
-    x.count = read_attribute<std::uint64_t>(e, "exceed_count");
-    x.rows = read_attribute<std::uint64_t>(e, "rows");
-    x.share = read_attribute<double>(e, "exceed");
-    x.lower = read_attribute<double>(e, "exceed_lower");
-    x.upper = read_attribute<double>(e, "exceed_upper");
+    read_attributes(e, f.energy_exceedance, exceedance_fields());
   }
   {
     H5::Group s = g.openGroup("sensitivity");

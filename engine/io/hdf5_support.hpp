@@ -7,6 +7,8 @@
 #include <cstdint>
 #include <mutex>
 #include <string>
+#include <tuple>
+#include <type_traits>
 #include <vector>
 
 namespace strewn::hdf5 {
@@ -16,30 +18,21 @@ namespace strewn::hdf5 {
 std::recursive_mutex& hdf5_mutex();
 
 template <class T>
-H5::PredType type_of();
-template <>
-inline H5::PredType type_of<double>() {
-  return H5::PredType::NATIVE_DOUBLE;
-}
-template <>
-inline H5::PredType type_of<std::uint8_t>() {
-  return H5::PredType::NATIVE_UINT8;
-}
-template <>
-inline H5::PredType type_of<std::uint16_t>() {
-  return H5::PredType::NATIVE_UINT16;
-}
-template <>
-inline H5::PredType type_of<std::uint64_t>() {
-  return H5::PredType::NATIVE_UINT64;
-}
-template <>
-inline H5::PredType type_of<std::int64_t>() {
-  return H5::PredType::NATIVE_INT64;
-}
-template <>
-inline H5::PredType type_of<int>() {
-  return H5::PredType::NATIVE_INT;
+H5::PredType type_of() {
+  if constexpr (std::is_same_v<T, double>)
+    return H5::PredType::NATIVE_DOUBLE;
+  else if constexpr (std::is_same_v<T, std::uint8_t>)
+    return H5::PredType::NATIVE_UINT8;
+  else if constexpr (std::is_same_v<T, std::uint16_t>)
+    return H5::PredType::NATIVE_UINT16;
+  else if constexpr (std::is_same_v<T, std::uint64_t>)
+    return H5::PredType::NATIVE_UINT64;
+  else if constexpr (std::is_same_v<T, std::int64_t>)
+    return H5::PredType::NATIVE_INT64;
+  else {
+    static_assert(std::is_same_v<T, int>, "no HDF5 type for this number type");
+    return H5::PredType::NATIVE_INT;
+  }
 }
 
 template <class T>
@@ -65,22 +58,36 @@ inline void write_attribute(H5::H5Object& object, const std::string& name,
   if (count) a.write(type_of<double>(), values.data());
 }
 
+// Strings of variable length, as HDF5 writes them: the pointers to their characters.
+inline std::vector<const char*> pointers_to(const std::vector<std::string>& values) {
+  std::vector<const char*> pointers;
+  for (const auto& v : values) pointers.push_back(v.c_str());
+  return pointers;
+}
+
+// Strings of variable length read by `read(pointers, type)` from an attribute or dataset of
+// `space`, copied out and their memory given back to HDF5.
+template <class Read>
+std::vector<std::string> read_variable_strings(const H5::DataSpace& space, Read read) {
+  hsize_t count = 0;
+  space.getSimpleExtentDims(&count);
+  std::vector<std::string> values;
+  if (count == 0) return values;
+  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+  std::vector<char*> pointers(count);
+  read(pointers.data(), type);
+  for (char* p : pointers) values.emplace_back(p ? p : "");
+  H5::DataSet::vlenReclaim(pointers.data(), type, space);
+  return values;
+}
+
 inline void write_strings_attribute(H5::H5Object& object, const std::string& name,
                                     const std::vector<std::string>& values) {
   H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
   const hsize_t count = values.size();
   H5::DataSpace space(1, &count);
-  std::vector<const char*> pointers;
-  for (const auto& v : values) pointers.push_back(v.c_str());
   H5::Attribute a = object.createAttribute(name, type, space);
-  if (count) a.write(type, pointers.data());
-}
-
-template <class T>
-T read_attribute(const H5::H5Object& object, const std::string& name) {
-  T value{};
-  object.openAttribute(name).read(type_of<T>(), &value);
-  return value;
+  if (count) a.write(type, pointers_to(values).data());
 }
 
 inline std::string read_string_attribute(const H5::H5Object& object, const std::string& name) {
@@ -88,6 +95,37 @@ inline std::string read_string_attribute(const H5::H5Object& object, const std::
   std::string value;
   a.read(a.getStrType(), value);
   return value;
+}
+
+template <class T>
+T read_attribute(const H5::H5Object& object, const std::string& name) {
+  if constexpr (std::is_same_v<T, std::string>) {
+    return read_string_attribute(object, name);
+  } else {
+    T value{};
+    object.openAttribute(name).read(type_of<T>(), &value);
+    return value;
+  }
+}
+
+/// Fields of a record stored as attributes of one object, from a single list of
+/// (attribute name, member pointer) pairs that serves both writing and reading.
+template <class Record, class... Field>
+void write_attributes(H5::H5Object& object, const Record& record,
+                      const std::tuple<Field...>& fields) {
+  std::apply([&](const auto&... f) { (write_attribute(object, f.first, record.*f.second), ...); },
+             fields);
+}
+template <class Record, class... Field>
+void read_attributes(const H5::H5Object& object, Record& record,
+                     const std::tuple<Field...>& fields) {
+  std::apply(
+      [&](const auto&... f) {
+        ((record.*f.second =
+              read_attribute<std::remove_cvref_t<decltype(record.*f.second)>>(object, f.first)),
+         ...);
+      },
+      fields);
 }
 
 inline std::vector<double> read_vector_attribute(const H5::H5Object& object,
@@ -103,16 +141,8 @@ inline std::vector<double> read_vector_attribute(const H5::H5Object& object,
 inline std::vector<std::string> read_strings_attribute(const H5::H5Object& object,
                                                        const std::string& name) {
   H5::Attribute a = object.openAttribute(name);
-  hsize_t count = 0;
-  a.getSpace().getSimpleExtentDims(&count);
-  std::vector<char*> pointers(count);
-  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
-  std::vector<std::string> values;
-  if (count == 0) return values;
-  a.read(type, pointers.data());
-  for (char* p : pointers) values.emplace_back(p ? p : "");
-  H5::DataSet::vlenReclaim(pointers.data(), type, a.getSpace());
-  return values;
+  return read_variable_strings(a.getSpace(),
+                               [&](char** to, const H5::StrType& type) { a.read(type, to); });
 }
 
 /// A 1-D dataset written whole (compressed when large).
@@ -151,24 +181,14 @@ inline void write_strings(H5::Group& group, const std::string& name,
   H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
   const hsize_t count = values.size();
   H5::DataSpace space(1, &count);
-  std::vector<const char*> pointers;
-  for (const auto& v : values) pointers.push_back(v.c_str());
   H5::DataSet set = group.createDataSet(name, type, space);
-  if (count) set.write(pointers.data(), type);
+  if (count) set.write(pointers_to(values).data(), type);
 }
 
 inline std::vector<std::string> read_strings(const H5::Group& group, const std::string& name) {
   H5::DataSet set = group.openDataSet(name);
-  hsize_t count = 0;
-  set.getSpace().getSimpleExtentDims(&count);
-  std::vector<std::string> values;
-  if (count == 0) return values;
-  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
-  std::vector<char*> pointers(count);
-  set.read(pointers.data(), type);
-  for (char* p : pointers) values.emplace_back(p ? p : "");
-  H5::DataSet::vlenReclaim(pointers.data(), type, set.getSpace());
-  return values;
+  return read_variable_strings(set.getSpace(),
+                               [&](char** to, const H5::StrType& type) { set.read(to, type); });
 }
 
 }  // namespace strewn::hdf5

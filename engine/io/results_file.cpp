@@ -205,13 +205,7 @@ void ResultsWriter::finish(const StudyRecord& record) {
   const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   io_guard(path_, [&] {
     H5::H5File& file = open_->file;
-    write_attribute(file, "seed", record.seed);
-    write_attribute(file, "samples", record.samples);
-    write_attribute(file, "completed", record.completed);
-    write_attribute(file, "failed", record.failed);
-    write_attribute(file, "threads", record.threads);
-    write_attribute(file, "rounds", record.rounds);
-    write_attribute(file, "ranks", record.ranks);
+    write_attributes(file, record, run_counters());
     write_footprint(file, record);
     file.flush(H5F_SCOPE_GLOBAL);
     if (!open_->close()) {
@@ -422,16 +416,8 @@ ResultsFile read_results(const std::string& path, bool with_samples) {
                            ", this strewn reads version " + std::to_string(kResultsFormatVersion) +
                            "; run the study again with this strewn");
     record.file = path;
-    record.engine_version = read_string_attribute(file, "engine_version");
-    record.created = read_string_attribute(file, "created");
-    record.scenario_sha256 = read_string_attribute(file, "scenario_sha256");
-    record.seed = read_attribute<std::uint64_t>(file, "seed");
-    record.samples = read_attribute<std::uint64_t>(file, "samples");
-    record.completed = read_attribute<std::uint64_t>(file, "completed");
-    record.failed = read_attribute<std::uint64_t>(file, "failed");
-    record.threads = read_attribute<int>(file, "threads");
-    record.rounds = read_attribute<int>(file, "rounds");
-    record.ranks = read_attribute<int>(file, "ranks");
+    read_attributes(file, record, run_identity());
+    read_attributes(file, record, run_counters());
     {
       H5::DataSet text = file.openDataSet("scenario");
       text.read(record.scenario_text, text.getStrType());

@@ -6,6 +6,8 @@
 #include <cstdint>
 #include <optional>
 #include <string>
+#include <tuple>
+#include <utility>
 #include <vector>
 
 #include "footprint/footprint.hpp"
@@ -31,6 +33,21 @@ struct StudyRecord {
   std::vector<std::string> body_names;
   Footprint footprint;
 };
+
+/// What identifies a run and what it counted, each with its attribute name in results files: one
+/// list for the results file's writer and reader and for a sweep's case groups.
+constexpr auto run_identity() {
+  return std::make_tuple(std::pair{"engine_version", &StudyRecord::engine_version},
+                         std::pair{"created", &StudyRecord::created},
+                         std::pair{"scenario_sha256", &StudyRecord::scenario_sha256});
+}
+constexpr auto run_counters() {
+  return std::make_tuple(
+      std::pair{"seed", &StudyRecord::seed}, std::pair{"samples", &StudyRecord::samples},
+      std::pair{"completed", &StudyRecord::completed}, std::pair{"failed", &StudyRecord::failed},
+      std::pair{"threads", &StudyRecord::threads}, std::pair{"rounds", &StudyRecord::rounds},
+      std::pair{"ranks", &StudyRecord::ranks});
+}
 
 /// The footprint settings of a scenario: levels, confidence, centre (the nominal impacts flown
 /// when the centre is "nominal"), downrange axis along the nominal release track, grid, rules.

@@ -75,16 +75,8 @@ std::string write_sweep_file(const std::string& path, const std::string& sweep_t
         if (in.nameExists(object) &&
             H5Ocopy(in.getId(), object, target.getId(), object, H5P_DEFAULT, H5P_DEFAULT) < 0)
           throw IoError(path + ": cannot copy " + object + " of " + cases[i].file);
-      write_attribute(target, "engine_version", r.engine_version);
-      write_attribute(target, "created", r.created);
-      write_attribute(target, "seed", r.seed);
-      write_attribute(target, "samples", r.samples);
-      write_attribute(target, "completed", r.completed);
-      write_attribute(target, "failed", r.failed);
-      write_attribute(target, "scenario_sha256", r.scenario_sha256);
-      write_attribute(target, "threads", r.threads);
-      write_attribute(target, "ranks", r.ranks);
-      write_attribute(target, "rounds", r.rounds);
+      write_attributes(target, r, run_identity());
+      write_attributes(target, r, run_counters());
       for (std::size_t a = 0; a < axis_keys.size(); ++a)
         write_attribute(target, axis_keys[a], cases[i].values.at(a));
 
