@@ -4,13 +4,11 @@
 # name, line and key path, and nothing written. Scenario problems are refused by `strewn check`
 # as well.
 # In a message, {here} stands for this folder.
-# Usage: run.sh STREWN_BINARY
+# Usage: run.sh STREWN_BINARY SOURCE_DIR
 set -uo pipefail
-strewn="$(realpath "$1")"
+source "$(dirname "$0")/../lib.sh" "$1" "$2"
 here="$(cd "$(dirname "$0")" && pwd)"
-work="$(mktemp -d)"
-trap 'rm -rf "$work"' EXIT
-failures=0 cases=0
+cases=0
 while IFS=$'\t' read -r file status expected; do
   [[ -z "$file" || "$file" == \#* ]] && continue
   cases=$((cases + 1))
@@ -35,11 +33,9 @@ while IFS=$'\t' read -r file status expected; do
     [[ "$check" == 2 ]] || problem="$problem; check exit $check"
   fi
   if [[ -n "$problem" ]]; then
-    echo "FAIL: $file: ${problem#; }"
+    fail "$file: ${problem#; }"
     sed 's/^/      /' "$run/err" | head -5
-    failures=$((failures + 1))
   fi
 done <"$here/catalogue.tsv"
-echo "bad-input catalogue: $cases cases, $failures failed"
-((cases >= 50)) || { echo "FAIL: the catalogue must hold at least 50 cases"; exit 1; }
-exit $((failures > 0))
+((cases >= 50)) || fail "the catalogue must hold at least 50 cases (it holds $cases)"
+finish "bad-input catalogue of $cases cases"

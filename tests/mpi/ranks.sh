@@ -7,19 +7,11 @@
 #    equal to a sweep run straight.
 # Usage: ranks.sh STREWN_BINARY SOURCE_DIR
 set -euo pipefail
-strewn="$1"
-source_dir="$2"
-work="$(mktemp -d)"
-trap 'rm -rf "$work"' EXIT
+source "$(dirname "$0")/../lib.sh" "$1" "$2"
 # Under AddressSanitizer, leaks reported inside the MPI library are not ours to fix (the later
 # setting wins; single-process tests keep leak detection).
 export ASAN_OPTIONS="${ASAN_OPTIONS:-}:detect_leaks=0"
 mpi=(mpirun --allow-run-as-root --oversubscribe -x ASAN_OPTIONS)
-failures=0
-fail() {
-  echo "FAIL: $*"
-  failures=$((failures + 1))
-}
 # The JSON summary of a results file without its provenance (file name, time, threads).
 summary() { "$strewn" report "$1" --json | python3 -c 'import json,sys; j=json.load(sys.stdin); j.pop("provenance"); print(json.dumps(j, sort_keys=True))'; }
 
@@ -78,5 +70,4 @@ for i in 0 1 2 3; do
 done
 echo "ok: killed sweep resumed equals the straight run"
 
-echo "mpi tests: $failures failed"
-exit $((failures > 0))
+finish "mpi tests"

@@ -4,15 +4,7 @@
 # message naming the path, and leaves no file under the final name.
 # Usage: faults.sh STREWN_BINARY SOURCE_DIR
 set -uo pipefail
-strewn="$(realpath "$1")"
-source_dir="$2"
-work="$(mktemp -d)"
-trap 'rm -rf "$work"' EXIT
-failures=0
-fail() {
-  echo "FAIL: $*"
-  failures=$((failures + 1))
-}
+source "$(dirname "$0")/../lib.sh" "$1" "$2"
 scenario="$source_dir/tests/bench/bundle-study.toml"
 
 # A full disk: at most 2 MiB per file (ulimit -f counts 1 KiB blocks).
@@ -36,5 +28,4 @@ status=$?
 [[ -e "$work/vanishing/out.h5" ]] && fail "vanished folder: a file under the final name"
 echo "ok: vanished output folder ends with status 3: $(head -1 "$work/err")"
 
-echo "fault tests: $failures failed"
-exit $((failures > 0))
+finish "fault tests"

@@ -8,15 +8,7 @@
 #  - a final file never exists in an incomplete state.
 # Usage: interrupt.sh STREWN_BINARY SOURCE_DIR
 set -uo pipefail
-strewn="$(realpath "$1")"
-source_dir="$2"
-work="$(mktemp -d)"
-trap 'rm -rf "$work"' EXIT
-failures=0
-fail() {
-  echo "FAIL: $*"
-  failures=$((failures + 1))
-}
+source "$(dirname "$0")/../lib.sh" "$1" "$2"
 # The ridge drop: about 70 us per sample on one core, so a 20 000-sample run lasts about 0.7 s on
 # two threads in Release (ten times that under the sanitizers); kills come at random fractions of
 # the time an uninterrupted run takes on this build.
@@ -71,5 +63,4 @@ for trial in 1 2 3; do
   echo "ok: killed $kills times at random, resumed, equal to the uninterrupted run"
 done
 
-echo "interruption tests: $failures failed"
-exit $((failures > 0))
+finish "interruption tests"

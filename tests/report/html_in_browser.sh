@@ -3,11 +3,8 @@
 # DOM holds the map and the tables, and the screenshot shows a drawn map, not a blank page.
 # Usage: html_in_browser.sh STREWN_BINARY SOURCE_DIR
 set -euo pipefail
-strewn="$1"
-source_dir="$2"
-work="$(mktemp -d)"
-trap 'rm -rf "$work"' EXIT
-fail() {
+source "$(dirname "$0")/../lib.sh" "$1" "$2"
+fail() {  # this test stops at its first failure: each step needs the one before
   echo "FAIL: $*" >&2
   exit 1
 }
