@@ -3,6 +3,9 @@
 #include <algorithm>
 #include <cctype>
 #include <charconv>
+#include <cmath>
+#include <cstdarg>
+#include <cstdio>
 
 namespace strewn {
 
@@ -56,6 +59,25 @@ std::string format_number(double value) {
   auto [end, ec] = std::to_chars(buffer, buffer + sizeof buffer, value);
   if (ec != std::errc()) return "?";
   return std::string(buffer, end);
+}
+
+std::string printf_text(const char* format, ...) {
+  std::va_list arguments;
+  va_start(arguments, format);
+  std::va_list again;
+  va_copy(again, arguments);
+  const int length = std::vsnprintf(nullptr, 0, format, arguments);
+  va_end(arguments);
+  std::string text(length > 0 ? static_cast<std::size_t>(length) : 0, '\0');
+  if (length > 0) std::vsnprintf(text.data(), text.size() + 1, format, again);
+  va_end(again);
+  return text;
+}
+
+std::string csv_number(double value) {
+  if (std::isnan(value)) return "";
+  if (std::isinf(value)) return value > 0 ? "inf" : "-inf";
+  return printf_text("%.10g", value);
 }
 
 }  // namespace strewn

@@ -16,4 +16,10 @@ std::string closest_match(std::string_view word, const std::vector<std::string>&
 /// Shortest decimal text that reads back to the same double ("%.17g" trimmed).
 std::string format_number(double value);
 
+/// printf's text of its arguments (the compiler checks the format against them).
+[[gnu::format(printf, 1, 2)]] std::string printf_text(const char* format, ...);
+
+/// A number for a CSV cell: ten significant digits; empty for NaN (no value), "inf" or "-inf".
+std::string csv_number(double value);
+
 }  // namespace strewn

@@ -1,7 +1,8 @@
 #include "flight/trajectory.hpp"
 
 #include <cmath>
-#include <cstdio>
+
+#include "core/text.hpp"
 
 namespace strewn {
 
@@ -39,11 +40,7 @@ std::vector<std::string> TrajectoryRecorder::warnings(const FlightResult& result
     out.push_back(std::string("the flight did not land: ") + to_string(result.status));
   if (reynolds_.empty()) return out;
   const DragSpec& spec = drag_;
-  auto number = [](double v) {  // three significant figures
-    char text[32];
-    std::snprintf(text, sizeof text, "%.3g", v);
-    return std::string(text);
-  };
+  auto number = [](double v) { return printf_text("%.3g", v); };  // three significant figures
   switch (spec.model) {
     case DragModel::sphere:
       if (reynolds_.max > drag::kMorrisonMaxReynolds)

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "core/text.hpp"
 #include "io/cautions.hpp"
 
 namespace strewn {
@@ -185,13 +186,8 @@ namespace {
 std::string metres(double v) {
   if (std::isnan(v)) return "-";
   if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
-  char text[32];
   // Decimetres for field studies; three significant digits below 10 m (a laboratory tank).
-  if (std::abs(v) >= 10.0 || v == 0.0)
-    std::snprintf(text, sizeof text, "%.1f", v);
-  else
-    std::snprintf(text, sizeof text, "%.3g", v);
-  return text;
+  return std::abs(v) >= 10.0 || v == 0.0 ? printf_text("%.1f", v) : printf_text("%.3g", v);
 }
 }  // namespace
 

@@ -7,6 +7,7 @@
 #include <numbers>
 #include <sstream>
 
+#include "core/text.hpp"
 #include "io/report_files.hpp"
 
 namespace strewn {
@@ -39,18 +40,11 @@ std::string density_colour(double t) {  // t in [0, 1], 1 the densest
 }
 
 std::string fmt(double v) {
-  char text[32];
-  std::snprintf(text, sizeof text, "%.1f", v);
-  return text;
+  return printf_text("%.1f", v);
 }
 
 std::string length_label(double metres) {
-  char text[32];
-  if (metres >= 1000.0)
-    std::snprintf(text, sizeof text, "%g km", metres / 1000.0);
-  else
-    std::snprintf(text, sizeof text, "%g m", metres);
-  return text;
+  return metres >= 1000.0 ? printf_text("%g km", metres / 1000.0) : printf_text("%g m", metres);
 }
 
 // A round length (1, 2 or 5 times a power of ten) near `about`.

@@ -11,6 +11,7 @@
 #include <numbers>
 
 #include "core/errors.hpp"
+#include "core/text.hpp"
 #include "io/cautions.hpp"
 #include "io/footprint_report.hpp"
 
@@ -201,13 +202,7 @@ std::string figures_csv(const StudyRecord& r) {
   std::string out =
       "group,figure,level,estimate,interval_lower,interval_upper,bound_upper,confidence,unit,"
       "note\n";
-  auto number = [](double v) {
-    if (std::isnan(v)) return std::string();
-    if (std::isinf(v)) return std::string(v > 0 ? "inf" : "-inf");
-    char text[40];
-    std::snprintf(text, sizeof text, "%.10g", v);
-    return std::string(text);
-  };
+  const auto number = csv_number;
   auto row = [&](const std::string& group, const std::string& figure, double level, double estimate,
                  double lower, double upper, double bound, const char* unit,
                  const std::string& note) {

@@ -9,6 +9,7 @@
 #include <mutex>
 
 #include "core/errors.hpp"
+#include "core/text.hpp"
 #include "core/version.hpp"
 #include "io/hdf5_support.hpp"
 #include "io/results_file.hpp"
@@ -18,17 +19,8 @@ namespace strewn {
 using namespace hdf5;
 
 namespace {
-std::string number_text(double v) {
-  if (std::isnan(v)) return "";
-  if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
-  char text[40];
-  std::snprintf(text, sizeof text, "%.10g", v);
-  return text;
-}
 std::string level_text(double level) {
-  char text[32];
-  std::snprintf(text, sizeof text, "%g", level);
-  return text;
+  return printf_text("%g", level);
 }
 }  // namespace
 
@@ -135,8 +127,8 @@ std::string write_sweep_file(const std::string& path, const std::string& sweep_t
     for (std::size_t i = 0; i < cases.size(); ++i) {
       cell(std::to_string(i), true);
       for (std::size_t a = 0; a < axis_keys.size(); ++a)
-        cell(number_text(axis_columns[a][i]), false);
-      for (std::size_t k = 0; k < number_names.size(); ++k) cell(number_text(numbers[k][i]), false);
+        cell(csv_number(axis_columns[a][i]), false);
+      for (std::size_t k = 0; k < number_names.size(); ++k) cell(csv_number(numbers[k][i]), false);
       for (std::size_t k = 0; k < text_names.size(); ++k) cell(texts[k][i], false);
       csv += '\n';
     }

@@ -5,6 +5,7 @@
 #include <iomanip>
 
 #include "core/errors.hpp"
+#include "core/text.hpp"
 #include "io/cautions.hpp"
 
 namespace strewn {
@@ -37,14 +38,10 @@ nlohmann::json range_json(const Range& r) {
 }
 
 std::string fixed(double v, int digits) {
-  char buffer[64];
-  std::snprintf(buffer, sizeof buffer, "%.*f", digits, v);
-  return buffer;
+  return printf_text("%.*f", digits, v);
 }
 std::string general(double v) {
-  char buffer[64];
-  std::snprintf(buffer, sizeof buffer, "%.3g", v);
-  return buffer;
+  return printf_text("%.3g", v);
 }
 }  // namespace
 

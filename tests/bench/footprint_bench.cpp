@@ -6,6 +6,7 @@
 
 #include <filesystem>
 
+#include "bench_study.hpp"
 #include "io/footprint_report.hpp"
 #include "io/report_files.hpp"
 #include "io/results_file.hpp"
@@ -16,14 +17,11 @@ namespace {
 
 constexpr std::uint64_t kSamples = 1000000;
 
-struct Setup {
-  Scenario scenario = load_scenario(STREWN_SOURCE_DIR "/tests/bench/footprint-study.toml");
-  World world = build_world(scenario);
-  SampleModel model{scenario, world, kSamples};
+struct Setup : bench::BenchStudy {
   StudyResult result;
   FootprintSettings settings = footprint_settings(scenario, world, kSamples);
   std::string path = STREWN_SOURCE_DIR "/build/bench/footprint-study.h5";
-  Setup() {
+  Setup() : BenchStudy("footprint-study.toml", kSamples) {
     StudyOptions options;
     options.samples = kSamples;
     result = run_study(model, options);  // every thread: this is set-up, not measured

@@ -6,6 +6,7 @@
 
 #include <filesystem>
 
+#include "bench_study.hpp"
 #include "io/results_file.hpp"
 #include "study/study.hpp"
 
@@ -14,12 +15,9 @@ namespace {
 
 constexpr std::uint64_t kSamples = 200000;
 
-struct Setup {
-  Scenario scenario = load_scenario(STREWN_SOURCE_DIR "/tests/bench/bundle-study.toml");
-  World world = build_world(scenario);
-  SampleModel model{scenario, world, kSamples};
+struct Setup : bench::BenchStudy {
   std::vector<FlightInputs> flights;  // the same flights, drawn beforehand for the bare loop
-  Setup() {
+  Setup() : BenchStudy("bundle-study.toml", kSamples) {
     SampleModel::Workspace w(model);
     flights.reserve(kSamples);
     for (std::uint64_t i = 0; i < kSamples; ++i) {

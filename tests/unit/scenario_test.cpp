@@ -2,7 +2,11 @@
 // the line and what was expected, all problems in one pass.
 #include <gtest/gtest.h>
 
+#include <limits>
+#include <string>
+
 #include "core/errors.hpp"
+#include "core/text.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/world.hpp"
 
@@ -179,6 +183,27 @@ TEST(ScenarioBadInput, FilesThatAreNotScenarios) {
   EXPECT_THROW(load_scenario("/nonexistent/strewn.toml"), ScenarioError);
   EXPECT_THROW(load_scenario(STREWN_SOURCE_DIR "/tests"), ScenarioError);
   EXPECT_THROW(parse_scenario("", "empty.toml"), ScenarioError);
+}
+
+}  // namespace
+}  // namespace strewn
+
+namespace strewn {
+namespace {
+
+// The text helpers behind messages and files: the number text reads back exactly (the C++
+// standard's shortest round trip), CSV cells follow the interface (empty for no value), and
+// printf_text sizes its result to any length.
+TEST(Text, NumbersAndPrintfText) {
+  for (double v : {0.1, 1.0 / 3.0, 6.02214076e23, -2.5e-300})
+    EXPECT_EQ(std::stod(format_number(v)), v) << format_number(v);
+  EXPECT_EQ(csv_number(std::numeric_limits<double>::quiet_NaN()), "");
+  EXPECT_EQ(csv_number(std::numeric_limits<double>::infinity()), "inf");
+  EXPECT_EQ(csv_number(-std::numeric_limits<double>::infinity()), "-inf");
+  EXPECT_EQ(csv_number(1234.5678912345), "1234.567891");
+  EXPECT_EQ(printf_text("%.2f m", 3.14159), "3.14 m");
+  EXPECT_EQ(printf_text("%s", std::string(300, 'x').c_str()).size(), 300u);
+  EXPECT_EQ(closest_match("seeed", {"seed", "samples"}), "seed");
 }
 
 }  // namespace
