@@ -19,6 +19,36 @@ std::optional<double> from_nan(double v) {
   return std::isnan(v) ? std::nullopt : std::optional<double>(v);
 }
 
+// The attributes of a body group, of the footprint and of the run the footprint group holds, each
+// list for both writing and reading.
+constexpr auto group_fields() {
+  return std::make_tuple(std::pair{"rows", &GroupFootprint::rows},
+                         std::pair{"landed", &GroupFootprint::landed},
+                         std::pair{"failed", &GroupFootprint::failed},
+                         std::pair{"objects_per_release", &GroupFootprint::objects_per_release},
+                         std::pair{"cep", &GroupFootprint::cep},
+                         std::pair{"cep_gaussian", &GroupFootprint::cep_gaussian},
+                         std::pair{"time_min", &GroupFootprint::time_min},
+                         std::pair{"time_max", &GroupFootprint::time_max});
+}
+constexpr auto footprint_fields() {
+  return std::make_tuple(std::pair{"levels", &Footprint::levels},
+                         std::pair{"confidence", &Footprint::confidence},
+                         std::pair{"centre", &Footprint::centre},
+                         std::pair{"downrange_bearing", &Footprint::downrange_bearing},
+                         std::pair{"energy_threshold", &Footprint::energy_threshold},
+                         std::pair{"releases", &Footprint::releases});
+}
+constexpr auto record_fields() {
+  return std::make_tuple(std::pair{"title", &StudyRecord::title},
+                         std::pair{"sampling", &StudyRecord::sampling},
+                         std::pair{"ground", &StudyRecord::ground},
+                         std::pair{"release_altitude", &StudyRecord::release_altitude},
+                         std::pair{"release_track", &StudyRecord::release_track},
+                         std::pair{"max_samples", &StudyRecord::max_samples},
+                         std::pair{"rounds", &StudyRecord::rounds});
+}
+
 // The energy exceedance's attributes of the energy group, for writing and reading.
 constexpr auto exceedance_fields() {
   return std::make_tuple(
@@ -94,14 +124,7 @@ std::vector<QuantileEstimate> read_quantiles(const H5::Group& parent, const std:
 
 void write_group(H5::Group& root, const GroupFootprint& f) {
   H5::Group g = root.createGroup(f.name);
-  write_attribute(g, "rows", f.rows);
-  write_attribute(g, "landed", f.landed);
-  write_attribute(g, "failed", f.failed);
-  write_attribute(g, "objects_per_release", f.objects_per_release);
-  write_attribute(g, "cep", f.cep);
-  write_attribute(g, "cep_gaussian", f.cep_gaussian);
-  write_attribute(g, "time_min", f.time_min);
-  write_attribute(g, "time_max", f.time_max);
+  write_attributes(g, f, group_fields());
   write_vector(g, "mean", std::vector<double>{f.mean.east, f.mean.north});
   write_vector(g, "centre", std::vector<double>{f.centre.east, f.centre.north});
   {
@@ -187,14 +210,7 @@ GroupFootprint read_group(const H5::Group& root, const std::string& name, double
   H5::Group g = root.openGroup(name);
   GroupFootprint f;
   f.name = name;
-  f.rows = read_attribute<std::uint64_t>(g, "rows");
-  f.landed = read_attribute<std::uint64_t>(g, "landed");
-  f.failed = read_attribute<std::uint64_t>(g, "failed");
-  f.objects_per_release = read_attribute<double>(g, "objects_per_release");
-  f.cep = read_attribute<double>(g, "cep");
-  f.cep_gaussian = read_attribute<double>(g, "cep_gaussian");
-  f.time_min = read_attribute<double>(g, "time_min");
-  f.time_max = read_attribute<double>(g, "time_max");
+  read_attributes(g, f, group_fields());
   const auto mean = read_vector<double>(g, "mean"), centre = read_vector<double>(g, "centre");
   f.mean = {mean.at(0), mean.at(1)};
   f.centre = {centre.at(0), centre.at(1)};
@@ -281,25 +297,15 @@ GroupFootprint read_group(const H5::Group& root, const std::string& name, double
 void write_footprint(H5::H5File& file, const StudyRecord& r) {
   const Footprint& f = r.footprint;
   H5::Group root = file.createGroup("footprint");
-  write_attribute(root, "levels", f.levels);
-  write_attribute(root, "confidence", f.confidence);
-  write_attribute(root, "centre", f.centre);
-  write_attribute(root, "downrange_bearing", f.downrange_bearing);
-  write_attribute(root, "energy_threshold", f.energy_threshold);
-  write_attribute(root, "releases", f.releases);
+  write_attributes(root, f, footprint_fields());
   write_attribute(root, "widest_relative_width", f.widest_relative_width());
-  write_attribute(root, "title", r.title);
-  write_attribute(root, "sampling", r.sampling);
+  write_attributes(root, r, record_fields());
+  // Absent values as NaN: the site's origin and the target width are optional.
   write_attribute(root, "site_latitude", or_nan(r.latitude));
   write_attribute(root, "site_longitude", or_nan(r.longitude));
-  write_attribute(root, "ground", r.ground);
+  write_attribute(root, "target_width", or_nan(r.target_width));
   write_attribute(root, "release_east", r.release.east);
   write_attribute(root, "release_north", r.release.north);
-  write_attribute(root, "release_altitude", r.release_altitude);
-  write_attribute(root, "release_track", r.release_track);
-  write_attribute(root, "target_width", or_nan(r.target_width));
-  write_attribute(root, "max_samples", r.max_samples);
-  write_attribute(root, "rounds", r.rounds);
   std::vector<std::string> names;
   for (const auto& g : f.groups) names.push_back(g.name);
   write_strings_attribute(root, "groups", names);
@@ -331,24 +337,13 @@ void write_footprint(H5::H5File& file, const StudyRecord& r) {
 void read_footprint(const H5::H5File& file, StudyRecord& r) {
   H5::Group root = file.openGroup("footprint");
   Footprint& f = r.footprint;
-  f.levels = read_vector_attribute(root, "levels");
-  f.confidence = read_attribute<double>(root, "confidence");
-  f.centre = read_string_attribute(root, "centre");
-  f.downrange_bearing = read_attribute<double>(root, "downrange_bearing");
-  f.energy_threshold = read_attribute<double>(root, "energy_threshold");
-  f.releases = read_attribute<std::uint64_t>(root, "releases");
-  r.title = read_string_attribute(root, "title");
-  r.sampling = read_string_attribute(root, "sampling");
+  read_attributes(root, f, footprint_fields());
+  read_attributes(root, r, record_fields());
   r.latitude = from_nan(read_attribute<double>(root, "site_latitude"));
   r.longitude = from_nan(read_attribute<double>(root, "site_longitude"));
-  r.ground = read_attribute<double>(root, "ground");
+  r.target_width = from_nan(read_attribute<double>(root, "target_width"));
   r.release = {read_attribute<double>(root, "release_east"),
                read_attribute<double>(root, "release_north")};
-  r.release_altitude = read_attribute<double>(root, "release_altitude");
-  r.release_track = read_attribute<double>(root, "release_track");
-  r.target_width = from_nan(read_attribute<double>(root, "target_width"));
-  r.max_samples = read_attribute<std::uint64_t>(root, "max_samples");
-  r.rounds = read_attribute<int>(root, "rounds");
   for (const auto& name : read_strings_attribute(root, "groups"))
     f.groups.push_back(read_group(root, name, f.confidence));
   H5::Group rules = root.openGroup("rules");

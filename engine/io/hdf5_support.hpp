@@ -97,10 +97,15 @@ inline std::string read_string_attribute(const H5::H5Object& object, const std::
   return value;
 }
 
+inline std::vector<double> read_vector_attribute(const H5::H5Object& object,
+                                                 const std::string& name);
+
 template <class T>
 T read_attribute(const H5::H5Object& object, const std::string& name) {
   if constexpr (std::is_same_v<T, std::string>) {
     return read_string_attribute(object, name);
+  } else if constexpr (std::is_same_v<T, std::vector<double>>) {
+    return read_vector_attribute(object, name);
   } else {
     T value{};
     object.openAttribute(name).read(type_of<T>(), &value);
