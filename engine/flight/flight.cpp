@@ -182,9 +182,10 @@ class FlightRun {
   // it, and a further step would cost a whole step (and often a rejected trial) for that sliver.
   // Returns the time of the landing, or NaN when there is none so close (or a stage change comes
   // first).
+  static constexpr double kNoLanding = std::numeric_limits<double>::quiet_NaN();
   template <class Stepper>
   double landing_just_ahead(const Stepper& stepper, double t_stop) const {
-    constexpr double kNone = std::numeric_limits<double>::quiet_NaN();
+    constexpr double kNone = kNoLanding;
     const double z0 = stepper.y_previous()[2], z = stepper.y()[2];
     if (!(z > ground_ && z - ground_ <= kSliver * std::abs(z - z0))) return kNone;
     const double t = stepper.t();
@@ -324,7 +325,10 @@ FlightRun::Next FlightRun::integrate(Stepper& stepper, State& y, double& t, doub
       finish_landing(t, y.template head<3>(), velocity_of(y, ground_));
       return Next::ground;
     }
-    if (const double landing = landing_just_ahead(stepper, t_stop); !std::isnan(landing)) {
+    // (Not while a deployment height is watched: the deployment comes first, however close.)
+    if (const double landing =
+            watch_deploy_height ? kNoLanding : landing_just_ahead(stepper, t_stop);
+        !std::isnan(landing)) {
       t = landing;
       y = stepper.dense(t);
       finish_landing(t, y.template head<3>(), velocity_of(y, ground_));
