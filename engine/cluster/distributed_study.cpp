@@ -50,12 +50,11 @@ StudyResult receive_rows(const Job& job, int from, std::uint64_t rows,
                          const std::vector<std::string>& input_names, std::size_t bodies) {
   StudyResult piece;
   piece.bodies = bodies;
-  piece.columns.input_names = input_names;
-  piece.columns.inputs.resize(input_names.size());
+  piece.columns.set_inputs(input_names);
   for (std::uint64_t received = 0; received < rows;)
     received += unpack(job.receive(from, kRowsTag), piece.columns);
   piece.samples = rows / bodies;
-  for (std::uint8_t st : piece.columns.status) (st == 0 ? piece.completed : piece.failed)++;
+  piece.count_outcomes();
   return piece;
 }
 

@@ -39,8 +39,7 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
     : path_(std::move(path)), bodies_(std::max<std::size_t>(1, id.bodies)) {
   const std::string header = header_of(id);
   rows_.bodies = bodies_;
-  rows_.columns.input_names = input_names;
-  rows_.columns.inputs.resize(input_names.size());
+  rows_.columns.set_inputs(input_names);
   std::uint64_t good_bytes = 0;
   if (resume && std::filesystem::exists(path_)) {
     std::FILE* in = std::fopen(path_.c_str(), "rb");
@@ -75,7 +74,7 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
     const std::size_t keep = rows / bodies_ * bodies_;
     if (keep != rows) throw IoError(path_ + ": the checkpoint holds a part of a sample");
     rows_.samples = rows / bodies_;
-    for (std::uint8_t st : rows_.columns.status) (st == 0 ? rows_.completed : rows_.failed)++;
+    rows_.count_outcomes();
   }
   if (good_bytes > 0) {
     // Cut off a torn end, and go on appending.

@@ -168,8 +168,7 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
     write_strings_attribute(open->samples, "input_names", input_names);
     if (keep_samples) {
       StudyColumns shape;  // no rows: only the names and types of the columns
-      shape.input_names = input_names;
-      shape.inputs.resize(input_names.size());
+      shape.set_inputs(input_names);
       shape.for_each_column([&](std::string_view name, const auto& column) {
         using Value = typename std::decay_t<decltype(column)>::value_type;
         open->columns.push_back(
@@ -266,12 +265,11 @@ StudyResult slice_samples(const StudyResult& from, std::uint64_t first, std::uin
   piece.samples = count;
   const std::size_t a = first * bodies, b = (first + count) * bodies;
   auto& p = piece.columns;
-  p.input_names = from.columns.input_names;
-  p.inputs.resize(from.columns.inputs.size());
+  p.set_inputs(from.columns.input_names);
   p.for_each_column_with(from.columns, [&](auto& to, const auto& column) {
     to.assign(column.begin() + a, column.begin() + b);
   });
-  for (std::uint8_t st : p.status) (st == 0 ? piece.completed : piece.failed)++;
+  piece.count_outcomes();
   return piece;
 }
 
@@ -312,8 +310,7 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
   options.stop = control.stop;
   StudyRun run;
   run.result.bodies = model.bodies();
-  run.result.columns.input_names = names;
-  run.result.columns.inputs.resize(names.size());
+  run.result.columns.set_inputs(names);
   std::uint64_t total = options.samples;
   int rounds = 0;
   Footprint footprint;
@@ -429,8 +426,7 @@ ResultsFile read_results(const std::string& path, bool with_samples) {
     r.has_samples = samples.nameExists("east");
     if (with_samples && r.has_samples) {
       StudyColumns& c = r.columns;
-      c.input_names = read_strings_attribute(samples, "input_names");
-      c.inputs.resize(c.input_names.size());
+      c.set_inputs(read_strings_attribute(samples, "input_names"));
       c.for_each_column([&](std::string_view name, auto& column) {
         using Value = typename std::decay_t<decltype(column)>::value_type;
         column = read_vector<Value>(samples, std::string(name));

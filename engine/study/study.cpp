@@ -139,17 +139,9 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
         std::min(options.samples, next_round.load() * kBlocksPerRound * block);
     result.interrupted = true;
     result.samples = kept;
-    c.body.resize(kept * bodies);
-    c.east.resize(kept * bodies);
-    c.north.resize(kept * bodies);
-    c.time.resize(kept * bodies);
-    c.speed.resize(kept * bodies);
-    c.energy.resize(kept * bodies);
-    c.status.resize(kept * bodies);
-    c.canopy.resize(kept * bodies);
-    for (auto& input : c.inputs) input.resize(kept * bodies);
+    c.for_each_column([&](std::string_view, auto& column) { column.resize(kept * bodies); });
   }
-  for (std::uint8_t st : c.status) (st == 0 ? result.completed : result.failed)++;
+  result.count_outcomes();
   return result;
 }
 

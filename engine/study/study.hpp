@@ -32,6 +32,11 @@ struct StudyColumns {
 
   void resize(std::size_t rows, std::size_t input_count);
   [[nodiscard]] std::size_t rows() const { return east.size(); }
+  /// Names the sampled inputs, with a column for each (empty, or kept as it was).
+  void set_inputs(std::vector<std::string> names) {
+    input_names = std::move(names);
+    inputs.resize(input_names.size());
+  }
 
   /// Calls f(name, column) on each per-row column in one fixed order: the fixed columns under
   /// their names in results files, then the inputs under theirs (input_names and inputs match).
@@ -118,6 +123,12 @@ struct StudyResult {
   std::uint64_t failed = 0;     ///< rows that did not
   std::size_t bodies = 0;
   bool interrupted = false;  ///< stopped early: `samples` counts the prefix that was finished
+
+  /// Sets `completed` and `failed` from the rows' statuses.
+  void count_outcomes() {
+    completed = failed = 0;
+    for (std::uint8_t st : columns.status) (st == 0 ? completed : failed)++;
+  }
 };
 
 /// Runs the study on the threads TBB may use (limit them with tbb::global_control).

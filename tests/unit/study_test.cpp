@@ -105,8 +105,7 @@ TEST(Study, RowBytesRoundTripAndRefuseShortInput) {
   append_row_bytes(rows, 0, 30, bytes);
   append_row_bytes(rows, 30, 100, bytes);
   StudyColumns back;
-  back.input_names = rows.input_names;
-  back.inputs.resize(rows.inputs.size());
+  back.set_inputs(rows.input_names);
   std::size_t at = 0;
   ASSERT_TRUE(take_row_bytes(bytes, at, 30, back));
   ASSERT_TRUE(take_row_bytes(bytes, at, 70, back));
@@ -114,8 +113,7 @@ TEST(Study, RowBytesRoundTripAndRefuseShortInput) {
   EXPECT_TRUE(same_columns(rows, back));
 
   StudyColumns short_of;
-  short_of.input_names = rows.input_names;
-  short_of.inputs.resize(rows.inputs.size());
+  short_of.set_inputs(rows.input_names);
   at = 0;
   const std::span<const std::byte> cut(bytes.data(), bytes.size() - 1);
   EXPECT_FALSE(take_row_bytes(cut, at, 100, short_of));
