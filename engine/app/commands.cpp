@@ -5,8 +5,14 @@
 #include <optional>
 #include <sstream>
 
+#include <fcntl.h>
 #include <tbb/global_control.h>
 #include <unistd.h>
+
+#include <array>
+#include <cerrno>
+#include <charconv>
+#include <cstring>
 
 #include <atomic>
 #include <csignal>
@@ -65,10 +71,21 @@ struct RunArguments {
   bool resume = false;
 };
 
-// Set by SIGINT and SIGTERM while a study runs (a lock-free atomic store is safe in a handler).
+// Set by SIGINT, SIGTERM and SIGHUP while a study runs (a lock-free atomic exchange is safe in a
+// handler). The first signal stops the run cleanly, keeping every finished sample; a second one
+// ends the process at once, removing the temporary results file (whose name is kept in a fixed
+// buffer, as a handler may only read memory) and leaving the checkpoint, whose records are each
+// on disk before the next is begun (a torn last one is cut off on --resume).
 std::atomic<bool> stop_requested{false};
+char temporary_results_file[4096] = "";
 extern "C" void request_stop(int) {
-  stop_requested.store(true);
+  if (!stop_requested.exchange(true)) return;
+  if (temporary_results_file[0] != '\0') ::unlink(temporary_results_file);
+  static const char text[] =
+      "\nstrewn: stopped at once by a second signal; the checkpoint keeps the samples written to "
+      "it: run the same command with --resume to go on\n";
+  [[maybe_unused]] const ssize_t ignored = ::write(STDERR_FILENO, text, sizeof text - 1);
+  ::_exit(kExitInterrupted);
 }
 
 // Installs the handlers for the life of a run and restores the previous ones after.
@@ -76,23 +93,69 @@ class StopOnSignals {
  public:
   StopOnSignals() {
     stop_requested = false;
+    temporary_results_file[0] = '\0';
     struct sigaction action {};
     action.sa_handler = request_stop;
     sigemptyset(&action.sa_mask);
-    sigaction(SIGINT, &action, &old_int_);
-    sigaction(SIGTERM, &action, &old_term_);
+    for (std::size_t k = 0; k < kSignals.size(); ++k) sigaction(kSignals[k], &action, &old_[k]);
   }
   ~StopOnSignals() {
-    sigaction(SIGINT, &old_int_, nullptr);
-    sigaction(SIGTERM, &old_term_, nullptr);
+    for (std::size_t k = 0; k < kSignals.size(); ++k) sigaction(kSignals[k], &old_[k], nullptr);
+    temporary_results_file[0] = '\0';
   }
   StopOnSignals(const StopOnSignals&) = delete;
   StopOnSignals& operator=(const StopOnSignals&) = delete;
+  /// The file a second signal removes.
+  static void remove_on_second_signal(const std::string& path) {
+    const std::size_t n = std::min(path.size(), sizeof temporary_results_file - 1);
+    std::memcpy(temporary_results_file, path.data(), n);
+    temporary_results_file[n] = '\0';
+  }
 
  private:
-  struct sigaction old_int_ {
-  }, old_term_{};
+  static constexpr std::array<int, 3> kSignals{SIGINT, SIGTERM, SIGHUP};
+  std::array<struct sigaction, 3> old_{};
 };
+
+// Makes the folder of an output file (and its parents) when it is missing (with `make`; without,
+// as `check` does, only finds that it could be made), and checks that a file can be made there,
+// before any flight: a destination that cannot be written is refused with status 2, nothing
+// having run. `origin` says where the path came from.
+void prepare_output(const std::string& path, const std::string& origin, bool make) {
+  namespace fs = std::filesystem;
+  fs::path folder = fs::path(path).parent_path();
+  std::error_code ec;
+  if (fs::is_directory(path, ec))
+    throw UsageError(origin + path + ": is a folder; name the results file itself");
+  if (folder.empty()) folder = ".";
+  fs::path existing = folder;  // the folder, or the nearest of its parents that exists
+  while (!fs::exists(existing, ec)) {
+    if (!existing.has_parent_path() || existing.parent_path() == existing) {
+      existing = ".";  // a relative path's first part: the working directory holds it
+      break;
+    }
+    existing = existing.parent_path();
+  }
+  if (!fs::is_directory(existing, ec))
+    throw UsageError(origin + path + ": cannot make the folder " + folder.string() + " (" +
+                     existing.string() + " is a file, not a folder)");
+  if (make && existing != folder) {
+    fs::create_directories(folder, ec);
+    if (ec || !fs::is_directory(folder))
+      throw UsageError(origin + path + ": cannot make the folder " + folder.string() + " (" +
+                       (ec ? ec.message() : std::string("a file is in the way")) + ")");
+    existing = folder;
+  }
+  // A file made and removed again: the one sure test that the folder takes new files.
+  const std::string probe =
+      (existing / (fs::path(temporary_path_of(path)).filename().string() + ".probe")).string();
+  const int fd = ::open(probe.c_str(), O_WRONLY | O_CREAT | O_EXCL, 0644);
+  if (fd < 0)
+    throw UsageError(origin + path + ": cannot write in " + existing.string() + " (" +
+                     std::strerror(errno) + ")");
+  ::close(fd);
+  ::unlink(probe.c_str());
+}
 
 // The results file: -o, else the scenario's [output] file, else results/<scenario name>.h5.
 std::string output_path(const RunArguments& a, const Scenario& s) {
@@ -101,14 +164,22 @@ std::string output_path(const RunArguments& a, const Scenario& s) {
   return "results/" + std::filesystem::path(a.scenario).stem().string() + ".h5";
 }
 
+// Where the results file's path came from, for messages: the scenario's [output] file (its file,
+// line and key), or the command line (nothing to add).
+std::string output_origin(const RunArguments& a, const Scenario& s) {
+  return !a.output.empty() || s.output.file.empty()
+             ? ""
+             : s.path + ":" + std::to_string(s.output.file_line) + ": output.file: ";
+}
+
 // Refuses a study whose rows and statistics would not fit in this machine's memory, saying how
 // much they would take (ranks 0 and 1 hold every row, so more ranks do not help).
 void check_memory(const Scenario& s, const SampleModel& model) {
   const auto samples = static_cast<double>(
       s.study.target_width ? std::max(s.study.max_samples, s.study.samples) : s.study.samples);
-  // Per row: the columns (44 B and 8 B per sampled input) and the statistics' working arrays
-  // (about 100 B at their peak, docs/cluster.md).
-  const double per_row = 44.0 + 8.0 * static_cast<double>(model.sampler().dimensions()) + 100.0;
+  // Per row: the columns (65 B, and 8 B per sampled input or recorded choice) and the
+  // statistics' working arrays (about 100 B at their peak, docs/cluster.md).
+  const double per_row = 65.0 + 8.0 * static_cast<double>(model.column_names().size()) + 100.0;
   const double need = samples * static_cast<double>(model.bodies()) * per_row;
   const double have = static_cast<double>(::sysconf(_SC_PHYS_PAGES)) *
                       static_cast<double>(::sysconf(_SC_PAGE_SIZE));
@@ -138,9 +209,11 @@ int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& ou
   for (std::size_t b = 0; b < model.bodies(); ++b) {
     TrajectoryRecorder recorder;
     const ReplayedRow row = replay_row(model, *a.sample, b, &recorder, 0.0);
-    nlohmann::json inputs;
+    const std::vector<std::string> names = model.column_names();
+    nlohmann::json inputs = nlohmann::json::object(), choices = nlohmann::json::object();
     for (std::size_t d = 0; d < row.values.size(); ++d)
-      inputs[model.sampler().inputs()[d].name] = row.values[d];
+      (d < model.sampler().dimensions() ? inputs : choices)[names[d]] = row.values[d];
+
     nlohmann::json points = nlohmann::json::array();
     for (const auto& p : recorder.points())
       points.push_back(
@@ -158,6 +231,8 @@ int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& ou
                              {"energy", r.energy},
                              {"angle", r.angle}}},
                            {"inputs", inputs},
+                           {"choices", choices},
+                           {"warnings", flight_warnings(r, row.limits, s.study.tolerance)},
                            {"trajectory_columns", {"time", "east", "north", "altitude"}},
                            {"trajectory", points}});
   }
@@ -182,15 +257,10 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   if (a.sample) return job.leader() ? run_replay(a, model, out) : kExitDone;
 
   const std::string path = output_path(a, scenario);
-  // Where the path came from, for messages: the scenario's [output] file, or the command line.
-  const std::string origin =
-      !a.output.empty() || scenario.output.file.empty()
-          ? ""
-          : scenario.path + ":" + std::to_string(scenario.output.file_line) + ": output.file: ";
-  // Refuse an unwritable destination before any flight.
-  const auto folder = std::filesystem::path(path).parent_path();
-  if (!folder.empty() && !std::filesystem::is_directory(folder))
-    throw IoError(origin + path + ": the folder " + folder.string() + " does not exist");
+  const std::string origin = output_origin(a, scenario);
+  // Refuse an unwritable destination before any flight (a missing folder is made).
+  if (job.leader()) prepare_output(path, origin, true);
+  if (signals) StopOnSignals::remove_on_second_signal(temporary_path_of(path));
   const auto start_wall = std::chrono::steady_clock::now();
   check_memory(scenario, model);
 
@@ -231,8 +301,9 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   }
   if (run.result.interrupted) {
     if (show) err << "\n";
-    err << "interrupted: " << run.result.samples << " of " << samples << " samples are kept in "
-        << path << ".checkpoint; no results file was written. Run the "
+    err << "interrupted: " << run.result.finished << " of " << samples
+        << " samples are finished and kept in " << path
+        << ".checkpoint; no results file was written. Run the "
         << "same command with --resume to go on.\n";
     return kExitInterrupted;
   }
@@ -269,6 +340,7 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
 
 struct ReportArguments {
   std::string results;
+  std::optional<std::uint64_t> sweep_case;
   bool json = false;
   std::string geojson, svg, html, csv;
   bool impacts = false;
@@ -276,7 +348,7 @@ struct ReportArguments {
 
 int run_report(const ReportArguments& a, std::ostream& out) {
   const bool need_samples = !a.geojson.empty() && a.impacts;
-  ResultsFile file = read_results(a.results, need_samples);
+  ResultsFile file = read_results(a.results, need_samples, a.sweep_case);
   if (need_samples && !file.has_samples)
     throw UsageError(a.results +
                      ": --impacts needs the per-sample table, which this study did "
@@ -284,18 +356,54 @@ int run_report(const ReportArguments& a, std::ostream& out) {
   const StudyRecord& record = file.record;
   if (!a.geojson.empty())
     write_report_file(a.geojson, geojson_text(record, need_samples ? &file.columns : nullptr));
-  if (!a.svg.empty()) write_report_file(a.svg, map_svg(record));
-  if (!a.html.empty()) write_report_file(a.html, html_report(record));
-  if (!a.csv.empty()) write_report_file(a.csv, figures_csv(record));
-  const bool files = !a.geojson.empty() || !a.svg.empty() || !a.html.empty() || !a.csv.empty();
+  std::vector<std::string> written;
+  if (!a.geojson.empty()) written.push_back(a.geojson);
+  if (!a.svg.empty()) {
+    write_report_file(a.svg, map_svg(record));
+    written.push_back(a.svg);
+    // With several bodies, a map of each beside the map of all: <name>-<body>.svg.
+    const auto& groups = record.footprint.groups;
+    if (groups.size() > 2) {
+      const std::filesystem::path svg(a.svg);
+      for (std::size_t b = 0; b + 1 < groups.size(); ++b) {
+        const std::string path =
+            (svg.parent_path() / (svg.stem().string() + "-" + groups[b].name + ".svg")).string();
+        write_report_file(path, map_svg(record, groups[b].name));
+        written.push_back(path);
+      }
+    }
+  }
+  if (!a.html.empty()) {
+    write_report_file(a.html, html_report(record));
+    written.push_back(a.html);
+  }
+  if (!a.csv.empty()) {
+    write_report_file(a.csv, figures_csv(record));
+    written.push_back(a.csv);
+  }
   if (a.json)
     out << record_json(record, true).dump(2) << '\n';
-  else if (!files)
+  else if (written.empty())
     write_record_text(out, record);
   else
-    for (const std::string* f : {&a.geojson, &a.svg, &a.html, &a.csv})
-      if (!f->empty()) out << "wrote " << *f << '\n';
+    for (const std::string& f : written) out << "wrote " << f << '\n';
   return kExitDone;
+}
+
+// A whole number of at least `least`, refused in plain words (CLI11's own range checks print the
+// largest double, 309 digits).
+CLI::Validator whole_number(std::uint64_t least) {
+  return CLI::Validator(
+      [least](std::string& text) -> std::string {
+        std::uint64_t value = 0;
+        const char* end = text.data() + text.size();
+        const auto [stop, error] = std::from_chars(text.data(), end, value);
+        if (error != std::errc() || stop != end || value < least)
+          return "expected a whole number of at least " + std::to_string(least) + ", got \"" +
+                 text + "\"";
+        return "";
+      },
+      least == 0 ? "WHOLE NUMBER" : "WHOLE NUMBER >= " + std::to_string(least));
 }
 
 }  // namespace
@@ -333,13 +441,16 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       "run", "Run the Monte Carlo study of a scenario into an HDF5 results file");
   run_cmd->add_option("SCENARIO", run.scenario, "Scenario file (TOML)")->required();
   run_cmd->add_option("-n", run.samples, "Samples (default: study.samples)")
-      ->check(CLI::PositiveNumber);
-  run_cmd->add_option("--seed", run.seed, "Random seed (default: study.seed)");
-  run_cmd->add_option("-j", run.threads, "Threads (default: all)")->check(CLI::PositiveNumber);
+      ->check(whole_number(1));
+  run_cmd->add_option("--seed", run.seed, "Random seed (default: study.seed)")
+      ->check(whole_number(0));
+  run_cmd->add_option("-j", run.threads, "Threads (default: all)")->check(whole_number(1));
   run_cmd->add_option("-o", run.output,
                       "Results file (default: output.file, else results/<scenario>.h5)");
-  run_cmd->add_option("--sample", run.sample,
-                      "Replay this one sample with its trajectory (writes nothing)");
+  run_cmd
+      ->add_option("--sample", run.sample,
+                   "Replay this one sample with its trajectory (writes nothing)")
+      ->check(whole_number(0));
   run_cmd->add_flag("--quiet", run.quiet, "No progress line");
   run_cmd->add_flag("--json", run.json, "Print the summary as JSON");
   run_cmd->add_flag("--resume", run.resume,
@@ -355,9 +466,9 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       "sweep", "Run every case of a parameter sweep (a complete study each) into one results file");
   sweep_cmd->add_option("SWEEP", sweep_file, "Sweep file (TOML)")->required();
   sweep_cmd->add_option("-n", sweep_samples, "Samples per case (default: the base scenario's)")
-      ->check(CLI::PositiveNumber);
+      ->check(whole_number(1));
   sweep_cmd->add_option("-j", sweep.threads, "Threads per rank (default: all)")
-      ->check(CLI::PositiveNumber);
+      ->check(whole_number(1));
   sweep_cmd->add_option("-o", sweep.output,
                         "Results file (default: the sweep's output, else results/<sweep>.h5)");
   sweep_cmd->add_flag(
@@ -370,6 +481,10 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       "report", "Show a results file's footprint: summary, JSON, GeoJSON, CSV, SVG map, HTML page");
   report_cmd->add_option("RESULTS", report.results, "Results file (HDF5) written by run")
       ->required();
+  report_cmd
+      ->add_option("--case", report.sweep_case,
+                   "Of a sweep's file: the case to show (0, 1, ...; see its summary CSV)")
+      ->check(whole_number(0));
   report_cmd->add_flag("--json", report.json, "Print the summary as JSON");
   report_cmd->add_option("--geojson", report.geojson,
                          "Write the footprint as GeoJSON (needs site.latitude and longitude)");
@@ -397,8 +512,12 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
     // Help and --version are "errors" with exit code 0 that print to `out`.
-    const int code = app.exit(e, out, err);
-    return code == 0 ? kExitDone : kExitInvalid;
+    if (e.get_exit_code() == 0) {
+      app.exit(e, out, err);
+      return kExitDone;
+    }
+    err << "error: " << e.what() << "\n(--help lists the commands and their options)\n";
+    return kExitInvalid;
   }
 
   try {
@@ -418,6 +537,10 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       const Scenario scenario = load_scenario(check_scenario);
       const SampleModel model(scenario, build_world(scenario), 1);  // correlations hold together
       check_memory(scenario, model);
+      // The results file `run` would write: its folder must be one that can be made and written.
+      RunArguments as_run;
+      as_run.scenario = check_scenario;
+      prepare_output(output_path(as_run, scenario), output_origin(as_run, scenario), false);
       if (check_json)
         out << scenario_json(scenario).dump(2) << '\n';
       else

@@ -47,10 +47,11 @@ void send_rows(const Job& job, int to, const StudyColumns& c) {
 // Receives `rows` rows from `from` (every message, before anything else is done with them, so the
 // sender is not held up) as a part of a study.
 StudyResult receive_rows(const Job& job, int from, std::uint64_t rows,
-                         const std::vector<std::string>& input_names, std::size_t bodies) {
+                         const std::vector<std::string>& input_names, std::size_t choices,
+                         std::size_t bodies) {
   StudyResult piece;
   piece.bodies = bodies;
-  piece.columns.set_inputs(input_names);
+  piece.columns.set_inputs(input_names, choices);
   for (std::uint64_t received = 0; received < rows;)
     received += unpack(job.receive(from, kRowsTag), piece.columns);
   piece.samples = rows / bodies;
@@ -73,10 +74,10 @@ StudyRun run_on_ranks(const Job& job, const SampleModel& model, const World& wor
   if (job.size() == 1) return run_and_write(model, world, options, path, threads, keep_samples);
   const Scenario& s = model.scenario();
   const std::size_t bodies = model.bodies();
-  std::vector<std::string> names;
-  for (const auto& input : model.sampler().inputs()) names.push_back(input.name);
+  const std::vector<std::string> names = model.column_names();
+  const std::size_t choices = model.choice_names().size();
   std::optional<ResultsWriter> writer;
-  if (job.leader()) writer.emplace(path, s, names, options.samples * bodies, keep_samples);
+  if (job.leader()) writer.emplace(path, s, names, choices, options.samples * bodies, keep_samples);
   constexpr int kStatistics = 1;
 
   StudyRun run;  // rank 0: the rows in the file; rank 1: the rows for the statistics
@@ -103,7 +104,7 @@ StudyRun run_on_ranks(const Job& job, const SampleModel& model, const World& wor
                   kRowsTag);
       append_rows(run.result, std::move(mine));
       for (int from = 1; from < job.size(); ++from) {
-        StudyResult piece = receive_rows(job, from, rows_of(from), names, bodies);
+        StudyResult piece = receive_rows(job, from, rows_of(from), names, choices, bodies);
         if (from == kStatistics) sends.finish();
         writer->write(piece.columns, 0, piece.columns.rows());
         append_rows(run.result, std::move(piece));
@@ -120,11 +121,11 @@ StudyRun run_on_ranks(const Job& job, const SampleModel& model, const World& wor
         sends.add(job, 0,
                   pack(mine.columns, first, std::min(mine.columns.rows(), first + kRowsPerMessage)),
                   kRowsTag);
-      append_rows(run.result, receive_rows(job, 0, rows_of(0), names, bodies));
+      append_rows(run.result, receive_rows(job, 0, rows_of(0), names, choices, bodies));
       sends.finish();
       append_rows(run.result, std::move(mine));
       for (int from = 2; from < job.size(); ++from)
-        append_rows(run.result, receive_rows(job, from, rows_of(from), names, bodies));
+        append_rows(run.result, receive_rows(job, from, rows_of(from), names, choices, bodies));
       FootprintSettings settings = footprint_settings(s, world, run.result.samples);
       settings.sections = kPlaceAndSpread;
       StudyRecord partial;
@@ -148,7 +149,7 @@ StudyRun run_on_ranks(const Job& job, const SampleModel& model, const World& wor
     total = next;
   }
   if (!job.leader()) return {};
-  run.record = make_record(s, run.result, std::move(footprint), s.study.seed, threads);
+  run.record = make_record(s, world, run.result, std::move(footprint), s.study.seed, threads);
   run.record.rounds = rounds;
   run.record.ranks = job.size();
   writer->finish(run.record);

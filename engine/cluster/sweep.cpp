@@ -8,6 +8,7 @@
 #include <cmath>
 #include <filesystem>
 #include <fstream>
+#include <functional>
 #include <iomanip>
 #include <iostream>
 #include <mutex>
@@ -60,45 +61,133 @@ const char* node_kind(const toml::node& n) {
   return "not a number";
 }
 
-// Where an axis key lands in the base scenario: the table that holds (or will hold) its last
-// part. Bodies are named by their `name` (or "body" when the only body has none). Returns null
-// with a message when the path cannot be placed.
-toml::table* place(toml::table& root, const std::vector<std::string>& parts, std::string& problem) {
-  toml::table* at = &root;
+// One step of a key path: a table's key, or an array's index ("layers[2]" is two steps).
+struct KeyStep {
+  std::string name;  // empty for an index
+  std::size_t index = 0;
+};
+
+// "wind.layers[2].speed" -> wind, layers, [2], speed; "box.drag.mach_table[3][1]" likewise.
+// Empty when the path is malformed (an empty part, an unclosed or non-numeric index).
+std::vector<KeyStep> split_key(const std::string& key) {
+  std::vector<KeyStep> steps;
+  std::string part;
+  std::istringstream in(key);
+  while (std::getline(in, part, '.')) {
+    const std::size_t bracket = part.find('[');
+    const std::string name = part.substr(0, bracket);
+    if (name.empty()) return {};
+    steps.push_back({name, 0});
+    for (std::size_t at = bracket; at != std::string::npos;) {
+      const std::size_t close = part.find(']', at);
+      if (close == std::string::npos || close == at + 1) return {};
+      const std::string digits = part.substr(at + 1, close - at - 1);
+      if (digits.find_first_not_of("0123456789") != std::string::npos || digits.size() > 9)
+        return {};
+      steps.push_back({"", static_cast<std::size_t>(std::stoul(digits))});
+      at = close + 1 == part.size() ? std::string::npos : close + 1;
+      if (at != std::string::npos && part[at] != '[') return {};
+    }
+  }
+  return steps;
+}
+
+// Where an axis key lands in the base scenario: the node that holds (or will hold) its value.
+// Bodies are named by their `name` (or "body" when the only body has none); tables on the way
+// that the scenario leaves out are made; an index must name an element that exists. Returns a
+// setter of the value, or an empty one with a message when the path cannot be placed.
+using Place = std::function<void(double value, bool integer)>;
+Place place(toml::table& root, const std::string& key, std::string& problem,
+            const toml::node** existing = nullptr) {
+  const std::vector<KeyStep> steps = split_key(key);
+  if (steps.empty()) {
+    problem = "is not a key path (parts separated by dots, array elements as [index])";
+    return {};
+  }
+  toml::node* at = &root;
   std::size_t i = 0;
-  if (auto* bodies = root["body"].as_array(); bodies && !parts.empty()) {
+  if (auto* bodies = root["body"].as_array(); bodies && !steps[0].name.empty()) {
     for (auto& b : *bodies) {
       auto* body = b.as_table();
       if (!body) continue;
       const auto name = (*body)["name"].value<std::string>();
-      if ((name && *name == parts[0]) || (!name && bodies->size() == 1 && parts[0] == "body")) {
+      if ((name && *name == steps[0].name) ||
+          (!name && bodies->size() == 1 && steps[0].name == "body")) {
         at = body;
         i = 1;
         break;
       }
     }
   }
-  for (; i + 1 < parts.size(); ++i) {
-    toml::node* next = at->get(parts[i]);
-    if (!next) {
-      at = at->insert_or_assign(parts[i], toml::table{}).first->second.as_table();
-      continue;
+  std::string walked = i == 1 ? steps[0].name : "";
+  auto describe = [&] { return walked.empty() ? std::string("the scenario") : walked; };
+  for (; i + 1 < steps.size(); ++i) {
+    const KeyStep& step = steps[i];
+    toml::node* next = nullptr;
+    if (!step.name.empty()) {
+      toml::table* table = at->as_table();
+      if (!table) {
+        problem = describe() + " is " + node_kind(*at) + ", not a table";
+        return {};
+      }
+      next = table->get(step.name);
+      if (!next) {
+        if (!steps[i + 1].name.empty())
+          next = &table->insert_or_assign(step.name, toml::table{}).first->second;
+        else {
+          problem = walked + (walked.empty() ? "" : ".") + step.name + " is not in the scenario";
+          return {};
+        }
+      }
+      walked += (walked.empty() ? "" : ".") + step.name;
+    } else {
+      toml::array* array = at->as_array();
+      if (!array) {
+        problem = describe() + " is " + node_kind(*at) + ", not a list";
+        return {};
+      }
+      if (step.index >= array->size()) {
+        problem = describe() + " has " + std::to_string(array->size()) +
+                  " elements, counted from 0; there is no [" + std::to_string(step.index) + "]";
+        return {};
+      }
+      next = array->get(step.index);
+      walked += "[" + std::to_string(step.index) + "]";
     }
-    if (!next->is_table()) {
-      problem = parts[i] + " is " + node_kind(*next) + ", not a table";
-      return nullptr;
-    }
-    at = next->as_table();
+    at = next;
   }
-  return at;
-}
-
-std::vector<std::string> split_key(const std::string& key) {
-  std::vector<std::string> parts;
-  std::string part;
-  std::istringstream in(key);
-  while (std::getline(in, part, '.')) parts.push_back(part);
-  return parts;
+  const KeyStep& last = steps.back();
+  if (!last.name.empty()) {
+    toml::table* table = at->as_table();
+    if (!table) {
+      problem = describe() + " is " + node_kind(*at) + ", not a table";
+      return {};
+    }
+    if (existing) *existing = table->get(last.name);
+    return [table, name = last.name](double v, bool integer) {
+      if (integer)
+        table->insert_or_assign(name, static_cast<std::int64_t>(v));
+      else
+        table->insert_or_assign(name, v);
+    };
+  }
+  toml::array* array = at->as_array();
+  if (!array) {
+    problem = describe() + " is " + node_kind(*at) + ", not a list";
+    return {};
+  }
+  if (last.index >= array->size()) {
+    problem = describe() + " has " + std::to_string(array->size()) +
+              " elements, counted from 0; there is no [" + std::to_string(last.index) + "]";
+    return {};
+  }
+  if (existing) *existing = array->get(last.index);
+  return [array, index = last.index](double v, bool integer) {
+    if (integer)
+      array->replace(array->cbegin() + static_cast<long>(index), static_cast<std::int64_t>(v));
+    else
+      array->replace(array->cbegin() + static_cast<long>(index), v);
+  };
 }
 
 std::string format_value(double v) {
@@ -190,12 +279,11 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
       if (!base_text.empty()) {
         toml::table probe = base_table;
         std::string problem;
-        const auto parts = split_key(a.key);
-        toml::table* holder = parts.empty() ? nullptr : place(probe, parts, problem);
-        if (!holder) {
+        const toml::node* existing = nullptr;
+        if (!place(probe, a.key, problem, &existing)) {
           d.add(axis.key_path("key"), axis.line_of("key"),
                 a.key + " is not a key of the scenario" + (problem.empty() ? "" : ": " + problem));
-        } else if (const toml::node* existing = holder->get(parts.back())) {
+        } else if (existing) {
           if (existing->is_table())
             d.add(axis.key_path("key"), axis.line_of("key"),
                   a.key + " is a distribution in " + *base +
@@ -245,15 +333,11 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
     toml::table t = base_table;
     for (std::size_t a = 0; a < plan.axes.size(); ++a) {
       std::string problem;
-      const auto parts = split_key(plan.axes[a].key);
-      toml::table* holder = place(t, parts, problem);
+      const toml::node* existing = nullptr;
+      const Place set = place(t, plan.axes[a].key, problem, &existing);
       const double v = combos[index][a];
-      const toml::node* existing = holder->get(parts.back());
-      if ((plan.axes[a].integers || (existing && existing->is_integer())) && v == std::floor(v) &&
-          std::abs(v) < 9e18)
-        holder->insert_or_assign(parts.back(), static_cast<std::int64_t>(v));
-      else
-        holder->insert_or_assign(parts.back(), v);
+      set(v, (plan.axes[a].integers || (existing && existing->is_integer())) &&
+                 v == std::floor(v) && std::abs(v) < 9e18);
     }
     if (samples_override > 0) {
       if (!t["study"].is_table()) t.insert_or_assign("study", toml::table{});

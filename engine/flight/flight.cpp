@@ -5,6 +5,7 @@
 #include <span>
 
 #include "flight/dormand_prince.hpp"
+#include "medium/us1976.hpp"
 
 namespace strewn {
 
@@ -86,7 +87,8 @@ class FlightRun {
         options_(options),
         observer_(observer),
         forces_(body, environment),
-        kinks_(environment.wind->kinks()) {
+        kinks_(environment.wind->kinks()),
+        limits_(model_limits(body, environment)) {
     if (body.drag.mach_table) mach_kinks_ = body.drag.mach_table->mach();
   }
 
@@ -103,6 +105,63 @@ class FlightRun {
   }
   [[nodiscard]] bool quasi_steady_eligible(double z) const;
   [[nodiscard]] double remaining_time_estimate(double z) const;
+
+  // The model-range watch (model_range.hpp) at a point of the flight: the highest altitude, and
+  // the Reynolds and Mach numbers of the body's own drag law where its drag is at least
+  // kDragShareWatched of the weight, while that law acts (not under an open canopy). The air
+  // speed lies within the body's speed plus or minus the strongest wind, so a point whose speed
+  // keeps it inside the screen (set_screen) is in range without any look-up.
+  void watch(const FlightState& y) {
+    const double z = y[2];
+    RegimeExtent& r = result_.regime;
+    if (z > r.altitude_max) {
+      r.altitude_max = z;
+      if (z > screen_top_) set_screen(z);
+    }
+    if (forces_.stage() == DragStage::canopy) return;
+    const double v2 = y[3] * y[3] + y[4] * y[4] + y[5] * y[5];
+    if (v2 >= screen_low_ * screen_low_ && v2 <= screen_high_ * screen_high_) return;
+    double wind_east, wind_north;
+    forces_.wind().at(z, wind_east, wind_north);
+    judge(z, Vec3(y[3] - wind_east, y[4] - wind_north, y[5]).norm());
+  }
+  // The quasi-steady form: the body settles at its terminal speed relative to the air.
+  void watch(const PositionState& y) {
+    RegimeExtent& r = result_.regime;
+    if (y[2] > r.altitude_max) r.altitude_max = y[2];
+    judge(y[2], forces_.terminal_speed(y[2]));
+  }
+  // The exact check of the drag law at air speed `speed` at altitude z.
+  void judge(double z, double speed) {
+    if (!(speed > 0.0)) return;
+    const Air air = forces_.medium().air(z, forces_.conditions());
+    const DragLaw& law = forces_.drag();
+    if (!(law.coefficient(speed, air) * speed >= judged_drag_)) return;
+    RegimeExtent& r = result_.regime;
+    const double re = air.density * speed * law.length() / air.viscosity;
+    if (re > limits_.reynolds_max) {
+      r.flags |= kReynoldsAboveLaw;
+      if (!(re <= r.reynolds_beyond)) r.reynolds_beyond = re;  // NaN-safe maximum
+    } else if (re < limits_.reynolds_min) {
+      r.flags |= kReynoldsBelowLaw;
+      if (!(re >= r.reynolds_beyond)) r.reynolds_beyond = re;  // NaN-safe minimum
+    }
+    const double mach = std::isfinite(air.sound_speed) ? speed / air.sound_speed : 0.0;
+    if (mach > limits_.mach_max) {
+      r.flags |= limits_.mach_table ? kMachBeyondTable : kMachWithoutTable;
+      if (!(mach <= r.mach_beyond)) r.mach_beyond = mach;
+    }
+  }
+  // The screen from altitude `top` down to the ground: the body's speeds between which its air
+  // speed cannot leave the drag law's Reynolds range nor pass the Mach limit. The kinematic
+  // viscosity mu / rho lies between the coldest viscosity over the ground's density and the
+  // warmest over the density at `top` (the density falls with height), the speed of sound above
+  // the coldest one's, and the air speed within the body's speed plus or minus the strongest
+  // wind. Set again, higher, if the flight climbs above `top`.
+  void set_screen(double top);
+  // The flags of the altitudes, and for a landed flight the estimates of what the flat,
+  // non-rotating frame leaves out (model_range.hpp).
+  void close_regime(const Vec3& release);
 
   // When the last step crossed a kink of the forces (a wind-profile layer altitude, or a Mach
   // number where the Mach table's slope changes), rewinds it and sets kink_stop_ so that the step
@@ -217,6 +276,11 @@ class FlightRun {
   Forces forces_;
   std::span<const double> kinks_;
   std::span<const double> mach_kinks_;
+  ModelLimits limits_;
+  double judged_drag_ = 0.0;  // N: the drag law is judged where its drag reaches this
+  // The screen of watch(): speeds (m/s) within which a point is in range, and the altitude up to
+  // which they hold.
+  double screen_low_ = 0.0, screen_high_ = 0.0, screen_top_ = 0.0;
   double kink_stop_ = std::numeric_limits<double>::infinity();
   FlightResult result_;
   double next_record_ = 0.0;
@@ -317,11 +381,13 @@ FlightRun::Next FlightRun::integrate(Stepper& stepper, State& y, double& t, doub
     if (watch_deploy_height && z <= deploy_level) {
       t = locate_level(stepper, deploy_level);
       y = stepper.dense(t);
+      watch(y);
       return Next::stage_change;
     }
     if (z <= ground_) {
       t = locate_level(stepper, ground_);
       y = stepper.dense(t);
+      watch(y);
       finish_landing(t, y.template head<3>(), velocity_of(y, ground_));
       return Next::ground;
     }
@@ -331,9 +397,11 @@ FlightRun::Next FlightRun::integrate(Stepper& stepper, State& y, double& t, doub
         !std::isnan(landing)) {
       t = landing;
       y = stepper.dense(t);
+      watch(y);
       finish_landing(t, y.template head<3>(), velocity_of(y, ground_));
       return Next::ground;
     }
+    if constexpr (!kQuasi) watch(stepper.y());  // a settling fall: judged at its ends only
     if (observer_ && options_.record_interval <= 0.0)
       record(stepper.t(), stepper.y().template head<3>(), velocity_of(stepper.y(), z), kQuasi);
     if (stepper.t() >= t_stop) {
@@ -406,6 +474,9 @@ FlightResult FlightRun::run(const ReleaseState& release) {
     }
   };
   forces_.set_stage(DragStage::body);
+  judged_drag_ = kDragShareWatched * body_.mass * forces_.effective_gravity(ground_);
+  set_screen(y[2]);
+  watch(y);
   if (deploy_time == 0.0) enter_deployment(0.0);
 
   while (true) {
@@ -461,7 +532,69 @@ FlightResult FlightRun::run(const ReleaseState& release) {
   } else if (observer_) {
     record(result_.time, result_.position, result_.velocity, result_.quasi_steady);
   }
+  close_regime(release.position);
   return result_;
+}
+
+void FlightRun::set_screen(double top) {
+  screen_top_ = top + 1000.0;  // a margin, so that a climbing flight sets it seldom
+  const Medium& medium = forces_.medium();
+  const MediumConditions& c = forces_.conditions();
+  const double wind = forces_.wind().max_speed();
+  const DragLaw& law = forces_.drag();
+  double mu_low, mu_high, sound_low;
+  if (medium.kind() == Medium::Kind::uniform) {
+    const Air air = medium.air(ground_, c);
+    mu_low = mu_high = air.viscosity;
+    sound_low = air.sound_speed;
+  } else {
+    const double cold = medium.lowest_temperature() + c.temperature_offset;
+    const double warm = medium.highest_temperature() + c.temperature_offset;
+    mu_low = us1976::sutherland_viscosity(cold);
+    mu_high = us1976::sutherland_viscosity(warm);
+    sound_low = us1976::sound_speed(cold);
+  }
+  const double rho_high = medium.density(ground_, c);
+  const double rho_low = medium.density(std::min(screen_top_, medium.top()), c);
+  // Air speeds of the Reynolds limits, and of the Mach limit.
+  const double lowest_air_speed = limits_.reynolds_min * mu_high / (rho_low * law.length());
+  double highest_air_speed = limits_.reynolds_max * mu_low / (rho_high * law.length());
+  if (std::isfinite(sound_low))
+    highest_air_speed = std::min(highest_air_speed, limits_.mach_max * sound_low);
+  // Anything not finite (no limit at all) leaves the screen wide open on that side; a NaN closes
+  // it, so every point is then judged exactly.
+  screen_low_ = limits_.reynolds_min > 0.0 ? lowest_air_speed + wind : 0.0;
+  screen_high_ = highest_air_speed - wind;
+  if (!(screen_low_ >= 0.0)) screen_low_ = std::numeric_limits<double>::infinity();
+  if (!(screen_high_ >= 0.0)) screen_high_ = 0.0;
+}
+
+void FlightRun::close_regime(const Vec3& release) {
+  RegimeExtent& r = result_.regime;
+  if (r.altitude_max > limits_.medium_top) r.flags |= kAboveMedium;
+  if (r.altitude_max > limits_.wind_top) r.flags |= kAboveWind;
+  if (result_.time > kLongFlightTime) r.flags |= kLongFlight;
+  if (result_.status != FlightStatus::landed) return;
+  // Curvature: R^2 / (2 r0 tan(theta)), tan(theta) = vertical over horizontal impact speed (kept
+  // above 1e-3 so that a grazing impact gives a large but finite figure).
+  const double range = (result_.position.head<2>() - release.head<2>()).norm();
+  const double horizontal = result_.velocity.head<2>().norm();
+  const double vertical = std::max(-result_.velocity.z(), 1e-3 * horizontal);
+  result_.curvature_offset =
+      horizontal > 0.0 ? range * range / (2.0 * constants::earth_radius) * horizontal / vertical
+                       : 0.0;
+  // Gravity toward the Earth's centre leans back toward the origin by x / r0 at a range x <= R:
+  // a drag-bound body drifts by at most g tau R T / r0, a ballistic one by g R T^2 / (2 r0).
+  const double time = result_.time, tau_fall = result_.speed / constants::g0;
+  result_.curvature_offset +=
+      constants::g0 * range * time * std::min(tau_fall, 0.5 * time) / constants::earth_radius;
+  // Earth's rotation: 2 Omega L min(tau, T / 2), tau = impact speed / g0.
+  const double path = range + std::max(release.z() - ground_, 0.0) +
+                      2.0 * std::max(r.altitude_max - release.z(), 0.0);
+  const double tau = result_.speed / constants::g0;
+  result_.rotation_offset = 2.0 * kEarthRotationRate * path * std::min(tau, 0.5 * result_.time);
+  if (std::max(result_.curvature_offset, result_.rotation_offset) > options_.tolerance)
+    r.flags |= kFrameOffset;
 }
 
 }  // namespace

@@ -27,6 +27,7 @@
 
 #include "flight/body.hpp"
 #include "flight/forces.hpp"
+#include "flight/model_range.hpp"
 
 namespace strewn {
 
@@ -69,6 +70,13 @@ struct FlightResult {
   long steps = 0;
   long evaluations = 0;
   bool quasi_steady = false;  ///< the quasi-steady form was used for part of the fall
+  /// The Reynolds and Mach numbers met where the drag law was judged, the highest altitude, and
+  /// where the flight left its models' ranges (model_range.hpp).
+  RegimeExtent regime;
+  /// Landed flights: estimates of what the flat ground (curvature) and the non-rotating frame
+  /// (Earth's rotation) leave out of the impact point, m (model_range.hpp); 0 otherwise.
+  double curvature_offset = 0.0;
+  double rotation_offset = 0.0;
 };
 
 /// One point of a recorded trajectory.

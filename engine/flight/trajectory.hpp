@@ -1,7 +1,8 @@
 #pragma once
 // Trajectory recording and the regime report of one flight (used by `trace`): the points flown and
-// the Reynolds and Mach ranges met, the ratio of quadratic to linear drag, and warnings where the
-// drag model leaves its stated range of validity.
+// the Reynolds and Mach ranges met along them, and the ratio of quadratic to linear drag. Where
+// the flight left its models' ranges is watched by every flight (model_range.hpp), recorded or
+// not.
 #include <string>
 #include <vector>
 
@@ -39,16 +40,9 @@ class TrajectoryRecorder : public FlightObserver {
   [[nodiscard]] const Range& quadratic_to_linear() const { return ratio_; }
   [[nodiscard]] const Range& altitude() const { return altitude_; }
 
-  /// Plain-language warnings where the flight left a model's range (empty when none).
-  [[nodiscard]] std::vector<std::string> warnings(const FlightResult& result) const;
-
  private:
   std::vector<RecordedPoint> points_;
   Range reynolds_, mach_, ratio_, altitude_;
-  // Copied from the flight's forces at the first point, which do not outlive the flight.
-  DragSpec drag_;
-  double medium_bottom_ = 0.0, medium_top_ = 0.0;
-  bool left_medium_ = false;
 };
 
 }  // namespace strewn

@@ -14,6 +14,7 @@
 #include <tbb/parallel_for.h>
 #include <tbb/task_group.h>
 
+#include "footprint/mixture.hpp"
 #include "footprint/ranks.hpp"
 
 namespace strewn {
@@ -148,6 +149,35 @@ ImpactGrid merge_grids(const ImpactGrid& a, const ImpactGrid& b) {
     }
   }
   return m;
+}
+
+// The correlation ratio (Pearson 1903) of each outcome's mid-ranks over the categories of
+// `column`: eta = sqrt(sum_g n_g (mean_g - mean)^2 / sum (r - mean)^2), in [0, 1]; NaN when there
+// are fewer than two categories or an outcome is constant.
+void correlation_ratios(std::span<const double> column,
+                        std::span<const std::span<const double>> outcomes, std::span<double> out) {
+  const std::size_t n = column.size();
+  std::vector<std::uint32_t> order(n);
+  for (std::size_t k = 0; k < n; ++k) order[k] = static_cast<std::uint32_t>(k);
+  std::stable_sort(order.begin(), order.end(),
+                   [&](std::uint32_t a, std::uint32_t b) { return column[a] < column[b]; });
+  for (std::size_t o = 0; o < outcomes.size(); ++o) {
+    const auto& r = outcomes[o];
+    const double mean = 0.5 * (static_cast<double>(n) + 1.0);  // of mid-ranks 1..n
+    double total = 0.0, between = 0.0;
+    std::size_t groups = 0;
+    for (std::size_t a = 0; a < n;) {
+      std::size_t b = a;
+      double sum = 0.0;
+      while (b < n && column[order[b]] == column[order[a]]) sum += r[order[b++]];
+      const double size = static_cast<double>(b - a), group_mean = sum / size;
+      between += size * (group_mean - mean) * (group_mean - mean);
+      ++groups;
+      a = b;
+    }
+    for (std::size_t k = 0; k < n; ++k) total += (r[k] - mean) * (r[k] - mean);
+    out[o] = groups >= 2 && total > 0.0 ? std::sqrt(between / total) : kNaN;
+  }
 }
 
 struct GroupRows {
@@ -394,15 +424,24 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
       RankScratch& scratch = scratches.local();
       std::vector<double> r_input(m), column(m);
       for (std::size_t k = 0; k < m; ++k) column[k] = t.inputs[d][g.landed[k]];
-      mid_ranks(column, r_input, scratch);
       const std::array<std::span<const double>, 4> outputs{r_down, r_cross, r_dist, r_energy};
       std::array<double, 4> rho{};
-      rank_correlations(r_input, outputs, rho);
-      f.sensitivity[d] = {t.input_names[d], rho[0], rho[1], rho[2], rho[3]};
+      const bool categorical = d < t.categorical.size() && t.categorical[d];
+      if (categorical) {
+        correlation_ratios(column, outputs, rho);
+      } else {
+        mid_ranks(column, r_input, scratch);
+        rank_correlations(r_input, outputs, rho);
+      }
+      f.sensitivity[d] = {t.input_names[d], rho[0], rho[1], rho[2], rho[3], categorical};
     });
+    // Strongest first: the input that moves the impact most leads (ties keep the inputs' order).
+    std::stable_sort(f.sensitivity.begin(), f.sensitivity.end(),
+                     [](const auto& a, const auto& b) { return a.strength() > b.strength(); });
   } else {
-    for (const auto& input : t.input_names)
-      f.sensitivity.push_back({input, kNaN, kNaN, kNaN, kNaN});
+    for (std::size_t d = 0; d < t.input_names.size(); ++d)
+      f.sensitivity.push_back(
+          {t.input_names[d], kNaN, kNaN, kNaN, kNaN, d < t.categorical.size() && t.categorical[d]});
   }
   return f;
 }
@@ -424,8 +463,10 @@ std::uint64_t count_above(const ImpactTable& t, const GroupRows& g, double limit
   return above;
 }
 
-RuleCheck judge(std::string rule, std::string group, double threshold, double accepted,
-                std::uint64_t count, std::uint64_t rows, double confidence) {
+// A rule held against a share with its bounds: within, exceeds or undetermined.
+RuleCheck judge_share(std::string rule, std::string group, double threshold, double accepted,
+                      std::uint64_t count, std::uint64_t rows, const MixtureColumn::Share& share,
+                      double confidence, std::uint64_t samples_needed) {
   RuleCheck r;
   r.rule = std::move(rule);
   r.group = std::move(group);
@@ -434,40 +475,279 @@ RuleCheck judge(std::string rule, std::string group, double threshold, double ac
   r.count = count;
   r.rows = rows;
   r.confidence = confidence;
-  r.value = rows ? static_cast<double>(count) / static_cast<double>(rows) : kNaN;
-  r.lower = clopper_pearson_lower(count, rows, confidence);
-  r.upper = clopper_pearson_upper(count, rows, confidence);
+  r.value = share.value;
+  r.lower = share.lower;
+  r.upper = share.upper;
   r.status = r.upper <= accepted  ? RuleStatus::within
              : r.lower > accepted ? RuleStatus::exceeds
                                   : RuleStatus::undetermined;
-  if (r.status == RuleStatus::undetermined) {
-    // The smallest sample count that would decide the rule if the observed share held.
-    const double share = r.value;
-    auto decides = [&](std::uint64_t n) {
-      const auto x = static_cast<std::uint64_t>(std::llround(share * static_cast<double>(n)));
-      return share < accepted ? clopper_pearson_upper(x, n, confidence) <= accepted
-                              : clopper_pearson_lower(x, n, confidence) > accepted;
-    };
-    if (share != accepted && rows > 0) {
-      std::uint64_t high = std::max<std::uint64_t>(rows, 1);
-      while (!decides(high) && high < (std::uint64_t{1} << 40)) high *= 2;
-      if (decides(high)) {
-        std::uint64_t low = rows;
-        while (low < high) {
-          const std::uint64_t mid = low + (high - low) / 2;
-          if (decides(mid))
-            high = mid;
-          else
-            low = mid + 1;
-        }
-        r.samples_needed = high;
-      }
-    }
-  }
+  if (r.status == RuleStatus::undetermined) r.samples_needed = samples_needed;
   return r;
 }
 
+// The same for a count of one body's rows: Clopper-Pearson bounds, and the smallest sample count
+// that would decide the rule if the observed share held.
+RuleCheck judge(std::string rule, std::string group, double threshold, double accepted,
+                std::uint64_t count, std::uint64_t rows, double confidence) {
+  MixtureColumn::Share share;
+  share.value = rows ? static_cast<double>(count) / static_cast<double>(rows) : kNaN;
+  share.lower = clopper_pearson_lower(count, rows, confidence);
+  share.upper = clopper_pearson_upper(count, rows, confidence);
+  std::uint64_t needed = 0;
+  const double value = share.value;
+  auto decides = [&](std::uint64_t n) {
+    const auto x = static_cast<std::uint64_t>(std::llround(value * static_cast<double>(n)));
+    return value < accepted ? clopper_pearson_upper(x, n, confidence) <= accepted
+                            : clopper_pearson_lower(x, n, confidence) > accepted;
+  };
+  if (value != accepted && rows > 0 && !(share.upper <= accepted || share.lower > accepted)) {
+    std::uint64_t high = std::max<std::uint64_t>(rows, 1);
+    while (!decides(high) && high < (std::uint64_t{1} << 40)) high *= 2;
+    if (decides(high)) {
+      std::uint64_t low = rows;
+      while (low < high) {
+        const std::uint64_t mid = low + (high - low) / 2;
+        if (decides(mid))
+          high = mid;
+        else
+          low = mid + 1;
+      }
+      needed = high;
+    }
+  }
+  return judge_share(std::move(rule), std::move(group), threshold, accepted, count, rows, share,
+                     confidence, needed);
+}
+
+// A column of the landed rows of several bodies as a mixture (weights: objects per release).
+template <class Value>
+MixtureColumn mixture_of(const std::vector<GroupRows>& bodies, const FootprintSettings& s,
+                         Value value) {
+  std::vector<std::vector<double>> landed(bodies.size());
+  std::vector<std::uint64_t> failed(bodies.size());
+  for (std::size_t b = 0; b < bodies.size(); ++b) {
+    landed[b].reserve(bodies[b].landed.size());
+    for (std::uint32_t row : bodies[b].landed) landed[b].push_back(value(row));
+    failed[b] = bodies[b].rows - bodies[b].landed.size();
+  }
+  return MixtureColumn(std::move(landed), failed, s.body_counts);
+}
+
+// "all" of several bodies: one object of a release (footprint/mixture.hpp). Its rows are every
+// body's, each weighted by the body's objects per release over the body's rows; estimates are
+// the weighted ones, bounds by Boole's inequality over the bodies; one centre for all bodies.
+GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettings& s,
+                                     const std::vector<GroupRows>& bodies, PlanePoint nominal) {
+  GroupFootprint f;
+  f.name = "all";
+  std::vector<double> row_weight(bodies.size());
+  for (std::size_t b = 0; b < bodies.size(); ++b) {
+    f.objects_per_release += s.body_counts[b];
+    f.rows += bodies[b].rows;
+    f.landed += bodies[b].landed.size();
+    row_weight[b] = bodies[b].rows ? s.body_counts[b] / static_cast<double>(bodies[b].rows) : 0.0;
+  }
+  f.failed = f.rows - f.landed;
+  // Weighted mean and covariance of the landed rows, two passes in row order (the divisor
+  // m / (m - 1) makes equal weights give the sample covariance).
+  double sw = 0.0, se = 0.0, sn = 0.0;
+  for (std::size_t b = 0; b < bodies.size(); ++b)
+    for (std::uint32_t row : bodies[b].landed) {
+      sw += row_weight[b];
+      se += row_weight[b] * t.east[row];
+      sn += row_weight[b] * t.north[row];
+    }
+  f.mean = sw > 0.0 ? PlanePoint{se / sw, sn / sw} : PlanePoint{kNaN, kNaN};
+  double cee = 0.0, cen = 0.0, cnn = 0.0;
+  for (std::size_t b = 0; b < bodies.size(); ++b)
+    for (std::uint32_t row : bodies[b].landed) {
+      const double de = t.east[row] - f.mean.east, dn = t.north[row] - f.mean.north;
+      cee += row_weight[b] * de * de;
+      cen += row_weight[b] * de * dn;
+      cnn += row_weight[b] * dn * dn;
+    }
+  if (f.landed >= 2) {
+    const double scale = static_cast<double>(f.landed) / static_cast<double>(f.landed - 1) / sw;
+    f.covariance = {cee * scale, cen * scale, cnn * scale};
+  }
+  f.centre = s.centre == CentreRule::mean    ? f.mean
+             : s.centre == CentreRule::point ? s.centre_point
+                                             : nominal;
+  const bool place = (s.sections & kPlaceAndSpread) != 0, shapes = (s.sections & kShapes) != 0;
+  const double end = 0.5 * (1.0 + s.confidence);  // each end of a two-sided interval
+  auto signed_estimate = [&](const MixtureColumn& m, double q) {
+    const bool low = q < 0.5;  // failures at the nearer infinity of each tail
+    return QuantileEstimate{q, m.quantile(q, low), m.lower_bound(q, end, low),
+                            m.upper_bound(q, end, low)};
+  };
+  const Principal axes = principal_axes(f.covariance);
+  tbb::task_group tasks;
+  if (place)
+    tasks.run([&] {
+      const MixtureColumn distance = mixture_of(bodies, s, [&](std::uint32_t row) {
+        return std::hypot(t.east[row] - f.centre.east, t.north[row] - f.centre.north);
+      });
+      for (double p : s.levels) f.containment.push_back(distance.containment(p, s.confidence));
+    });
+  if (place)
+    tasks.run([&] {
+      const double th = s.downrange_bearing * std::numbers::pi / 180.0;
+      const double ue = std::sin(th), un = std::cos(th);
+      const MixtureColumn down = mixture_of(bodies, s, [&](std::uint32_t row) {
+        return (t.east[row] - f.centre.east) * ue + (t.north[row] - f.centre.north) * un;
+      });
+      const MixtureColumn cross = mixture_of(bodies, s, [&](std::uint32_t row) {
+        return (t.east[row] - f.centre.east) * un - (t.north[row] - f.centre.north) * ue;
+      });
+      for (double q : tail_probabilities(s.levels)) {
+        f.downrange.push_back(signed_estimate(down, q));
+        f.crossrange.push_back(signed_estimate(cross, q));
+      }
+    });
+  if (place)
+    tasks.run([&] {
+      const MixtureColumn speed =
+          mixture_of(bodies, s, [&](std::uint32_t row) { return t.speed[row]; });
+      const MixtureColumn energy =
+          mixture_of(bodies, s, [&](std::uint32_t row) { return t.energy[row]; });
+      for (double p : s.levels) {
+        f.speed.push_back(speed.containment(p, s.confidence));
+        f.energy.push_back(energy.containment(p, s.confidence));
+      }
+      std::uint64_t above = f.failed;
+      for (const auto& g : bodies)
+        for (std::uint32_t row : g.landed) above += t.energy[row] > s.energy_threshold ? 1 : 0;
+      const MixtureColumn::Share x = energy.share_above(s.energy_threshold, s.confidence);
+      f.energy_exceedance = {s.energy_threshold, above, f.rows, x.value, x.lower, x.upper};
+      // Time of flight over the landed rows (no failures among them).
+      std::vector<GroupRows> landed_only = bodies;
+      for (auto& g : landed_only) g.rows = g.landed.size();
+      const MixtureColumn time =
+          mixture_of(landed_only, s, [&](std::uint32_t row) { return t.time[row]; });
+      f.time_min = kNaN;
+      f.time_max = kNaN;
+      for (const auto& g : bodies)
+        for (std::uint32_t row : g.landed) {
+          if (!(t.time[row] >= f.time_min)) f.time_min = t.time[row];
+          if (!(t.time[row] <= f.time_max)) f.time_max = t.time[row];
+        }
+      std::vector<double> qs{0.5};
+      for (double p : s.levels) qs.push_back(p);
+      std::sort(qs.begin(), qs.end());
+      qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
+      for (double q : qs) {
+        QuantileEstimate e = signed_estimate(time, q);
+        if (f.landed == 0) e.value = e.lower = e.upper = kNaN;
+        f.time.push_back(e);
+      }
+    });
+  if (shapes)
+    tasks.run([&] {
+      const MixtureColumn about_mean = mixture_of(bodies, s, [&](std::uint32_t row) {
+        return std::hypot(t.east[row] - f.mean.east, t.north[row] - f.mean.north);
+      });
+      f.cep = f.rows ? about_mean.quantile(0.5, false) : kNaN;
+      f.cep_gaussian = f.landed >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
+      // Ellipses (Gaussian approximation), with the weighted share of the rows inside.
+      const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
+      const double det = a * c - b * b;
+      for (double level : s.levels) {
+        DispersionEllipse el;
+        el.level = level;
+        el.scale = std::sqrt(-2.0 * std::log1p(-level));
+        el.semi_major = el.scale * std::sqrt(axes.major);
+        el.semi_minor = el.scale * std::sqrt(axes.minor);
+        el.bearing = axes.bearing;
+        double inside = 0.0;
+        if (det > 0.0)
+          for (std::size_t k = 0; k < bodies.size(); ++k)
+            for (std::uint32_t row : bodies[k].landed) {
+              const double de = t.east[row] - f.mean.east, dn = t.north[row] - f.mean.north;
+              if ((c * de * de - 2.0 * b * de * dn + a * dn * dn) / det <= el.scale * el.scale)
+                inside += row_weight[k];
+            }
+        el.counted = f.objects_per_release > 0.0 ? inside / f.objects_per_release : kNaN;
+        f.ellipses.push_back(el);
+      }
+    });
+  if (shapes)
+    tasks.run([&] {
+      // Hazard polygons: as a body's, with the number of nearest impacts set by the mixture's
+      // bound of the Mahalanobis distance, and the coverage weighted.
+      const double floor =
+          std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
+      const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
+      const double det = a * c - b * b;
+      auto mahalanobis = [&](std::uint32_t row) {
+        const double de = t.east[row] - f.mean.east, dn = t.north[row] - f.mean.north;
+        return (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
+      };
+      const MixtureColumn distance = mixture_of(bodies, s, mahalanobis);
+      std::vector<std::pair<double, std::uint32_t>> keyed;  // (distance, body)
+      std::vector<std::uint32_t> row_of;
+      for (std::size_t k = 0; k < bodies.size(); ++k)
+        for (std::uint32_t row : bodies[k].landed) {
+          keyed.push_back({mahalanobis(row), static_cast<std::uint32_t>(keyed.size())});
+          row_of.push_back(row);
+        }
+      std::vector<std::uint16_t> body_of(keyed.size());
+      for (std::size_t k = 0, at = 0; k < bodies.size(); ++k)
+        for (std::size_t j = 0; j < bodies[k].landed.size(); ++j)
+          body_of[at++] = static_cast<std::uint16_t>(k);
+      std::sort(keyed.begin(), keyed.end());
+      std::vector<PlanePoint> hull;
+      std::size_t done = 0;
+      for (double level : s.levels) {
+        HazardPolygon poly;
+        poly.level = level;
+        const double reach = distance.upper_bound(level, s.confidence, false);
+        if (!std::isfinite(reach)) {
+          if (distance.enough_for_bound(level, s.confidence)) {
+            poly.reason = "failed flights reach the bound (they count as landing infinitely far)";
+          } else {
+            poly.samples_needed = distance.samples_needed(level, s.confidence);
+            poly.reason = "too few samples for the bound";
+          }
+          f.polygons.push_back(std::move(poly));
+          continue;
+        }
+        const auto k = static_cast<std::size_t>(
+            std::upper_bound(keyed.begin(), keyed.end(),
+                             std::pair{reach, std::numeric_limits<std::uint32_t>::max()}) -
+            keyed.begin());
+        poly.rank = k;
+        std::vector<PlanePoint> candidates = k >= done ? hull : std::vector<PlanePoint>{};
+        for (std::size_t j = k >= done ? done : 0; j < k; ++j) {
+          const std::uint32_t row = row_of[keyed[j].second];
+          candidates.push_back({t.east[row], t.north[row]});
+        }
+        hull = bounded_hull(convex_hull(std::move(candidates)), kPolygonVertices);
+        done = k;
+        poly.ring = grow_hull(hull, s.polygon_margin);
+        const ConvexPolygon convex(poly.ring);
+        double inside = 0.0;
+        for (std::size_t j = 0; j < keyed.size(); ++j) {
+          const std::uint32_t row = row_of[keyed[j].second];
+          if (j < k || convex.contains(t.east[row], t.north[row]))
+            inside += row_weight[body_of[keyed[j].second]];
+        }
+        poly.coverage = inside / f.objects_per_release;
+        poly.area = polygon_area(poly.ring);
+        poly.determined = true;
+        f.polygons.push_back(std::move(poly));
+      }
+    });
+  tasks.wait();
+  return f;
+}
 }  // namespace
+
+double InputSensitivity::strength() const {
+  double most = 0.0;
+  for (double v : {downrange, crossrange, distance, energy})
+    if (std::isfinite(v)) most = std::max(most, std::abs(v));
+  return most;
+}
 
 const char* to_string(CentreRule rule) {
   return rule == CentreRule::mean ? "mean" : rule == CentreRule::nominal ? "nominal" : "point";
@@ -583,10 +863,16 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
     all.name = "all";
     out.groups.push_back(std::move(all));
   } else {
-    const PlanePoint nominal =
-        s.centre == CentreRule::nominal ? s.nominal_impacts[0] : PlanePoint{};
-    out.groups.push_back(
-        compute_group(t, s, rows[bodies], "all", nominal, total_objects, scratches));
+    // One release: the bodies' nominal impacts weighted by their objects make its nominal centre.
+    PlanePoint nominal;
+    if (s.centre == CentreRule::nominal) {
+      for (std::size_t b = 0; b < bodies; ++b) {
+        nominal.east += s.body_counts[b] * s.nominal_impacts[b].east / total_objects;
+        nominal.north += s.body_counts[b] * s.nominal_impacts[b].north / total_objects;
+      }
+    }
+    const std::vector<GroupRows> per_body(rows.begin(), rows.begin() + static_cast<long>(bodies));
+    out.groups.push_back(compute_release_group(t, s, per_body, nominal));
     if (shapes) {
       ImpactGrid merged = out.groups[0].grid;
       for (std::size_t b = 1; b < bodies; ++b) merged = merge_grids(merged, out.groups[b].grid);
@@ -598,14 +884,39 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
   for (std::size_t k = 0; k < out.groups.size() && shapes; ++k) {
     const GroupFootprint& g = out.groups[k];
     const GroupRows& r = k < bodies ? rows[k] : rows[bodies];
-    if (bodies == 1 && k == 0) continue;  // one body: its figures are those of "all"
-    if (s.rules.zone_radius && s.rules.max_outside)
-      out.rules.push_back(judge("zone_radius", g.name, *s.rules.zone_radius, *s.rules.max_outside,
-                                count_outside(t, r, g.centre, *s.rules.zone_radius), r.rows,
-                                s.confidence));
-    if (s.rules.energy_limit && s.rules.max_exceed)
-      out.rules.push_back(judge("energy_limit", g.name, *s.rules.energy_limit, *s.rules.max_exceed,
-                                count_above(t, r, *s.rules.energy_limit), r.rows, s.confidence));
+    if (bodies == 1 && k == 0) continue;             // one body: its figures are those of "all"
+    const bool release = k == bodies && bodies > 1;  // "all" of several bodies: weighted
+    const std::vector<GroupRows> per_body(rows.begin(), rows.begin() + static_cast<long>(bodies));
+    if (s.rules.zone_radius && s.rules.max_outside) {
+      const double radius = *s.rules.zone_radius, accepted = *s.rules.max_outside;
+      const std::uint64_t count = count_outside(t, r, g.centre, radius);
+      if (release) {
+        const MixtureColumn distance = mixture_of(per_body, s, [&](std::uint32_t row) {
+          return std::hypot(t.east[row] - g.centre.east, t.north[row] - g.centre.north);
+        });
+        out.rules.push_back(
+            judge_share("zone_radius", g.name, radius, accepted, count, r.rows,
+                        distance.share_above(radius, s.confidence), s.confidence,
+                        distance.samples_to_decide(radius, accepted, s.confidence)));
+      } else {
+        out.rules.push_back(
+            judge("zone_radius", g.name, radius, accepted, count, r.rows, s.confidence));
+      }
+    }
+    if (s.rules.energy_limit && s.rules.max_exceed) {
+      const double limit = *s.rules.energy_limit, accepted = *s.rules.max_exceed;
+      const std::uint64_t count = count_above(t, r, limit);
+      if (release) {
+        const MixtureColumn energy =
+            mixture_of(per_body, s, [&](std::uint32_t row) { return t.energy[row]; });
+        out.rules.push_back(judge_share("energy_limit", g.name, limit, accepted, count, r.rows,
+                                        energy.share_above(limit, s.confidence), s.confidence,
+                                        energy.samples_to_decide(limit, accepted, s.confidence)));
+      } else {
+        out.rules.push_back(
+            judge("energy_limit", g.name, limit, accepted, count, r.rows, s.confidence));
+      }
+    }
   }
   return out;
 }

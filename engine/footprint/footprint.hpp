@@ -30,8 +30,16 @@ struct ImpactTable {
   std::span<const double> speed;         ///< m/s
   std::span<const double> energy;        ///< J
   std::span<const std::uint8_t> status;  ///< 0: landed; anything else: failed
+  /// The columns ranked against the impact (Spearman): the sampled inputs, and the sample's own
+  /// random choices (canopy state, ensemble member, burst velocity, wind perturbation).
   std::vector<std::string> input_names;
-  std::vector<std::span<const double>> inputs;  ///< one column per sampled input
+  std::vector<std::span<const double>> inputs;
+  /// Per column: true when its values are categories (an ensemble member's index), ranked by the
+  /// correlation ratio of the impact's ranks rather than by Spearman's correlation.
+  std::vector<bool> categorical;
+  /// Columns made for the table that the spans above may view (the canopy state as numbers):
+  /// moving a table keeps them valid, copying one does not.
+  std::vector<std::vector<double>> storage;
   [[nodiscard]] std::size_t rows() const { return east.size(); }
 };
 
@@ -110,9 +118,16 @@ struct ImpactGrid {
   std::vector<double> density;  ///< 1/m^2 per release
 };
 
+/// How one column moves the impact: Spearman's rank correlation with the impact's downrange,
+/// crossrange, distance from the centre and energy (NaN: none, e.g. a constant column); for a
+/// categorical column the correlation ratio (eta, 0 .. 1, Pearson 1903) of those outcomes' ranks
+/// over its categories, which for two categories is the size of Spearman's correlation.
 struct InputSensitivity {
   std::string input;
-  double downrange = 0.0, crossrange = 0.0, distance = 0.0, energy = 0.0;  ///< Spearman (NaN: none)
+  double downrange = 0.0, crossrange = 0.0, distance = 0.0, energy = 0.0;
+  bool categorical = false;
+  /// The largest effect on any outcome, |value| (0 when none is defined): the ranking key.
+  [[nodiscard]] double strength() const;
 };
 
 struct Exceedance {
@@ -121,6 +136,9 @@ struct Exceedance {
   double share = 0.0, lower = 0.0, upper = 0.0;  ///< estimate, Clopper-Pearson bounds
 };
 
+/// A body's figures, or for "all" those of one object of a release: with several bodies, a
+/// mixture weighted by each body's objects per release, with bounds by Boole's inequality
+/// (footprint/mixture.hpp), about one common centre.
 struct GroupFootprint {
   std::string name;                ///< a body's name, or "all"
   double objects_per_release = 0;  ///< the body's count (sum for "all")
@@ -138,6 +156,8 @@ struct GroupFootprint {
   std::vector<QuantileEstimate> time;      ///< at each level, and 0.5
   double time_min = 0.0, time_max = 0.0;
   Exceedance energy_exceedance;
+  /// Per body, strongest first (InputSensitivity::strength); none for "all" of several bodies,
+  /// whose rows mix bodies that respond differently to the same input.
   std::vector<InputSensitivity> sensitivity;
 };
 

@@ -3,6 +3,7 @@
 #include <unistd.h>
 #include <zlib.h>
 
+#include <algorithm>
 #include <cstring>
 #include <filesystem>
 #include <sstream>
@@ -17,7 +18,7 @@ constexpr std::uint64_t kRecordMagic = 0x73747277636b7074ULL;  // "strwckpt"
 
 std::string header_of(const Checkpoint::Identity& id) {
   std::ostringstream h;
-  h << "strewn checkpoint 1\n"
+  h << "strewn checkpoint 2\n"
     << id.scenario_sha256 << ' ' << id.seed << ' ' << id.samples << ' ' << id.bodies << ' '
     << id.inputs << '\n';
   return h.str();
@@ -35,12 +36,12 @@ std::uint32_t crc_of(const std::vector<std::byte>& bytes) {
 }  // namespace
 
 Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::string>& input_names,
-                       bool resume)
+                       std::size_t choices, bool resume)
     : path_(std::move(path)), bodies_(std::max<std::size_t>(1, id.bodies)) {
   const std::string header = header_of(id);
-  rows_.bodies = bodies_;
-  rows_.columns.set_inputs(input_names);
   std::uint64_t good_bytes = 0;
+  // The records read back, by first row.
+  std::vector<std::pair<std::uint64_t, StudyColumns>> records;
   if (resume && std::filesystem::exists(path_)) {
     std::FILE* in = std::fopen(path_.c_str(), "rb");
     if (!in) throw IoError(path_ + ": cannot read the checkpoint");
@@ -50,32 +51,65 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
       std::fclose(in);
       throw UsageError(path_ +
                        ": this checkpoint belongs to another study (scenario, seed or "
-                       "sample count differ); run without --resume to start over");
+                       "sample count differ) or another version of strewn; run without --resume "
+                       "to start over");
     }
     if (whole_header) {
       good_bytes = header.size();
-      while (true) {  // complete records only
-        std::uint64_t fields[3];
+      while (true) {              // complete records only
+        std::uint64_t fields[4];  // magic, first row, rows, payload bytes
         if (std::fread(fields, sizeof fields, 1, in) != 1 || fields[0] != kRecordMagic) break;
-        std::vector<std::byte> payload(fields[2]);
+        std::vector<std::byte> payload(fields[3]);
         std::uint32_t crc = 0;
-        if (fields[2] > (std::uint64_t{1} << 40) ||
+        if (fields[3] > (std::uint64_t{1} << 40) ||
             std::fread(payload.data(), 1, payload.size(), in) != payload.size() ||
             std::fread(&crc, sizeof crc, 1, in) != 1 || crc != crc_of(payload))
           break;
+        StudyColumns rows;
+        rows.set_inputs(input_names, choices);
         std::size_t at = 0;
-        if (!take_row_bytes(payload, at, fields[1], rows_.columns) || at != payload.size()) break;
+        if (!take_row_bytes(payload, at, fields[2], rows) || at != payload.size()) break;
+        // Whole samples only (a record always holds whole samples; be safe).
+        if (fields[1] % bodies_ != 0 || fields[2] % bodies_ != 0)
+          throw IoError(path_ + ": the checkpoint holds a part of a sample");
+        records.emplace_back(fields[1], std::move(rows));
         good_bytes += sizeof fields + payload.size() + sizeof crc;
       }
     }
     std::fclose(in);
-    const std::size_t rows = rows_.columns.rows();
-    // Whole samples only (a record always holds whole samples; be safe).
-    const std::size_t keep = rows / bodies_ * bodies_;
-    if (keep != rows) throw IoError(path_ + ": the checkpoint holds a part of a sample");
-    rows_.samples = rows / bodies_;
-    rows_.count_outcomes();
   }
+  // Runs of consecutive samples in index order; a record overlapping one already taken (the
+  // same samples flown again after a torn record) adds only what is new.
+  std::stable_sort(records.begin(), records.end(),
+                   [](const auto& a, const auto& b) { return a.first < b.first; });
+  for (auto& [first_row, rows] : records) {
+    std::uint64_t first = first_row / bodies_, count = rows.rows() / bodies_, skip = 0;
+    if (!pieces_.empty()) {
+      const Piece& last = pieces_.back();
+      const std::uint64_t end = last.first_sample + last.rows.samples;
+      if (first < end) skip = std::min(count, end - first);
+    }
+    if (skip == count) continue;
+    if (!pieces_.empty() &&
+        pieces_.back().first_sample + pieces_.back().rows.samples == first + skip) {
+      StudyColumns& into = pieces_.back().rows.columns;
+      into.for_each_column_with(rows, [&](auto& ours, const auto& theirs) {
+        ours.insert(ours.end(), theirs.begin() + static_cast<long>(skip * bodies_), theirs.end());
+      });
+      pieces_.back().rows.samples += count - skip;
+    } else {
+      Piece piece;
+      piece.first_sample = first + skip;
+      piece.rows.bodies = bodies_;
+      piece.rows.samples = count - skip;
+      piece.rows.columns.set_inputs(input_names, choices);
+      piece.rows.columns.for_each_column_with(rows, [&](auto& ours, const auto& theirs) {
+        ours.assign(theirs.begin() + static_cast<long>(skip * bodies_), theirs.end());
+      });
+      pieces_.push_back(std::move(piece));
+    }
+  }
+  for (auto& piece : pieces_) piece.rows.count_outcomes();
   if (good_bytes > 0) {
     // Cut off a torn end, and go on appending.
     std::error_code ec;
@@ -95,15 +129,16 @@ Checkpoint::~Checkpoint() {
   if (file_) std::fclose(file_);
 }
 
-StudyResult Checkpoint::take_rows() {
-  return std::move(rows_);
+std::vector<Checkpoint::Piece> Checkpoint::take_pieces() {
+  return std::move(pieces_);
 }
 
-void Checkpoint::append(const StudyColumns& c, std::size_t first, std::size_t end) {
+void Checkpoint::append(const StudyColumns& c, std::size_t first, std::size_t end,
+                        std::size_t offset_rows) {
   if (!file_ || end <= first) return;
   std::vector<std::byte> payload;
   append_row_bytes(c, first, end, payload);
-  const std::uint64_t fields[3] = {kRecordMagic, end - first, payload.size()};
+  const std::uint64_t fields[4] = {kRecordMagic, first + offset_rows, end - first, payload.size()};
   const std::uint32_t crc = crc_of(payload);
   if (std::fwrite(fields, sizeof fields, 1, file_) != 1 ||
       std::fwrite(payload.data(), 1, payload.size(), file_) != payload.size() ||

@@ -5,9 +5,14 @@
 // cut, `run --resume` finds every record that was complete and flies only the rest. Rows depend
 // only on their sample index, so the resumed study's file equals an uninterrupted one's.
 //
-// Layout: a text header (format, the scenario's SHA-256, seed, samples, bodies, inputs), then
-// records: magic, row count, payload size, payload (the rows, column by column), CRC-32 of the
-// payload. A record torn by a crash fails its size or CRC check and is cut off with all after it.
+// The rows need not be in order: a study stopped by a signal keeps every sample it finished,
+// and those beyond the rounds written in order are whole samples scattered over the blocks that
+// were flying. Each record says where its rows start.
+//
+// Layout: a text header (format 2, the scenario's SHA-256, seed, samples, bodies, named columns),
+// then records: magic, first row, row count, payload size, payload (the rows, column by column),
+// CRC-32 of the payload. A record torn by a crash fails its size or CRC check and is cut off with
+// all after it.
 #include <cstdint>
 #include <cstdio>
 #include <string>
@@ -31,15 +36,23 @@ class Checkpoint {
   /// it does not exist). Throws UsageError when it belongs to another study, IoError when it
   /// cannot be written.
   Checkpoint(std::string path, Identity identity, const std::vector<std::string>& input_names,
-             bool resume);
+             std::size_t choices, bool resume);
   ~Checkpoint();
   Checkpoint(const Checkpoint&) = delete;
   Checkpoint& operator=(const Checkpoint&) = delete;
 
-  /// The rows read back on resume (in index order, from row 0), handed over once.
-  StudyResult take_rows();
-  /// Appends rows [first, end) of the columns as one record, on disk before it returns.
-  void append(const StudyColumns& columns, std::size_t first, std::size_t end);
+  /// A run of consecutive samples read back on resume.
+  struct Piece {
+    std::uint64_t first_sample = 0;
+    StudyResult rows;
+  };
+  /// The rows read back on resume, as runs of consecutive samples in index order that do not
+  /// overlap; handed over once.
+  std::vector<Piece> take_pieces();
+  /// Appends rows [first, end) of the columns as one record, on disk before it returns; row
+  /// `first` is the study's row `first + offset_rows`.
+  void append(const StudyColumns& columns, std::size_t first, std::size_t end,
+              std::size_t offset_rows = 0);
   /// Removes the checkpoint (the study's file is in place).
   void remove();
   [[nodiscard]] const std::string& path() const { return path_; }
@@ -47,7 +60,7 @@ class Checkpoint {
  private:
   std::string path_;
   std::FILE* file_ = nullptr;
-  StudyResult rows_;
+  std::vector<Piece> pieces_;
   std::size_t bodies_ = 1;
 };
 

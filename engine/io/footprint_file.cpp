@@ -40,13 +40,13 @@ constexpr auto footprint_fields() {
                          std::pair{"releases", &Footprint::releases});
 }
 constexpr auto record_fields() {
-  return std::make_tuple(std::pair{"title", &StudyRecord::title},
-                         std::pair{"sampling", &StudyRecord::sampling},
-                         std::pair{"ground", &StudyRecord::ground},
-                         std::pair{"release_altitude", &StudyRecord::release_altitude},
-                         std::pair{"release_track", &StudyRecord::release_track},
-                         std::pair{"max_samples", &StudyRecord::max_samples},
-                         std::pair{"rounds", &StudyRecord::rounds});
+  return std::make_tuple(
+      std::pair{"title", &StudyRecord::title}, std::pair{"sampling", &StudyRecord::sampling},
+      std::pair{"ground", &StudyRecord::ground},
+      std::pair{"release_altitude", &StudyRecord::release_altitude},
+      std::pair{"release_track", &StudyRecord::release_track},
+      std::pair{"max_samples", &StudyRecord::max_samples},
+      std::pair{"rounds", &StudyRecord::rounds}, std::pair{"tolerance", &StudyRecord::tolerance});
 }
 
 // The energy exceedance's attributes of the energy group, for writing and reading.
@@ -332,9 +332,28 @@ void write_footprint(H5::H5File& file, const StudyRecord& r) {
   write_vector(rules, "lower", column(f.rules, [](const auto& k) { return k.lower; }));
   write_vector(rules, "upper", column(f.rules, [](const auto& k) { return k.upper; }));
   write_vector(rules, "samples_needed", needed);
+  // Where samples left their models' ranges, per body (empty when none did).
+  H5::Group warnings = root.createGroup("warnings");
+  const auto& w = r.range_warnings;
+  std::vector<std::string> wgroup, kind, text;
+  std::vector<std::uint64_t> wcount, wrows;
+  for (const auto& k : w) {
+    wgroup.push_back(k.group);
+    kind.push_back(k.kind);
+    text.push_back(k.text);
+    wcount.push_back(k.count);
+    wrows.push_back(k.rows);
+  }
+  write_strings(warnings, "group", wgroup);
+  write_strings(warnings, "kind", kind);
+  write_vector(warnings, "count", wcount);
+  write_vector(warnings, "rows", wrows);
+  write_vector(warnings, "extreme", column(w, [](const auto& k) { return k.extreme; }));
+  write_vector(warnings, "limit", column(w, [](const auto& k) { return k.limit; }));
+  write_strings(warnings, "text", text);
 }
 
-void read_footprint(const H5::H5File& file, StudyRecord& r) {
+void read_footprint(const H5::Group& file, StudyRecord& r) {
   H5::Group root = file.openGroup("footprint");
   Footprint& f = r.footprint;
   read_attributes(root, f, footprint_fields());
@@ -375,6 +394,16 @@ void read_footprint(const H5::H5File& file, StudyRecord& r) {
     c.samples_needed = needed.at(k);
     f.rules.push_back(c);
   }
+  H5::Group warnings = root.openGroup("warnings");
+  const auto wgroup = read_strings(warnings, "group"), kind = read_strings(warnings, "kind"),
+             text = read_strings(warnings, "text");
+  const auto wcount = read_vector<std::uint64_t>(warnings, "count"),
+             wrows = read_vector<std::uint64_t>(warnings, "rows");
+  const auto extreme = read_vector<double>(warnings, "extreme"),
+             limit = read_vector<double>(warnings, "limit");
+  for (std::size_t k = 0; k < wgroup.size(); ++k)
+    r.range_warnings.push_back(
+        {wgroup[k], kind.at(k), wcount.at(k), wrows.at(k), extreme.at(k), limit.at(k), text.at(k)});
 }
 
 }  // namespace strewn

@@ -9,6 +9,6 @@ namespace strewn {
 
 void write_footprint(H5::H5File& file, const StudyRecord& record);
 /// Fills record.footprint and the site, release and study attributes from /footprint.
-void read_footprint(const H5::H5File& file, StudyRecord& record);
+void read_footprint(const H5::Group& file, StudyRecord& record);
 
 }  // namespace strewn

@@ -6,6 +6,7 @@
 
 #include "core/text.hpp"
 #include "io/cautions.hpp"
+#include "io/site_frame.hpp"
 
 namespace strewn {
 
@@ -99,10 +100,12 @@ nlohmann::json group_json(const GroupFootprint& g) {
   nlohmann::json sensitivity = nlohmann::json::array();
   for (const auto& s : g.sensitivity)
     sensitivity.push_back({{"input", s.input},
+                           {"measure", s.categorical ? "correlation_ratio" : "spearman"},
                            {"downrange", json_number(s.downrange)},
                            {"crossrange", json_number(s.crossrange)},
                            {"distance", json_number(s.distance)},
-                           {"energy", json_number(s.energy)}});
+                           {"energy", json_number(s.energy)},
+                           {"strength", s.strength()}});
   j["sensitivity"] = sensitivity;
   return j;
 }
@@ -146,8 +149,15 @@ nlohmann::json record_json(const StudyRecord& r, bool provenance) {
     j["convergence"]["max_samples"] = r.max_samples;
     j["convergence"]["met"] = f.widest_relative_width() <= *r.target_width;
   }
+  const SiteFrame site(r);
   nlohmann::json footprint = nlohmann::json::object();
-  for (const auto& g : f.groups) footprint[g.name] = group_json(g);
+  for (const auto& g : f.groups) {
+    footprint[g.name] = group_json(g);
+    if (const auto at = site.locate(g.centre)) {
+      footprint[g.name]["centre"]["latitude"] = at->latitude;
+      footprint[g.name]["centre"]["longitude"] = at->longitude;
+    }
+  }
   j["footprint"] = footprint;
   nlohmann::json rules = nlohmann::json::array();
   for (const auto& k : f.rules) {
@@ -167,19 +177,65 @@ nlohmann::json record_json(const StudyRecord& r, bool provenance) {
     rules.push_back(item);
   }
   j["rules"] = rules;
-  nlohmann::json warnings = nlohmann::json::array();
-  if (r.sampling != "random")
-    warnings.push_back(
-        "the confidence bounds assume independent random sampling; this study used \"" +
-        r.sampling + "\"");
-  if (r.failed > 0)
-    warnings.push_back(std::to_string(r.failed) +
-                       " flights failed; they count as landing infinitely far away");
-  if (r.target_width && f.widest_relative_width() > *r.target_width)
-    warnings.push_back("the target width was not met within study.max_samples");
-  if (!warnings.empty()) j["warnings"] = warnings;
+  j["warnings"] = record_warnings(r);
+  nlohmann::json ranges = nlohmann::json::array();
+  for (const auto& w : r.range_warnings)
+    ranges.push_back(
+        {{"group", w.group},
+         {"kind", w.kind},
+         {"count", w.count},
+         {"rows", w.rows},
+         {"share", w.rows ? static_cast<double>(w.count) / static_cast<double>(w.rows) : 0.0},
+         {"extreme", json_number(w.extreme)},
+         {"limit", json_number(w.limit)}});
+  j["model_ranges"] = ranges;
   j["cautions"] = cautions();
   return j;
+}
+
+std::vector<std::string> record_warnings(const StudyRecord& r) {
+  std::vector<std::string> out;
+  if (r.sampling != "random")
+    out.push_back("the confidence bounds assume independent random sampling; this study used \"" +
+                  r.sampling + "\"");
+  if (r.failed > 0)
+    out.push_back(std::to_string(r.failed) +
+                  " flights failed; they count as landing infinitely far away");
+  if (r.target_width && r.footprint.widest_relative_width() > *r.target_width)
+    out.push_back("the target width was not met within study.max_samples");
+  for (const auto& w : r.range_warnings) out.push_back(w.text);
+  return out;
+}
+
+std::vector<const GroupFootprint*> shown_groups(const Footprint& f) {
+  std::vector<const GroupFootprint*> out;
+  for (const auto& g : f.groups)
+    if (g.name != "all" || f.groups.size() > 2) out.push_back(&g);
+  return out;
+}
+
+std::string centre_text(const StudyRecord& r, const GroupFootprint& g) {
+  const Footprint& f = r.footprint;
+  const bool release = g.name == "all";
+  std::string what;
+  if (f.centre == "mean")
+    what = release ? "the mean impact of one object of the release (bodies weighted by their "
+                     "objects per release)"
+                   : "the mean impact of " + g.name;
+  else if (f.centre == "nominal")
+    what = release ? "the nominal impacts of the bodies, weighted by their objects per release"
+                   : "the nominal impact of " + g.name + " (every input at its median)";
+  else
+    what = "the point given in study.centre";
+  if (!std::isfinite(g.centre.east) || !std::isfinite(g.centre.north))
+    return what + ", undetermined: no flight landed";
+  what += printf_text(", east %.1f m, north %.1f m", g.centre.east, g.centre.north);
+  const SiteFrame site(r);
+  if (const auto at = site.locate(g.centre))
+    what +=
+        printf_text(" (%.6f %s, %.6f %s)", std::abs(at->latitude), at->latitude < 0.0 ? "S" : "N",
+                    std::abs(at->longitude), at->longitude < 0.0 ? "W" : "E");
+  return what;
 }
 
 namespace {
@@ -197,13 +253,22 @@ void write_record_text(std::ostream& out, const StudyRecord& r) {
       << r.samples << " samples, " << r.completed << " flights landed, " << r.failed
       << " failed (seed " << r.seed << ", " << r.sampling << " sampling";
   if (r.rounds > 1) out << ", grown in " << r.rounds << " parts";
-  out << "); bounds at " << f.confidence * 100.0 << "% confidence, centre " << f.centre << "\n";
-  for (const auto& g : f.groups) {
+  out << "); bounds at " << f.confidence * 100.0 << "% confidence\n";
+  const std::vector<std::string> warnings = record_warnings(r);
+  if (!warnings.empty())
+    out << "warnings  " << warnings.size() << ", listed below: read them before the figures\n";
+  for (const GroupFootprint* group : shown_groups(f)) {
+    const GroupFootprint& g = *group;
     char line[256];
-    out << "\n"
-        << g.name << ": mean impact east " << metres(g.mean.east) << " m, north "
-        << metres(g.mean.north) << " m; CEP " << metres(g.cep) << " m (Gaussian "
-        << metres(g.cep_gaussian) << " m)\n";
+    out << "\n";
+    if (g.name == "all")
+      out << "all bodies, one release (each body weighted by its objects per release, "
+          << g.objects_per_release << " in all)";
+    else
+      out << g.name;
+    out << ": mean impact east " << metres(g.mean.east) << " m, north " << metres(g.mean.north)
+        << " m; CEP " << metres(g.cep) << " m (Gaussian " << metres(g.cep_gaussian) << " m)\n"
+        << "  centre: " << centre_text(r, g) << "\n";
     out << "  level   radius m   upper bound m   polygon m^2 (counted)   ellipse m (Gaussian)\n";
     for (std::size_t k = 0; k < g.containment.size(); ++k) {
       const auto& c = g.containment[k];
@@ -235,44 +300,46 @@ void write_record_text(std::ostream& out, const StudyRecord& r) {
                   metres(g.time_max).c_str());
     out << line;
   }
-  if (!f.groups.empty()) {
-    // The inputs that move the impact most: by the largest of their rank correlations with
-    // downrange, crossrange and distance (a shift of the footprint shows in the first two, a
-    // widening in the third).
-    auto sensitivity = f.groups.back().sensitivity;
-    auto strength = [](const InputSensitivity& x) {
-      double most = 0.0;
-      for (double v : {x.downrange, x.crossrange, x.distance})
-        if (std::isfinite(v)) most = std::max(most, std::abs(v));
-      return most;
-    };
-    std::stable_sort(sensitivity.begin(), sensitivity.end(),
-                     [&](const auto& a, const auto& b) { return strength(a) > strength(b); });
-    if (!sensitivity.empty()) {
-      out << "\nwhat drives the spread (Spearman rank correlation of each input with the impact's "
-             "position and energy, all bodies):\n   down  cross  dist.  energy  input\n";
-      auto rho = [](double v) {
-        char text[16];
-        if (std::isnan(v)) return std::string("    -");
-        std::snprintf(text, sizeof text, "%+.2f", v);
-        return std::string(text);
-      };
-      for (std::size_t k = 0; k < std::min<std::size_t>(6, sensitivity.size()); ++k) {
-        const auto& x = sensitivity[k];
-        out << "  " << rho(x.downrange) << "  " << rho(x.crossrange) << "  " << rho(x.distance)
-            << "   " << rho(x.energy) << "  " << x.input << "\n";
-      }
+  // The inputs that move each body's impact most: by the largest of their rank correlations with
+  // downrange, crossrange, distance and energy (a shift of the footprint shows in the first two,
+  // a widening in the third), body by body: bodies respond differently to the same input.
+  bool heading = false;
+  auto rho = [](double v, bool categorical) {
+    if (std::isnan(v)) return std::string("    -");
+    return printf_text(categorical ? " %.2f" : "%+.2f", v);
+  };
+  for (const GroupFootprint* group : shown_groups(f)) {
+    const GroupFootprint& g = *group;
+    if (g.sensitivity.empty()) continue;
+    if (!heading)
+      out << "\nwhat drives the spread, strongest first (Spearman rank correlation of each input "
+             "with the impact's\nposition and energy; for a category, such as an ensemble member, "
+             "the correlation ratio):\n";
+    heading = true;
+    out << "  " << g.name << "\n     down  cross  dist.  energy  input\n";
+    for (std::size_t k = 0; k < std::min<std::size_t>(6, g.sensitivity.size()); ++k) {
+      const auto& x = g.sensitivity[k];
+      out << "    " << rho(x.downrange, x.categorical) << "  " << rho(x.crossrange, x.categorical)
+          << "  " << rho(x.distance, x.categorical) << "   " << rho(x.energy, x.categorical) << "  "
+          << x.input << "\n";
     }
+    if (g.sensitivity.size() > 6)
+      out << "    (" << g.sensitivity.size() - 6 << " more in the JSON and HTML)\n";
   }
   if (!f.rules.empty()) {
     out << "\nagainst the criteria entered in [rules] (reported, not decided):\n";
-    for (const auto& k : f.rules)
+    for (const auto& k : f.rules) {
       out << "  " << to_string(k.status) << "  " << k.group << " " << k.rule << ": "
           << rule_statement(k) << "\n";
+      if (k.rule == "zone_radius")
+        for (const auto& g : f.groups)
+          if (g.name == k.group) out << "      the zone is about " << centre_text(r, g) << "\n";
+    }
   }
-  const nlohmann::json summary = record_json(r, false);
-  if (summary.contains("warnings"))
-    for (const auto& w : summary["warnings"]) out << "\nwarning   " << w.get<std::string>() << "\n";
+  if (!warnings.empty()) {
+    out << "\nwarnings (" << warnings.size() << "):\n";
+    for (const auto& w : warnings) out << "  - " << w << "\n";
+  }
   if (!r.file.empty()) out << "\nresults   " << r.file << "\n";
   out << "\n";
   for (const auto& c : cautions()) out << "caution   " << c << "\n";

@@ -20,4 +20,18 @@ void write_record_text(std::ostream& out, const StudyRecord& record);
 /// A number for JSON: null when NaN or infinite.
 nlohmann::json json_number(double value);
 
+/// Every warning of a study, in words: a sampling plan the bounds do not assume, failed flights,
+/// a target width not met, and each body's samples that left its models' ranges or their
+/// assumptions. The terminal, the JSON and the HTML page carry the same list.
+std::vector<std::string> record_warnings(const StudyRecord& record);
+
+/// The groups a reader needs: every body, and "all" only when there are several bodies (with one
+/// body, "all" holds the same figures).
+std::vector<const GroupFootprint*> shown_groups(const Footprint& footprint);
+
+/// What the centre of a group is, in words with its east/north (and latitude/longitude when the
+/// site has coordinates), e.g. "the mean impact of bundle, east 512.3 m, north -40.1 m
+/// (46.950412 N, 7.446712 E)".
+std::string centre_text(const StudyRecord& record, const GroupFootprint& group);
+
 }  // namespace strewn

@@ -21,6 +21,8 @@ template <class T>
 H5::PredType type_of() {
   if constexpr (std::is_same_v<T, double>)
     return H5::PredType::NATIVE_DOUBLE;
+  else if constexpr (std::is_same_v<T, float>)
+    return H5::PredType::NATIVE_FLOAT;
   else if constexpr (std::is_same_v<T, std::uint8_t>)
     return H5::PredType::NATIVE_UINT8;
   else if constexpr (std::is_same_v<T, std::uint16_t>)

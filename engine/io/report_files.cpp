@@ -47,6 +47,11 @@ std::string escape_markup(const std::string& text) {
 void write_report_file(const std::string& path, const std::string& text) {
   namespace fs = std::filesystem;
   const fs::path final_path(path);
+  // A missing folder is made, as for a study's results file.
+  if (const fs::path folder = final_path.parent_path(); !folder.empty()) {
+    std::error_code ec;
+    fs::create_directories(folder, ec);
+  }
   const fs::path temporary = final_path.parent_path() / (final_path.filename().string() +
                                                          ".partial-" + std::to_string(::getpid()));
   {
@@ -261,11 +266,20 @@ std::string figures_csv(const StudyRecord& r) {
       row(g.name, "spearman_energy", kNaN, s.energy, kNaN, kNaN, kNaN, "", s.input);
     }
   }
+  // A rule's row holds the probability of its event (no level, no unit): the estimate, its lower
+  // bound and its upper bound; the note says the threshold, the accepted probability and the
+  // status.
   for (const auto& k : r.footprint.rules)
-    row(k.group, "rule_" + k.rule, k.accepted, k.value, k.lower, kNaN, k.upper,
-        k.rule == "zone_radius" ? "m" : "J",
-        std::string(to_string(k.status)) + " (threshold " + number(k.threshold) +
-            "; reported, not decided)");
+    row(k.group, "rule_" + k.rule, kNaN, k.value, k.lower, kNaN, k.upper, "",
+        std::string(to_string(k.status)) + " against the accepted probability " +
+            number(k.accepted) + " of " +
+            (k.rule == "zone_radius" ? "landing outside " + number(k.threshold) + " m"
+                                     : "an impact energy above " + number(k.threshold) + " J") +
+            " (reported, not decided)");
+  for (const auto& w : r.range_warnings)
+    row(w.group, "model_range_" + w.kind, kNaN,
+        w.rows ? static_cast<double>(w.count) / static_cast<double>(w.rows) : kNaN, kNaN, kNaN,
+        kNaN, "", w.text);
   return out;
 }
 

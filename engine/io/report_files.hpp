@@ -20,8 +20,13 @@ std::string geojson_text(const StudyRecord& record, const StudyColumns* impacts)
 /// Every figure as CSV, one row per figure: group, figure, level, estimate, interval, bound.
 std::string figures_csv(const StudyRecord& record);
 
-/// The map of the footprint as SVG: impact density shading, hazard polygons, containment circles,
-/// dispersion ellipses, the release point and track, north arrow, scale bar and legend.
+/// The map of a group's footprint as SVG (the body's name, or "all"): impact density shading,
+/// hazard polygons, containment circles labelled with their level, dispersion ellipses, each
+/// rule's zone labelled with its radius and status, the release point and track, latitude and
+/// longitude ticks (metre ticks without site coordinates), north arrow, scale bar and legend.
+/// The view holds every impact cell and every figure.
+std::string map_svg(const StudyRecord& record, const std::string& group);
+/// The map of all bodies together (of the one body, for a study of one).
 std::string map_svg(const StudyRecord& record);
 
 /// One self-contained HTML page: the map, the tables, the rule statuses, provenance, cautions.

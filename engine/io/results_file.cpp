@@ -135,15 +135,18 @@ void io_guard(const std::string& path, F&& action) {
 }
 }  // namespace
 
+std::string temporary_path_of(const std::string& path) {
+  const std::filesystem::path final_path(path);
+  return (final_path.parent_path() /
+          (final_path.filename().string() + ".partial-" + std::to_string(::getpid())))
+      .string();
+}
+
 ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
-                             const std::vector<std::string>& input_names, std::size_t rows,
-                             bool keep_samples)
+                             const std::vector<std::string>& input_names, std::size_t choices,
+                             std::size_t rows, bool keep_samples)
     : path_(path) {
-  namespace fs = std::filesystem;
-  const fs::path final_path(path);
-  temporary_ = (final_path.parent_path() /
-                (final_path.filename().string() + ".partial-" + std::to_string(::getpid())))
-                   .string();
+  temporary_ = temporary_path_of(path);
   const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   H5::Exception::dontPrint();
   io_guard(path_, [&] {
@@ -165,10 +168,15 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
     std::vector<std::string> names;
     for (const auto& b : scenario.bodies) names.push_back(b.name);
     write_strings_attribute(open->samples, "body_names", names);
-    write_strings_attribute(open->samples, "input_names", input_names);
+    StudyColumns shape;  // no rows: only the names and types of the columns
+    shape.set_inputs(input_names, choices);
+    write_strings_attribute(
+        open->samples, "input_names",
+        std::vector<std::string>(input_names.begin(), input_names.end() - choices));
+    write_strings_attribute(
+        open->samples, "choice_names",
+        std::vector<std::string>(input_names.end() - choices, input_names.end()));
     if (keep_samples) {
-      StudyColumns shape;  // no rows: only the names and types of the columns
-      shape.set_inputs(input_names);
       shape.for_each_column([&](std::string_view name, const auto& column) {
         using Value = typename std::decay_t<decltype(column)>::value_type;
         open->columns.push_back(
@@ -218,8 +226,8 @@ void ResultsWriter::finish(const StudyRecord& record) {
 
 void write_results(const std::string& path, const Scenario& scenario, const StudyResult& result,
                    const StudyRecord& record, bool keep_samples) {
-  ResultsWriter writer(path, scenario, result.columns.input_names, result.columns.rows(),
-                       keep_samples);
+  ResultsWriter writer(path, scenario, result.columns.input_names, result.columns.choices,
+                       result.columns.rows(), keep_samples);
   writer.write(result.columns, 0, result.columns.rows());
   writer.finish(record);
 }
@@ -265,7 +273,7 @@ StudyResult slice_samples(const StudyResult& from, std::uint64_t first, std::uin
   piece.samples = count;
   const std::size_t a = first * bodies, b = (first + count) * bodies;
   auto& p = piece.columns;
-  p.set_inputs(from.columns.input_names);
+  p.set_inputs(from.columns.input_names, from.columns.choices);
   p.for_each_column_with(from.columns, [&](auto& to, const auto& column) {
     to.assign(column.begin() + a, column.begin() + b);
   });
@@ -273,14 +281,20 @@ StudyResult slice_samples(const StudyResult& from, std::uint64_t first, std::uin
   return piece;
 }
 
-// Rows go to the results file and, when kept, to the checkpoint.
+// Rows go to the results file and, when kept, to the checkpoint; a stopped part's rows beyond
+// those written in order go to the checkpoint only. `offset_rows` places a part's rows in the
+// study.
 class Tee : public RowSink {
  public:
   Tee(ResultsWriter& writer, Checkpoint* checkpoint) : writer_(writer), checkpoint_(checkpoint) {}
   void write(const StudyColumns& c, std::size_t first, std::size_t end) override {
     writer_.write(c, first, end);
-    if (checkpoint_) checkpoint_->append(c, first, end);
+    if (checkpoint_) checkpoint_->append(c, first, end, offset_rows);
   }
+  void keep(const StudyColumns& c, std::size_t first, std::size_t end) override {
+    if (checkpoint_) checkpoint_->append(c, first, end, offset_rows);
+  }
+  std::size_t offset_rows = 0;
 
  private:
   ResultsWriter& writer_;
@@ -292,48 +306,70 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
                        const std::string& path, int threads, bool keep_samples,
                        const RunControl& control) {
   const Scenario& s = model.scenario();
-  std::vector<std::string> names;
-  for (const auto& input : model.sampler().inputs()) names.push_back(input.name);
-  ResultsWriter writer(path, s, names, options.samples * model.bodies(), keep_samples);
+  const std::vector<std::string> names = model.column_names();
+  const std::size_t choices = model.choice_names().size();
+  ResultsWriter writer(path, s, names, choices, options.samples * model.bodies(), keep_samples);
   std::optional<Checkpoint> checkpoint;
-  StudyResult preloaded;
+  std::vector<Checkpoint::Piece> pieces;  // what an earlier, stopped run finished
   if (control.checkpoint || control.resume) {
     checkpoint.emplace(path + ".checkpoint",
                        Checkpoint::Identity{sha256_hex(s.text), s.study.seed, options.samples,
                                             model.bodies(), names.size()},
-                       names, control.resume);
-    preloaded = checkpoint->take_rows();
-    preloaded.bodies = model.bodies();
+                       names, choices, control.resume);
+    pieces = checkpoint->take_pieces();
   }
+  const std::size_t bodies = model.bodies();
   Tee tee(writer, checkpoint ? &*checkpoint : nullptr);
   options.sink = &tee;
   options.stop = control.stop;
   StudyRun run;
-  run.result.bodies = model.bodies();
-  run.result.columns.set_inputs(names);
+  run.result.bodies = bodies;
+  run.result.columns.set_inputs(names, choices);
   std::uint64_t total = options.samples;
   int rounds = 0;
   Footprint footprint;
+  auto stopped = [&] { return control.stop && control.stop->load(); };
+  std::size_t next_piece = 0;
   while (true) {
-    // Samples [done, total): first those the checkpoint holds, then flown.
-    if (run.result.samples < std::min(total, preloaded.samples)) {
-      StudyResult piece = slice_samples(preloaded, run.result.samples,
-                                        std::min(total, preloaded.samples) - run.result.samples);
-      writer.write(piece.columns, 0, piece.columns.rows());
-      append_rows(run.result, std::move(piece));
-      if (options.progress) options.progress(run.result.samples);
-    }
-    if (run.result.samples < total) {
+    // Samples [done, total) in index order: each run of them taken from the checkpoint when an
+    // earlier run finished it, else flown.
+    while (run.result.samples < total) {
+      const std::uint64_t done = run.result.samples;
+      while (next_piece < pieces.size() &&
+             pieces[next_piece].first_sample + pieces[next_piece].rows.samples <= done)
+        ++next_piece;
+      const bool held = next_piece < pieces.size() && pieces[next_piece].first_sample <= done;
+      if (held) {
+        const Checkpoint::Piece& piece = pieces[next_piece];
+        const std::uint64_t end = std::min(total, piece.first_sample + piece.rows.samples);
+        StudyResult rows = slice_samples(piece.rows, done - piece.first_sample, end - done);
+        writer.write(rows.columns, 0, rows.columns.rows());
+        append_rows(run.result, std::move(rows));
+        if (options.progress) options.progress(run.result.samples);
+        continue;
+      }
+      const std::uint64_t gap_end =
+          next_piece < pieces.size() ? std::min(total, pieces[next_piece].first_sample) : total;
       StudyOptions part = options;
-      part.first_sample = run.result.samples;
-      part.samples = total - run.result.samples;
+      part.first_sample = done;
+      part.samples = gap_end - done;
+      tee.offset_rows = done * bodies;
       StudyResult flown = run_study(model, part);
-      const bool stopped = flown.interrupted;
-      append_rows(run.result, std::move(flown));
-      if (stopped) {
+      if (flown.interrupted) {
         run.result.interrupted = true;
+        // Every sample finished so far is in the checkpoint: those of this run and of earlier ones.
+        std::uint64_t kept = done + flown.finished;
+        for (std::size_t k = next_piece; k < pieces.size(); ++k) kept += pieces[k].rows.samples;
+        run.result.finished = kept;
         return run;  // the writer removes its temporary file; the checkpoint stays
       }
+      append_rows(run.result, std::move(flown));
+    }
+    // A signal that came after the last flight stops the run here, everything kept.
+    if (stopped()) {
+      run.result.interrupted = true;
+      run.result.finished = run.result.samples;
+      return run;
     }
     ++rounds;
     footprint = compute_footprint(impact_table(run.result.columns),
@@ -344,7 +380,7 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
     if (width <= *s.study.target_width || total >= max_samples) break;
     total = next_sample_count(total, width, *s.study.target_width, footprint, max_samples);
   }
-  run.record = make_record(s, run.result, std::move(footprint), s.study.seed, threads);
+  run.record = make_record(s, world, run.result, std::move(footprint), s.study.seed, threads);
   run.record.rounds = rounds;
   writer.finish(run.record);
   if (checkpoint) checkpoint->remove();
@@ -389,7 +425,8 @@ Footprint footprint_from_image(std::span<const std::byte> image) {
   }
 }
 
-ResultsFile read_results(const std::string& path, bool with_samples) {
+ResultsFile read_results(const std::string& path, bool with_samples,
+                         std::optional<std::uint64_t> sweep_case) {
   const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   H5::Exception::dontPrint();
   if (!std::filesystem::exists(path)) throw InputFileError(path + ": no such results file");
@@ -403,30 +440,51 @@ ResultsFile read_results(const std::string& path, bool with_samples) {
     H5::H5File file(path, H5F_ACC_RDONLY);
     if (!file.attrExists("format_version"))
       throw InputFileError(path + ": not a strewn results file (no format_version)");
-    if (file.attrExists("kind") && read_string_attribute(file, "kind") == "sweep")
-      throw InputFileError(path +
-                           ": is the file of a sweep; its studies are under /cases/<index>/ "
-                           "and its summary beside it as CSV");
     r.format_version = read_attribute<int>(file, "format_version");
     if (r.format_version != kResultsFormatVersion)
       throw InputFileError(path + ": results format version " + std::to_string(r.format_version) +
                            ", this strewn reads version " + std::to_string(kResultsFormatVersion) +
                            "; run the study again with this strewn");
-    record.file = path;
-    read_attributes(file, record, run_identity());
-    read_attributes(file, record, run_counters());
+    // A study's own file, or one case of a sweep's file: the same layout under /cases/<index>.
+    const bool sweep = file.attrExists("kind") && read_string_attribute(file, "kind") == "sweep";
+    H5::Group root = file.openGroup("/");
+    if (sweep) {
+      const auto cases = read_attribute<std::uint64_t>(file, "cases");
+      if (!sweep_case)
+        throw InputFileError(path + ": is the file of a sweep of " + std::to_string(cases) +
+                             " cases; name one with --case (0 to " +
+                             std::to_string(cases ? cases - 1 : 0) +
+                             "); the summary of all is beside it as CSV");
+      if (*sweep_case >= cases)
+        throw InputFileError(path + ": the sweep holds cases 0 to " +
+                             std::to_string(cases ? cases - 1 : 0) + ", not " +
+                             std::to_string(*sweep_case));
+      root = file.openGroup("cases/" + std::to_string(*sweep_case));
+      record.file = path + " (case " + std::to_string(*sweep_case) + ")";
+    } else {
+      if (sweep_case)
+        throw InputFileError(path +
+                             ": is the file of one study, not of a sweep; --case is for "
+                             "a sweep's file");
+      record.file = path;
+    }
+    read_attributes(root, record, run_identity());
+    read_attributes(root, record, run_counters());
     {
-      H5::DataSet text = file.openDataSet("scenario");
+      H5::DataSet text = root.openDataSet("scenario");
       text.read(record.scenario_text, text.getStrType());
     }
-    H5::Group samples = file.openGroup("samples");
+    H5::Group samples = root.openGroup("samples");
     r.body_names = read_strings_attribute(samples, "body_names");
     record.body_names = r.body_names;
-    read_footprint(file, record);
+    read_footprint(root, record);
     r.has_samples = samples.nameExists("east");
     if (with_samples && r.has_samples) {
       StudyColumns& c = r.columns;
-      c.set_inputs(read_strings_attribute(samples, "input_names"));
+      std::vector<std::string> names = read_strings_attribute(samples, "input_names");
+      const std::vector<std::string> choices = read_strings_attribute(samples, "choice_names");
+      names.insert(names.end(), choices.begin(), choices.end());
+      c.set_inputs(std::move(names), choices.size());
       c.for_each_column([&](std::string_view name, auto& column) {
         using Value = typename std::decay_t<decltype(column)>::value_type;
         column = read_vector<Value>(samples, std::string(name));

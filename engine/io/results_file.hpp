@@ -13,6 +13,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <memory>
+#include <optional>
 #include <span>
 #include <string>
 #include <vector>
@@ -23,7 +24,12 @@
 
 namespace strewn {
 
-inline constexpr int kResultsFormatVersion = 2;  // 2: /footprint
+// 2: /footprint; 3: the model-range columns and warnings, the choice columns, "all" as one release
+inline constexpr int kResultsFormatVersion = 3;
+
+/// The temporary name a results file is written under until it is complete: beside it, with
+/// ".partial-<process id>" added.
+std::string temporary_path_of(const std::string& path);
 
 /// Writes a results file as a study runs: rows are appended round by round (a RowSink, fed on
 /// the study's writer thread), then finish() adds the counts, closes the file and renames it into
@@ -32,7 +38,8 @@ inline constexpr int kResultsFormatVersion = 2;  // 2: /footprint
 class ResultsWriter : public RowSink {
  public:
   ResultsWriter(const std::string& path, const Scenario& scenario,
-                const std::vector<std::string>& input_names, std::size_t rows, bool keep_samples);
+                const std::vector<std::string>& input_names, std::size_t choices, std::size_t rows,
+                bool keep_samples);
   ~ResultsWriter() override;
   ResultsWriter(const ResultsWriter&) = delete;
   ResultsWriter& operator=(const ResultsWriter&) = delete;
@@ -95,9 +102,11 @@ struct ResultsFile {
   StudyColumns columns;
 };
 
-/// Reads a results file. Throws InputFileError for a missing, truncated or foreign file, or
-/// another format version.
-ResultsFile read_results(const std::string& path, bool with_samples = true);
+/// Reads a results file, or with `sweep_case` one case of a sweep's file (its /cases/<index>).
+/// Throws InputFileError for a missing, truncated or foreign file, another format version, a
+/// sweep's file read without a case, or a case the sweep does not hold.
+ResultsFile read_results(const std::string& path, bool with_samples = true,
+                         std::optional<std::uint64_t> sweep_case = std::nullopt);
 
 /// The footprint as bytes (an in-memory HDF5 image of /footprint, through the same code as the
 /// results file), to pass between processes, and back.

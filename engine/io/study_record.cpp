@@ -1,5 +1,11 @@
 #include "io/study_record.hpp"
 
+#include <algorithm>
+#include <array>
+#include <functional>
+#include <limits>
+
+#include "core/text.hpp"
 #include "core/version.hpp"
 #include "io/trace_report.hpp"
 
@@ -43,11 +49,125 @@ ImpactTable impact_table(const StudyColumns& c) {
   t.status = c.status;
   t.input_names = c.input_names;
   for (const auto& column : c.inputs) t.inputs.emplace_back(column);
+  t.categorical.assign(c.input_names.size(), false);
+  for (std::size_t d = c.sampled_inputs(); d < c.input_names.size(); ++d)
+    t.categorical[d] = c.input_names[d] == "wind.member";
+  // The canopy state ranks too when it varies (a canopy that may open partly or fail): its codes
+  // full, partial, failed follow the drag area down, an order Spearman can rank.
+  if (std::adjacent_find(c.canopy.begin(), c.canopy.end(), std::not_equal_to<>()) !=
+      c.canopy.end()) {
+    t.storage.emplace_back(c.canopy.begin(), c.canopy.end());
+    t.input_names.push_back("canopy");
+    t.inputs.emplace_back(t.storage.back());
+    t.categorical.push_back(false);
+  }
   return t;
 }
 
-StudyRecord make_record(const Scenario& s, const StudyResult& result, Footprint footprint,
-                        std::uint64_t seed, int threads) {
+std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
+                                         const StudyColumns& c) {
+  const std::size_t bodies = s.bodies.size();
+  // Per body and flag: rows, and the most extreme value among the flagged rows.
+  struct Tally {
+    std::uint64_t count = 0;
+    double extreme = std::numeric_limits<double>::quiet_NaN(), second = extreme;
+  };
+  std::vector<std::array<Tally, kModelRangeFlagCount + 1>> tally(bodies);  // last: floats
+  std::vector<std::uint64_t> rows(bodies, 0);
+  auto most = [](double& into, double v) {
+    if (!(v <= into)) into = v;  // NaN-safe maximum
+  };
+  for (std::size_t i = 0; i < c.rows(); ++i) {
+    const std::size_t b = c.body[i];
+    if (b >= bodies) continue;
+    ++rows[b];
+    const std::uint8_t flags = c.regime_flags[i];
+    for (int bit = 0; bit < kModelRangeFlagCount && flags; ++bit) {
+      const auto flag = static_cast<ModelRangeFlag>(1u << bit);
+      if (!(flags & flag)) continue;
+      Tally& t = tally[b][static_cast<std::size_t>(bit)];
+      ++t.count;
+      switch (flag) {
+        case kReynoldsBelowLaw:
+          if (!(c.reynolds_beyond[i] >= t.extreme)) t.extreme = c.reynolds_beyond[i];
+          break;
+        case kReynoldsAboveLaw:
+          most(t.extreme, c.reynolds_beyond[i]);
+          break;
+        case kMachBeyondTable:
+        case kMachWithoutTable:
+          most(t.extreme, c.mach_beyond[i]);
+          break;
+        case kAboveMedium:
+        case kAboveWind:
+          most(t.extreme, c.altitude_max[i]);
+          break;
+        case kLongFlight:
+          most(t.extreme, c.time[i]);
+          break;
+        case kFrameOffset:
+          most(t.extreme, c.curvature_offset[i]);
+          most(t.second, c.rotation_offset[i]);
+          break;
+      }
+    }
+    if (c.status[i] == static_cast<std::uint8_t>(FlightStatus::floats))
+      ++tally[b][kModelRangeFlagCount].count;
+  }
+  // The limits of each body, from its nominal flight in the scenario's medium and wind (for an
+  // ensemble, the lowest top among the members).
+  double wind_top = std::numeric_limits<double>::infinity();
+  for (const auto& layers : s.wind.member_layers)
+    if (layers.size() >= 2) wind_top = std::min(wind_top, layers.back().altitude);
+  std::vector<RangeWarning> out;
+  for (std::size_t b = 0; b < bodies; ++b) {
+    const FlightInputs nominal = nominal_flight(s, b);
+    const Environment environment{&world.medium, nominal.conditions, &world.wind, s.site.ground};
+    ModelLimits limits = model_limits(nominal.body, environment);
+    if (!s.wind.member_layers.empty()) limits.wind_top = wind_top;
+    auto counted = [&](std::uint64_t count) {
+      return printf_text("%s: %llu of %llu samples (%.3g %%): ", s.bodies[b].name.c_str(),
+                         static_cast<unsigned long long>(count),
+                         static_cast<unsigned long long>(rows[b]),
+                         100.0 * static_cast<double>(count) / static_cast<double>(rows[b]));
+    };
+    for (int bit = 0; bit < kModelRangeFlagCount; ++bit) {
+      const Tally& t = tally[b][static_cast<std::size_t>(bit)];
+      if (t.count == 0) continue;
+      const auto flag = static_cast<ModelRangeFlag>(1u << bit);
+      RangeWarning w{s.bodies[b].name, to_string(flag),        t.count, rows[b],
+                     t.extreme,        limit_of(flag, limits), ""};
+      if (flag == kLongFlight) {
+        w.limit = kLongFlightTime;
+        w.text = counted(t.count) + describe_long_flight(t.extreme);
+      } else if (flag == kFrameOffset) {
+        w.limit = s.study.tolerance;
+        w.extreme = std::max(t.extreme, t.second);  // the larger offset
+        w.text = counted(t.count) + describe_frame_offset(t.extreme, t.second, s.study.tolerance);
+      } else {
+        w.text = counted(t.count) + describe(flag, t.extreme, w.limit, limits.drag_model);
+      }
+      out.push_back(std::move(w));
+    }
+    if (const std::uint64_t floats = tally[b][kModelRangeFlagCount].count) {
+      RangeWarning w{s.bodies[b].name,
+                     "floats",
+                     floats,
+                     rows[b],
+                     std::numeric_limits<double>::quiet_NaN(),
+                     std::numeric_limits<double>::quiet_NaN(),
+                     ""};
+      w.text = counted(floats) +
+               "the body is lighter than the medium at the ground: it would rise or hover, never "
+               "land (status floats; counted as failed)";
+      out.push_back(std::move(w));
+    }
+  }
+  return out;
+}
+
+StudyRecord make_record(const Scenario& s, const World& world, const StudyResult& result,
+                        Footprint footprint, std::uint64_t seed, int threads) {
   StudyRecord r;
   r.title = s.title;
   r.sampling = to_string(s.study.sampling);
@@ -67,7 +187,9 @@ StudyRecord make_record(const Scenario& s, const StudyResult& result, Footprint 
   r.target_width = s.study.target_width;
   r.max_samples = static_cast<std::uint64_t>(s.study.max_samples);
   for (const auto& b : s.bodies) r.body_names.push_back(b.name);
+  r.tolerance = s.study.tolerance;
   r.footprint = std::move(footprint);
+  r.range_warnings = range_warnings(s, world, result.columns);
   return r;
 }
 

@@ -17,6 +17,17 @@
 
 namespace strewn {
 
+/// How many samples of a body left one of its models' ranges, or flew where the models'
+/// assumptions stop being plausible (flight/model_range.hpp), with the most extreme value met.
+struct RangeWarning {
+  std::string group;  ///< the body
+  std::string kind;   ///< a ModelRangeFlag's name, or "floats" (lighter than the medium)
+  std::uint64_t count = 0, rows = 0;
+  double extreme = 0.0;  ///< the most extreme value met, in the limit's unit (frame: the larger)
+  double limit = 0.0;    ///< what it was held against (NaN when no single number)
+  std::string text;      ///< the warning in words, with the counts
+};
+
 struct StudyRecord {
   std::string title, sampling;
   std::string engine_version, created, scenario_sha256, scenario_text, file;
@@ -31,7 +42,9 @@ struct StudyRecord {
   std::uint64_t max_samples = 0;
   int rounds = 1;  ///< parts the study was run in (more than 1 when grown to target_width)
   std::vector<std::string> body_names;
+  double tolerance = 0.0;  ///< study.tolerance, m
   Footprint footprint;
+  std::vector<RangeWarning> range_warnings;  ///< per body, in the order of the flags
 };
 
 /// What identifies a run and what it counted, each with its attribute name in results files: one
@@ -57,8 +70,13 @@ FootprintSettings footprint_settings(const Scenario& scenario, const World& worl
 /// A view of a study's rows for the footprint statistics.
 ImpactTable impact_table(const StudyColumns& columns);
 
-/// The record of a study: its scenario, counts and footprint.
-StudyRecord make_record(const Scenario& scenario, const StudyResult& result, Footprint footprint,
-                        std::uint64_t seed, int threads);
+/// Every body's samples that left its models' ranges or their assumptions, counted from the
+/// rows' flags (flight/model_range.hpp) and statuses.
+std::vector<RangeWarning> range_warnings(const Scenario& scenario, const World& world,
+                                         const StudyColumns& columns);
+
+/// The record of a study: its scenario, counts, range warnings and footprint.
+StudyRecord make_record(const Scenario& scenario, const World& world, const StudyResult& result,
+                        Footprint footprint, std::uint64_t seed, int threads);
 
 }  // namespace strewn

@@ -11,6 +11,7 @@
 #include "core/errors.hpp"
 #include "core/text.hpp"
 #include "core/version.hpp"
+#include "io/footprint_report.hpp"
 #include "io/hdf5_support.hpp"
 #include "io/results_file.hpp"
 
@@ -77,6 +78,9 @@ std::string write_sweep_file(const std::string& path, const std::string& sweep_t
       for (std::size_t a = 0; a < axis_keys.size(); ++a)
         axis_columns[a].push_back(cases[i].values.at(a));
       std::vector<std::pair<std::string, double>> row_numbers;
+      // What each case ran: its samples (grown toward target_width or not), and its warnings.
+      row_numbers.emplace_back("samples", static_cast<double>(r.samples));
+      row_numbers.emplace_back("warnings", static_cast<double>(record_warnings(r).size()));
       for (const auto& g : r.footprint.groups)
         for (const auto& c : g.containment) {
           row_numbers.emplace_back(g.name + ".radius_" + level_text(c.level), c.radius);
@@ -84,6 +88,10 @@ std::string write_sweep_file(const std::string& path, const std::string& sweep_t
                                    c.radius_upper ? *c.radius_upper : std::nan(""));
         }
       std::vector<std::pair<std::string, std::string>> row_texts;
+      row_texts.emplace_back("target_width_met",
+                             !r.target_width                                          ? "none"
+                             : r.footprint.widest_relative_width() <= *r.target_width ? "yes"
+                                                                                      : "no");
       for (const auto& k : r.footprint.rules)
         row_texts.emplace_back(k.group + "." + k.rule + ".status", to_string(k.status));
       if (i == 0) {

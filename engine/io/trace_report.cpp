@@ -37,6 +37,54 @@ nlohmann::json range_json(const Range& r) {
   return {{"min", r.min}, {"max", r.max}};
 }
 
+// The values flown, by the scenario's key paths (a body's keys under its name).
+nlohmann::json flown_inputs(const TraceRecord& t) {
+  const Scenario& s = *t.scenario;
+  const BodySpec& spec = s.bodies[t.body_index];
+  const Body& b = t.inputs.body;
+  const std::string n = spec.name + ".";
+  nlohmann::json j;
+  j[n + "mass"] = b.mass;
+  if (b.drag.model == DragModel::area) {
+    j[n + "drag.cd"] = b.drag.cd;
+    j[n + "drag.area"] = b.drag.area;
+    if (b.volume > 0.0) j[n + "drag.volume"] = b.volume;
+  } else {
+    j[n + "drag.diameter"] = b.drag.diameter;
+    if (b.drag.model == DragModel::shape) j[n + "drag.sphericity"] = b.drag.sphericity;
+  }
+  if (b.has_canopy) {
+    const Canopy& c = b.canopy;
+    if (c.trigger == Canopy::Trigger::time)
+      j[n + "parachute.deploy_after"] = c.deploy_after;
+    else
+      j[n + "parachute.deploy_height"] = c.deploy_height;
+    j[n + "parachute.fill_time"] = c.fill_time;
+    j[n + "parachute.drag_area"] = c.drag_area;
+  }
+  if (s.medium.model != Medium::Kind::uniform)
+    j["medium.temperature_offset"] = t.inputs.conditions.temperature_offset;
+  j["medium.density_factor"] = t.inputs.conditions.density_factor;
+  const ReleaseSpec& r = s.release;
+  const std::pair<const char*, const Uncertain*> release[] = {{"altitude", &r.altitude},
+                                                              {"east", &r.east},
+                                                              {"north", &r.north},
+                                                              {"speed", &r.speed},
+                                                              {"track", &r.track},
+                                                              {"climb", &r.climb},
+                                                              {"along_error", &r.along_error},
+                                                              {"cross_error", &r.cross_error},
+                                                              {"delay", &r.delay}};
+  for (const auto& [key, value] : release) j[std::string("release.") + key] = value->nominal();
+  return j;
+}
+
+// "477 m left of track" for a crossrange of -477 m (positive is to the right of the track).
+std::string side_of_track(double crossrange) {
+  return printf_text("%.2f m %s of track", std::abs(crossrange),
+                     crossrange < 0.0 ? "left" : "right");
+}
+
 std::string fixed(double v, int digits) {
   return printf_text("%.*f", digits, v);
 }
@@ -70,6 +118,7 @@ TraceRecord trace_body(const Scenario& scenario, const World& world, const std::
   const FlightResult first = fly(t.inputs.body, environment, t.inputs.release, options);
   options.record_interval = std::max(first.time / 400.0, 1e-3);
   t.result = fly(t.inputs.body, environment, t.inputs.release, options, &t.recorder);
+  t.warnings = flight_warnings(t.result, model_limits(t.inputs.body, environment), t.tolerance);
   return t;
 }
 
@@ -80,17 +129,30 @@ nlohmann::json trace_json(const TraceRecord& t) {
   j["scenario"] = t.scenario->path;
   j["title"] = t.scenario->title;
   j["body"] = t.scenario->bodies[t.body_index].name;
-  j["inputs"] = "nominal (every distribution at its median; canopy fully open; no burst velocity)";
+  j["inputs"] = flown_inputs(t);
+  j["flown"] =
+      "nominal: every distribution at its median, the canopy fully open, no burst velocity";
   j["status"] = to_string(r.status);
-  j["impact"] = {{"time", r.time},
-                 {"east", r.position.x()},
-                 {"north", r.position.y()},
-                 {"speed", r.speed},
-                 {"energy", r.energy},
-                 {"angle", r.angle},
-                 {"velocity", {r.velocity.x(), r.velocity.y(), r.velocity.z()}},
-                 {"downrange", downrange},
-                 {"crossrange", crossrange}};
+  if (r.status == FlightStatus::landed) {
+    j["impact"] = {{"time", r.time},
+                   {"east", r.position.x()},
+                   {"north", r.position.y()},
+                   {"speed", r.speed},
+                   {"energy", r.energy},
+                   {"angle", r.angle},
+                   {"velocity", {r.velocity.x(), r.velocity.y(), r.velocity.z()}},
+                   {"downrange", downrange},
+                   {"crossrange", crossrange}};
+    j["end"] = nullptr;
+  } else {
+    // No impact: where and when the flight ended instead.
+    j["impact"] = nullptr;
+    j["end"] = {{"time", r.time},
+                {"east", r.position.x()},
+                {"north", r.position.y()},
+                {"altitude", r.position.z()},
+                {"velocity", {r.velocity.x(), r.velocity.y(), r.velocity.z()}}};
+  }
   const auto& rel = t.inputs.release;
   j["release"] = {{"east", rel.position.x()},
                   {"north", rel.position.y()},
@@ -103,7 +165,7 @@ nlohmann::json trace_json(const TraceRecord& t) {
                  {"quadratic_to_linear", range_json(t.recorder.quadratic_to_linear())},
                  {"drag_model", to_string(t.inputs.body.drag.model)},
                  {"quasi_steady", r.quasi_steady},
-                 {"warnings", t.recorder.warnings(r)}};
+                 {"warnings", t.warnings}};
   j["integration"] = {
       {"tolerance", t.tolerance}, {"steps", r.steps}, {"evaluations", r.evaluations}};
   nlohmann::json points = nlohmann::json::array();
@@ -144,12 +206,18 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
   out << "strewn trace: " << (t.scenario->title.empty() ? t.scenario->path : t.scenario->title)
       << "\nbody \"" << body.name << "\", every input at its median (nominal flight)\n\n";
   out << "status    " << to_string(r.status) << "\n";
-  out << "impact    time " << fixed(r.time, 2) << " s   east " << fixed(r.position.x(), 2)
-      << " m   north " << fixed(r.position.y(), 2) << " m\n";
-  out << "          downrange " << fixed(downrange, 2) << " m   crossrange " << fixed(crossrange, 2)
-      << " m (right of track)\n";
-  out << "          speed " << general(r.speed) << " m/s   energy " << general(r.energy)
-      << " J   angle " << fixed(r.angle, 1) << " deg below horizontal\n";
+  if (r.status == FlightStatus::landed) {
+    out << "impact    time " << fixed(r.time, 2) << " s   east " << fixed(r.position.x(), 2)
+        << " m   north " << fixed(r.position.y(), 2) << " m\n";
+    out << "          downrange " << fixed(downrange, 2) << " m, " << side_of_track(crossrange)
+        << " (from the release point)\n";
+    out << "          speed " << general(r.speed) << " m/s   energy " << general(r.energy)
+        << " J   angle " << fixed(r.angle, 1) << " deg below horizontal\n";
+  } else {
+    out << "no impact the flight ended at " << fixed(r.time, 2) << " s, east "
+        << fixed(r.position.x(), 2) << " m, north " << fixed(r.position.y(), 2) << " m, altitude "
+        << fixed(r.position.z(), 2) << " m\n";
+  }
   if (!std::isnan(r.deploy_time))
     out << "canopy    deployed at " << fixed(r.deploy_time, 2) << " s\n";
   const auto& rec = t.recorder;
@@ -160,7 +228,7 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
         << "\n          quadratic/linear drag " << general(rec.quadratic_to_linear().min) << " .. "
         << general(rec.quadratic_to_linear().max);
   out << "\nsteps     " << r.steps << " (tolerance " << t.tolerance << " m at the impact point)\n";
-  for (const auto& w : rec.warnings(r)) out << "warning   " << w << "\n";
+  for (const auto& w : t.warnings) out << "warning   " << w << "\n";
   if (r.quasi_steady)
     out << "note      the settling (quasi-steady) form carried the fall after the release "
            "transient\n";

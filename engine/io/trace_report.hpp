@@ -18,6 +18,8 @@ struct TraceRecord {
   FlightResult result;
   TrajectoryRecorder recorder;
   double tolerance = 0.05;
+  /// Where the flight left its models' ranges or their assumptions, in words (model_range.hpp).
+  std::vector<std::string> warnings;
 };
 
 /// Flies the nominal flight of one body and records it. Throws UsageError for an unknown body.

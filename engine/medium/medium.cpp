@@ -21,8 +21,13 @@ void Medium::tabulate(const Model& model, double step, const std::vector<double>
   struct Point {
     double t, p, rho;
   };
+  lowest_temperature_ = std::numeric_limits<double>::infinity();
+  highest_temperature_ = -std::numeric_limits<double>::infinity();
   auto at = [&](double z) {
     const auto [t, p] = model(std::clamp(z, bottom_, top_));
+    // Temperature is linear between the points tabulated, so its extremes are among them.
+    lowest_temperature_ = std::min(lowest_temperature_, t);
+    highest_temperature_ = std::max(highest_temperature_, t);
     return Point{t, p, p / (kGasConstant * t)};
   };
   auto piece = [](Cell& c, int k, const Point& a, const Point& b, double width) {

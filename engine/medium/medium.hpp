@@ -79,6 +79,11 @@ class Medium {
   /// Density, viscosity and speed of sound.
   [[nodiscard]] Air air(double altitude, const MediumConditions& c) const;
 
+  /// The lowest and highest tabulated temperature, K, without offset (gases; NaN for uniform):
+  /// bounds of the viscosity and speed of sound anywhere in the medium.
+  [[nodiscard]] double lowest_temperature() const { return lowest_temperature_; }
+  [[nodiscard]] double highest_temperature() const { return highest_temperature_; }
+
   /// Temperature (K) and pressure (Pa) with the offset applied (gases; NaN for uniform).
   [[nodiscard]] double temperature(double altitude, const MediumConditions& c) const;
   [[nodiscard]] double pressure(double altitude) const;
@@ -138,6 +143,8 @@ class Medium {
   double bottom_ = 0.0, top_ = 0.0;               // geometric altitude range, m
   double inverse_step_ = 1.0, last_index_ = 0.0;  // last_index_: the number of cells in range
   std::vector<Cell> cells_;
+  double lowest_temperature_ = std::numeric_limits<double>::quiet_NaN();
+  double highest_temperature_ = std::numeric_limits<double>::quiet_NaN();
   double uniform_density_ = 0.0, uniform_viscosity_ = 0.0;
   double uniform_sound_speed_ = std::numeric_limits<double>::infinity();
 };

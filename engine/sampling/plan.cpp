@@ -56,6 +56,7 @@ void SamplePlan::Cursor::uniforms(std::uint64_t sample, std::span<double> out) {
       return;
     }
     case SamplingPlan::sobol: {
+      if (dims == 0) return;  // a study of fixed inputs: no engine, nothing to draw
       if (sample != next_) sobol_->seed(sample);  // direct access by index (Gray code)
       next_ = sample + 1;
       for (std::size_t d = 0; d < dims; ++d) {

@@ -110,7 +110,7 @@ class Loader {
 
   std::string resolve(const std::string& file) const {
     std::filesystem::path p(file);
-    if (p.is_relative()) p = folder_ / p;
+    if (p.is_relative()) p = (folder_ / p).lexically_normal();
     return p.string();
   }
 
@@ -189,6 +189,15 @@ class Loader {
           diagnostics_.add(key, line,
                            file + ":" + std::to_string(row_line) +
                                ": altitudes must increase strictly down the file");
+        // Hydrostatic balance: pressure falls with height everywhere in a real atmosphere; a
+        // level with more pressure than the one below it is a mistake in the file (columns
+        // swapped, a unit of hPa among Pa).
+        else if (i > 0 && !(l.pressure < levels[i - 1].pressure))
+          diagnostics_.add(key, line,
+                           file + ":" + std::to_string(row_line) + ": pressure " +
+                               format_number(l.pressure) + " Pa does not fall from the " +
+                               format_number(levels[i - 1].pressure) +
+                               " Pa of the level below; pressure must fall with height");
       }
       if (levels.size() < 2)
         diagnostics_.add(key, line, file + ": a sounding needs at least two levels");
@@ -584,7 +593,8 @@ class Loader {
 
   void read_output(Table o) {
     if (auto file = o.text("file")) {
-      scenario_.output.file = *file;
+      // Like every path in a scenario, relative to the scenario's own folder.
+      scenario_.output.file = resolve(*file);
       scenario_.output.file_line = o.line_of("file");
     }
     if (auto samples = o.boolean("samples")) scenario_.output.samples = *samples;
@@ -626,11 +636,21 @@ class Loader {
                            " m above mean sea level (site.ground)");
     if (scenario_.medium.model == Medium::Kind::profile && scenario_.medium.profile.size() >= 2) {
       const auto& levels = scenario_.medium.profile;
-      if (ground < levels.front().altitude || r.altitude.nominal() > levels.back().altitude)
+      // Every release altitude a study may draw must lie within the sounding (the same share
+      // as the physical ranges allow, 1e-6), not only the nominal one.
+      const double top = levels.back().altitude;
+      if (ground < levels.front().altitude || r.altitude.nominal() > top)
         diagnostics_.add("medium.profile", line_for("medium", "profile"),
                          "the sounding covers " + format_number(levels.front().altitude) + " .. " +
-                             format_number(levels.back().altitude) +
+                             format_number(top) +
                              " m; it must reach from the ground to the release altitude");
+      else if (r.altitude.probability_above(top) > kOutsideTolerance)
+        diagnostics_.add("release.altitude", line_for("release", "altitude"),
+                         "the release altitude may reach above the sounding's top at " +
+                             format_number(top) + " m (probability " +
+                             printf_text("%.3g", r.altitude.probability_above(top)) +
+                             "); extend the sounding, or truncate the altitude with max = " +
+                             format_number(top));
     }
     // Correlations must name sampled inputs, each pair once.
     std::vector<std::string> names;

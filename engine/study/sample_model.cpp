@@ -80,6 +80,21 @@ SampleModel::SampleModel(const Scenario& s, const World& world, std::uint64_t sa
     layer_factor_ = Eigen::LLT<Eigen::MatrixXd>(kernel).matrixL();
   }
   for (const auto& layers : s.wind.member_layers) members_.emplace_back(layers, s.site.ground);
+  if (s.wind.uncertainty == WindUncertaintyModel::ensemble) choice_names_.push_back("wind.member");
+  if (s.wind.uncertainty == WindUncertaintyModel::layered) {
+    choice_names_.push_back("wind.perturbation_east");
+    choice_names_.push_back("wind.perturbation_north");
+  }
+  if (s.release.has_burst)
+    for (const char* axis : {"east", "north", "up"})
+      choice_names_.push_back(std::string("release.burst.") + axis);
+}
+
+std::vector<std::string> SampleModel::column_names() const {
+  std::vector<std::string> names;
+  for (const auto& input : sampler_.inputs()) names.push_back(input.name);
+  names.insert(names.end(), choice_names_.begin(), choice_names_.end());
+  return names;
 }
 
 SampleModel::Workspace::Workspace(const SampleModel& model)
@@ -115,13 +130,17 @@ void SampleModel::prepare(std::uint64_t sample, Workspace& w) const {
       north.noalias() = layer_factor_.triangularView<Eigen::Lower>() * nn;
       east *= scenario_.wind.speed_sd;
       north *= scenario_.wind.speed_sd;
+      w.perturbation_east_ = east.mean();
+      w.perturbation_north_ = north.mean();
       break;
     }
     case WindUncertaintyModel::ensemble: {
       RandomStream stream(scenario_.study.seed, sample, purpose::wind);
-      const auto k =
-          static_cast<std::size_t>(stream.uniform() * static_cast<double>(members_.size()));
-      w.wind_ = &members_[std::min(k, members_.size() - 1)];
+      const auto k = std::min(
+          static_cast<std::size_t>(stream.uniform() * static_cast<double>(members_.size())),
+          members_.size() - 1);
+      w.wind_ = &members_[k];
+      w.member_ = static_cast<double>(k);
       return;
     }
   }
@@ -129,7 +148,8 @@ void SampleModel::prepare(std::uint64_t sample, Workspace& w) const {
   w.wind_ = &w.perturbed_;
 }
 
-FlightInputs SampleModel::flight(std::uint64_t sample, std::size_t b, const Workspace& w) const {
+FlightInputs SampleModel::flight(std::uint64_t sample, std::size_t b, const Workspace& w,
+                                 std::span<double> choices) const {
   const auto v = std::span<const double>(w.values_);
   const BodySpec& spec = scenario_.bodies[b];
   const BodyParameters& p = bodies_[b];
@@ -180,7 +200,17 @@ FlightInputs SampleModel::flight(std::uint64_t sample, std::size_t b, const Work
     const double z = 2.0 * stream.uniform() - 1.0;
     const double phi = 2.0 * constants::pi * stream.uniform();
     const double r = std::sqrt(std::max(0.0, 1.0 - z * z));
-    in.release.velocity += burst_.get(v) * Vec3(r * std::cos(phi), r * std::sin(phi), z);
+    const Vec3 burst = burst_.get(v) * Vec3(r * std::cos(phi), r * std::sin(phi), z);
+    in.release.velocity += burst;
+    if (!choices.empty()) std::copy(burst.data(), burst.data() + 3, choices.end() - 3);
+  }
+  // The wind's choices come first, in the order of choice_names().
+  if (!choices.empty()) {
+    if (scenario_.wind.uncertainty == WindUncertaintyModel::ensemble) choices[0] = w.member_;
+    if (scenario_.wind.uncertainty == WindUncertaintyModel::layered) {
+      choices[0] = w.perturbation_east_;
+      choices[1] = w.perturbation_north_;
+    }
   }
   return in;
 }

@@ -5,6 +5,7 @@
 #include <Eigen/Core>
 #include <cstdint>
 #include <span>
+#include <string>
 #include <vector>
 
 #include "sampling/input_sampler.hpp"
@@ -22,6 +23,15 @@ class SampleModel {
   [[nodiscard]] const InputSampler& sampler() const { return sampler_; }
   [[nodiscard]] std::size_t bodies() const { return bodies_.size(); }
 
+  /// The sample's own random choices that flight() records (besides the canopy state, a column of
+  /// its own), by name: "wind.member" (the ensemble member drawn, counted from 0),
+  /// "wind.perturbation_east" and "wind.perturbation_north" (the layered perturbation's mean over
+  /// the layers, m/s), "release.burst.east", "release.burst.north" and "release.burst.up" (the
+  /// burst velocity, m/s). Only those the scenario makes random.
+  [[nodiscard]] const std::vector<std::string>& choice_names() const { return choice_names_; }
+  /// The names of a study's named columns: the sampled inputs, then the choices.
+  [[nodiscard]] std::vector<std::string> column_names() const;
+
   class Workspace {
    public:
     explicit Workspace(const SampleModel& model);
@@ -36,13 +46,15 @@ class SampleModel {
     std::vector<double> values_, add_east_, add_north_, normals_;
     WindProfile perturbed_;
     const WindProfile* wind_ = nullptr;
+    double member_ = 0.0, perturbation_east_ = 0.0, perturbation_north_ = 0.0;
   };
 
   /// Draws sample i's inputs and wind into the workspace (call before flight()).
   void prepare(std::uint64_t sample, Workspace& workspace) const;
-  /// The flight inputs of body b in the prepared sample, with its canopy state drawn.
-  [[nodiscard]] FlightInputs flight(std::uint64_t sample, std::size_t body,
-                                    const Workspace& w) const;
+  /// The flight inputs of body b in the prepared sample, with its canopy state drawn; the
+  /// sample's choices for this body go into `choices` (choice_names() order) when it is given.
+  [[nodiscard]] FlightInputs flight(std::uint64_t sample, std::size_t body, const Workspace& w,
+                                    std::span<double> choices = {}) const;
 
  private:
   // A flight parameter: a fixed number, or the value of sampled input `index`.
@@ -68,6 +80,7 @@ class SampleModel {
   WindProfile base_wind_;             // the profile perturbations apply to
   std::vector<WindProfile> members_;  // ensemble
   Eigen::MatrixXd layer_factor_;      // layered: Cholesky factor of exp(-|dz|/L)
+  std::vector<std::string> choice_names_;
 };
 
 }  // namespace strewn

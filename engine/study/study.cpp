@@ -11,14 +11,7 @@
 namespace strewn {
 
 void StudyColumns::resize(std::size_t rows, std::size_t input_count) {
-  body.resize(rows);
-  east.resize(rows);
-  north.resize(rows);
-  time.resize(rows);
-  speed.resize(rows);
-  energy.resize(rows);
-  status.resize(rows);
-  canopy.resize(rows);
+  std::apply([&](const auto&... c) { ((this->*c.second).resize(rows), ...); }, fixed_columns());
   inputs.assign(input_count, std::vector<double>(rows));
 }
 
@@ -58,22 +51,25 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
   const Scenario& s = model.scenario();
   const std::size_t bodies = model.bodies();
   const std::size_t dims = model.sampler().dimensions();
+  const std::size_t choices = model.choice_names().size();
   StudyResult result;
   result.samples = options.samples;
   result.bodies = bodies;
-  result.columns.resize(options.samples * bodies, dims);
-  for (const auto& input : model.sampler().inputs())
-    result.columns.input_names.push_back(input.name);
+  result.columns.set_inputs(model.column_names(), choices);
+  result.columns.resize(options.samples * bodies, dims + choices);
   const FlightOptions flight = flight_options(s);
   StudyColumns& c = result.columns;
 
-  auto run_block = [&](std::uint64_t first, std::uint64_t last) {
+  // Returns the samples it finished: all of them, or fewer when the study is stopped.
+  auto run_block = [&](std::uint64_t first, std::uint64_t last) -> std::uint64_t {
     SampleModel::Workspace w(model);  // once per block: nothing is allocated per sample
+    std::vector<double> chosen(choices);
     for (std::uint64_t local = first; local < last; ++local) {
+      if (options.stop && options.stop->load(std::memory_order_relaxed)) return local - first;
       const std::uint64_t i = options.first_sample + local;
       model.prepare(i, w);
       for (std::size_t b = 0; b < bodies; ++b) {
-        const FlightInputs in = model.flight(i, b, w);
+        const FlightInputs in = model.flight(i, b, w, chosen);
         const Environment env{&model.world().medium, in.conditions, &w.wind(), s.site.ground};
         const FlightResult r = fly(in.body, env, in.release, flight);
         const std::size_t row = local * bodies + b;
@@ -85,9 +81,17 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
         c.energy[row] = r.energy;
         c.status[row] = static_cast<std::uint8_t>(r.status);
         c.canopy[row] = static_cast<std::uint8_t>(in.body.canopy_state());
+        c.regime_flags[row] = r.regime.flags;
+        c.reynolds_beyond[row] = static_cast<float>(r.regime.reynolds_beyond);
+        c.mach_beyond[row] = static_cast<float>(r.regime.mach_beyond);
+        c.altitude_max[row] = static_cast<float>(r.regime.altitude_max);
+        c.curvature_offset[row] = static_cast<float>(r.curvature_offset);
+        c.rotation_offset[row] = static_cast<float>(r.rotation_offset);
         for (std::size_t d = 0; d < dims; ++d) c.inputs[d][row] = w.values()[d];
+        for (std::size_t k = 0; k < choices; ++k) c.inputs[dims + k][row] = chosen[k];
       }
     }
+    return last - first;
   };
 
   // Blocks are grouped in rounds of 64. The thread that completes a round writes every finished
@@ -95,7 +99,12 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
   // rechecks after letting go), so writing runs beside flying on the threads allowed, with no
   // barrier between rounds. Each row depends only on its sample index, never on which thread or
   // round handled it.
-  const std::uint64_t block = std::max<std::size_t>(1, options.block);
+  // Blocks small enough that every thread gets several when samples are few (a study of slow
+  // flights, or the gaps a resumed study fills); the rows do not depend on the block size.
+  const int workers = tbb::this_task_arena::max_concurrency();
+  const std::uint64_t block =
+      std::clamp<std::uint64_t>(options.samples / (4 * static_cast<std::uint64_t>(workers)), 1,
+                                std::max<std::size_t>(1, options.block));
   const std::uint64_t blocks = (options.samples + block - 1) / block;
   constexpr std::uint64_t kBlocksPerRound = 64;
   const std::uint64_t rounds = (blocks + kBlocksPerRound - 1) / kBlocksPerRound;
@@ -123,21 +132,31 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
   // One worker per thread allowed, each taking the next block in index order, so rounds finish
   // nearly in order and are written while later ones fly.
   std::atomic<std::uint64_t> next_block{0};
-  const int workers = tbb::this_task_arena::max_concurrency();
+  std::vector<std::uint64_t> block_done(blocks, 0);  // samples finished per block, from its start
   tbb::parallel_for(0, workers, [&](int) {
     for (std::uint64_t k = next_block++; k < blocks; k = next_block++) {
       if (options.stop && options.stop->load()) break;
-      run_block(k * block, std::min(options.samples, (k + 1) * block));
+      const std::uint64_t first = k * block, last = std::min(options.samples, (k + 1) * block);
+      block_done[k] = run_block(first, last);
+      if (block_done[k] < last - first) break;  // stopped within the block
       const std::uint64_t r = k / kBlocksPerRound;
       if (--remaining[r] == 0) drain();
     }
   });
   drain();  // nothing can be left, but make sure
   if (next_round.load() < rounds) {
-    // Stopped: keep the rounds that were finished (and written) in order, a prefix of samples.
+    // Stopped: the rounds finished in order were written; every other finished sample (whole
+    // blocks and the starts of the blocks that were flying) goes to the sink to be kept.
     const std::uint64_t kept =
         std::min(options.samples, next_round.load() * kBlocksPerRound * block);
     result.interrupted = true;
+    result.finished = kept;
+    for (std::uint64_t k = kept / block; k < blocks; ++k) {
+      if (block_done[k] == 0) continue;
+      result.finished += block_done[k];
+      if (options.sink)
+        options.sink->keep(c, k * block * bodies, (k * block + block_done[k]) * bodies);
+    }
     result.samples = kept;
     c.for_each_column([&](std::string_view, auto& column) { column.resize(kept * bodies); });
   }
@@ -150,13 +169,16 @@ ReplayedRow replay_row(const SampleModel& model, std::uint64_t sample, std::size
   SampleModel::Workspace w(model);
   model.prepare(sample, w);
   ReplayedRow row;
-  row.inputs = model.flight(sample, body, w);
   row.values.assign(w.values().begin(), w.values().end());
+  std::vector<double> chosen(model.choice_names().size());
+  row.inputs = model.flight(sample, body, w, chosen);
+  row.values.insert(row.values.end(), chosen.begin(), chosen.end());
   const Scenario& s = model.scenario();
   const Environment env{&model.world().medium, row.inputs.conditions, &w.wind(), s.site.ground};
   FlightOptions options = flight_options(s);
   options.record_interval = record_interval;
   row.result = fly(row.inputs.body, env, row.inputs.release, options, observer);
+  row.limits = model_limits(row.inputs.body, env);
   return row;
 }
 

@@ -27,16 +27,31 @@ struct StudyColumns {
   std::vector<double> energy;        ///< J
   std::vector<std::uint8_t> status;  ///< FlightStatus
   std::vector<std::uint8_t> canopy;  ///< CanopyState
+  // Where the flight left its models' ranges (flight/model_range.hpp): the ModelRangeFlag bits,
+  // the Reynolds and Mach numbers beyond the ranges (NaN within them), the highest altitude (m),
+  // and the estimated offsets of the impact that the flat ground and the non-rotating frame leave
+  // out (m). Single precision: they are reported to three figures.
+  std::vector<std::uint8_t> regime_flags;
+  std::vector<float> reynolds_beyond, mach_beyond, altitude_max;
+  std::vector<float> curvature_offset, rotation_offset;
+  /// The named columns: first the sampled inputs (their values), then the last `choices` of them,
+  /// the sample's own random choices (SampleModel::choice_names: ensemble member, wind
+  /// perturbation, burst velocity), recorded so that they can be ranked like the inputs.
   std::vector<std::string> input_names;
-  std::vector<std::vector<double>> inputs;  ///< one column per sampled input, per row
+  std::vector<std::vector<double>> inputs;  ///< one column per name, per row
+  std::size_t choices = 0;
 
   void resize(std::size_t rows, std::size_t input_count);
   [[nodiscard]] std::size_t rows() const { return east.size(); }
-  /// Names the sampled inputs, with a column for each (empty, or kept as it was).
-  void set_inputs(std::vector<std::string> names) {
+  /// Names the columns of the sampled inputs and, last, of `choice_count` random choices, with a
+  /// column for each (empty, or kept as it was).
+  void set_inputs(std::vector<std::string> names, std::size_t choice_count = 0) {
     input_names = std::move(names);
     inputs.resize(input_names.size());
+    choices = choice_count;
   }
+  /// The number of sampled inputs among the named columns.
+  [[nodiscard]] std::size_t sampled_inputs() const { return input_names.size() - choices; }
 
   /// Calls f(name, column) on each per-row column in one fixed order: the fixed columns under
   /// their names in results files, then the inputs under theirs (input_names and inputs match).
@@ -66,7 +81,13 @@ struct StudyColumns {
         std::pair{"body", &StudyColumns::body}, std::pair{"east", &StudyColumns::east},
         std::pair{"north", &StudyColumns::north}, std::pair{"time", &StudyColumns::time},
         std::pair{"speed", &StudyColumns::speed}, std::pair{"energy", &StudyColumns::energy},
-        std::pair{"status", &StudyColumns::status}, std::pair{"canopy", &StudyColumns::canopy});
+        std::pair{"status", &StudyColumns::status}, std::pair{"canopy", &StudyColumns::canopy},
+        std::pair{"regime_flags", &StudyColumns::regime_flags},
+        std::pair{"reynolds_beyond", &StudyColumns::reynolds_beyond},
+        std::pair{"mach_beyond", &StudyColumns::mach_beyond},
+        std::pair{"altitude_max", &StudyColumns::altitude_max},
+        std::pair{"curvature_offset", &StudyColumns::curvature_offset},
+        std::pair{"rotation_offset", &StudyColumns::rotation_offset});
   }
   template <class Table, class F>
   static void visit(Table& table, F& f) {
@@ -101,6 +122,10 @@ class RowSink {
   virtual ~RowSink() = default;
   /// Rows [first, end) of `columns` are final.
   virtual void write(const StudyColumns& columns, std::size_t first, std::size_t end) = 0;
+  /// A stopped study's finished rows beyond those written in order: whole samples, a piece of
+  /// them at a time, in index order, after the last write(). For keeping, not for the results
+  /// file (which holds samples in order only).
+  virtual void keep(const StudyColumns& /*columns*/, std::size_t /*first*/, std::size_t /*end*/) {}
 };
 
 struct StudyOptions {
@@ -111,8 +136,10 @@ struct StudyOptions {
   /// with the samples done so far.
   std::function<void(std::uint64_t done)> progress;
   RowSink* sink = nullptr;  ///< optional
-  /// When set (a signal handler may set it), workers take no new block; the rounds finished in
-  /// order are still written and the result holds them: a prefix of the samples.
+  /// When set (a signal handler may set it), workers stop before their next sample: the rounds
+  /// finished in order are still written and the result holds them (a prefix of the samples),
+  /// and every other finished sample goes to the sink's keep(). A study of slow flights thus
+  /// stops within one flight per thread and loses no finished sample.
   const std::atomic<bool>* stop = nullptr;
 };
 
@@ -122,7 +149,8 @@ struct StudyResult {
   std::uint64_t completed = 0;  ///< rows that landed
   std::uint64_t failed = 0;     ///< rows that did not
   std::size_t bodies = 0;
-  bool interrupted = false;  ///< stopped early: `samples` counts the prefix that was finished
+  bool interrupted = false;    ///< stopped early: `samples` counts the prefix that was finished
+  std::uint64_t finished = 0;  ///< stopped early: every finished sample, in order or not
 
   /// Sets `completed` and `failed` from the rows' statuses.
   void count_outcomes() {
@@ -138,7 +166,8 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options);
 struct ReplayedRow {
   FlightInputs inputs;
   FlightResult result;
-  std::vector<double> values;  ///< the sampled inputs
+  std::vector<double> values;  ///< the sampled inputs, then the choices (SampleModel)
+  ModelLimits limits;          ///< what the flight was held against (model_range.hpp)
 };
 ReplayedRow replay_row(const SampleModel& model, std::uint64_t sample, std::size_t body,
                        FlightObserver* observer = nullptr, double record_interval = 0.0);

@@ -27,7 +27,7 @@ struct Setup : bench::BenchStudy {
     result = run_study(model, options);  // every thread: this is set-up, not measured
     const Footprint footprint = compute_footprint(impact_table(result.columns), settings);
     std::filesystem::create_directories(std::filesystem::path(path).parent_path());
-    write_results(path, scenario, result, make_record(scenario, result, footprint, 3, 2));
+    write_results(path, scenario, result, make_record(scenario, world, result, footprint, 3, 2));
   }
 };
 const Setup& setup() {

@@ -5,7 +5,9 @@
 #  - SIGKILL at random moments, several times over, each followed by `run --resume` (itself
 #    killed again at random), ends in a file whose samples and footprint equal an uninterrupted
 #    run's, bit for bit;
-#  - a final file never exists in an incomplete state.
+#  - a final file never exists in an incomplete state;
+#  - with slow flights, a signal stops within about a second keeping every finished sample,
+#    SIGHUP acts as SIGTERM, and a second signal ends the run at once.
 # Usage: interrupt.sh STREWN_BINARY SOURCE_DIR
 set -uo pipefail
 source "$(dirname "$0")/../lib.sh" "$1" "$2"
@@ -61,6 +63,50 @@ for trial in 1 2 3; do
   h5diff -q "$work/straight.h5" "$out" /samples /samples || fail "trial $trial: samples differ after $kills kills"
   [[ "$(summary "$work/straight.h5")" == "$(summary "$out")" ]] || fail "trial $trial: footprint differs after $kills kills"
   echo "ok: killed $kills times at random, resumed, equal to the uninterrupted run"
+done
+
+# Slow flights (tens of milliseconds each, a few hundred under the sanitizers): a signal midway
+# stops the run within about a second and keeps every finished sample, not only whole rounds of
+# blocks (a study of 120 such samples is less than one round: before, it kept none); SIGHUP is
+# treated like SIGTERM; a second signal ends the run at once, leaving no partial file. Each run
+# resumes to the uninterrupted file.
+slow="$source_dir/tests/data/slow-droplets.toml"
+slow_samples=120
+start=$(date +%s%N)
+"$strewn" run "$slow" -n $slow_samples -j 2 -o "$work/slow.h5" --quiet >/dev/null || fail "the slow study failed"
+slow_ms=$((($(date +%s%N) - start) / 1000000))
+for signal in INT HUP TWICE; do
+  out="$work/slow-$signal.h5"
+  "$strewn" run "$slow" -n $slow_samples -j 2 -o "$out" --quiet >/dev/null 2>"$work/err" &
+  pid=$!
+  sleep "$(awk -v ms="$slow_ms" 'BEGIN { printf "%.3f", ms / 1000 * 0.5 }')"
+  sent=$(date +%s%N)
+  if [[ $signal == TWICE ]]; then
+    kill -INT "$pid"
+    kill -INT "$pid"
+  else
+    kill -"$signal" "$pid"
+  fi
+  wait "$pid"
+  status=$?
+  took=$((($(date +%s%N) - sent) / 1000000))
+  [[ $status == 4 ]] || fail "slow, SIG$signal: exit status $status, not 4 ($(cat "$work/err"))"
+  ((took < 2000)) || fail "slow, SIG$signal: it took $took ms to stop"
+  ls "$out".partial-* >/dev/null 2>&1 && fail "slow, SIG$signal: a partial results file was left"
+  [[ -e "$out" ]] && fail "slow, SIG$signal: a file under the final name"
+  kept=""
+  if [[ $signal == TWICE ]]; then
+    grep -q "stopped at once by a second signal" "$work/err" || fail "slow, twice: $(cat "$work/err")"
+  else
+    kept=$(sed -n 's/^interrupted: \([0-9]*\) of .*/\1/p' "$work/err")
+    [[ -n "$kept" ]] && ((kept >= slow_samples / 5)) ||
+      fail "slow, SIG$signal: halfway through, only '${kept}' samples were kept ($(cat "$work/err"))"
+  fi
+  "$strewn" run "$slow" -n $slow_samples -j 2 -o "$out" --quiet --resume >/dev/null ||
+    fail "slow, SIG$signal: resume failed"
+  h5diff -q "$work/slow.h5" "$out" /samples /samples || fail "slow, SIG$signal: resumed samples differ"
+  [[ "$(summary "$work/slow.h5")" == "$(summary "$out")" ]] || fail "slow, SIG$signal: footprint differs"
+  echo "ok: slow flights, $signal: stopped in $took ms, ${kept:-the written} samples kept, resumed to the same file"
 done
 
 finish "interruption tests"

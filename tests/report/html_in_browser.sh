@@ -18,7 +18,7 @@ flags=(--headless --no-sandbox --disable-gpu --hide-scrollbars --no-first-run
        --user-data-dir="$work/profile" --window-size=1100,1500)
 timeout 120 "$browser" "${flags[@]}" --dump-dom "file://$work/report.html" >"$work/dom.html" 2>"$work/browser.log" ||
   fail "chromium could not load the page: $(tail -3 "$work/browser.log")"
-for part in '<svg[^>]*id="map"' 'id="density"' 'class="hazard-polygon"' 'id="legend"' \
+for part in '<svg[^>]*id="map"' 'class="density"' 'class="hazard-polygon"' 'class="legend"' \
             '<table id="rules"' '<table id="containment"' '<table id="sensitivity"' \
             '<table id="provenance"' 'responsible authority'; do
   grep -Eq "$part" "$work/dom.html" || fail "the rendered page has no $part"

@@ -183,10 +183,128 @@ TEST(CliRun, ReplayCheckAndRefusals) {
   EXPECT_EQ(run({"check", bad}).status, 2);
   std::filesystem::remove_all(dir);
 
-  // An output folder that does not exist: status 3 before any flight, nothing written.
-  EXPECT_EQ(run({"run", scenario, "-n", "10", "-o", "/nonexistent-folder/x.h5", "--quiet"}).status,
-            3);
-  EXPECT_EQ(run({"run", scenario, "-n", "0"}).status, 2);
+  // An output folder that cannot be made (under a regular file): status 2 before any flight,
+  // nothing written. A folder that is merely missing is made (see OutputFoldersAreMade).
+  const std::string under_file = std::string(scenario) + "/x.h5";
+  const CommandResult blocked = run({"run", scenario, "-n", "10", "-o", under_file, "--quiet"});
+  EXPECT_EQ(blocked.status, 2);
+  EXPECT_NE(blocked.err.find("cannot make the folder"), std::string::npos) << blocked.err;
+  // A sample count of zero is refused in plain words, not with the largest double (309 digits).
+  const CommandResult zero = run({"run", scenario, "-n", "0"});
+  EXPECT_EQ(zero.status, 2);
+  EXPECT_NE(zero.err.find("-n: expected a whole number of at least 1, got \"0\""),
+            std::string::npos)
+      << zero.err;
+  EXPECT_LT(zero.err.size(), 200u) << zero.err;
+  EXPECT_EQ(run({"run", scenario, "-j", "0"}).status, 2);
+  EXPECT_EQ(run({"run", scenario, "--seed", "-1"}).status, 2);
+}
+
+}  // namespace
+}  // namespace strewn
+
+namespace strewn {
+namespace {
+
+// One rule for paths: every path written in a scenario (tables, soundings, output) is read
+// against the scenario's own folder, whatever the working directory; a path on the command line
+// against the working directory; a missing output folder is made.
+TEST(CliPaths, ScenarioPathsFromItsFolderCommandLinePathsFromTheWorkingDirectory) {
+  namespace fs = std::filesystem;
+  const fs::path root = fs::temp_directory_path() / "strewn-cli-paths";
+  fs::remove_all(root);
+  const fs::path here = root / "study", elsewhere = root / "elsewhere";
+  fs::create_directories(here);
+  fs::create_directories(elsewhere);
+  fs::copy_file(STREWN_SOURCE_DIR "/tests/data/sounding.csv", here / "sounding.csv");
+  fs::copy_file(STREWN_SOURCE_DIR "/tests/data/winds.csv", here / "winds.csv");
+  std::ofstream(here / "scenario.toml")
+      << "[medium]\nmodel = \"profile\"\nprofile = \"sounding.csv\"\n[wind]\nfile = \"winds.csv\"\n"
+         "[release]\naltitude = 1500.0\n[[body]]\nname = \"crate\"\nmass = 20.0\n[body.drag]\n"
+         "model = \"area\"\ncd = 1.0\narea = 0.3\n[output]\nfile = \"results/crate.h5\"\n";
+  const fs::path before = fs::current_path();
+  fs::current_path(elsewhere);
+  const CommandResult from_file =
+      run({"run", (here / "scenario.toml").string(), "-n", "20", "--quiet"});
+  EXPECT_EQ(from_file.status, 0) << from_file.err;
+  EXPECT_TRUE(fs::exists(here / "results" / "crate.h5"));  // the folder made, beside the scenario
+  EXPECT_FALSE(fs::exists(elsewhere / "results"));
+  // -o is the command line's: from the working directory, its folders made too.
+  const CommandResult from_line = run(
+      {"run", (here / "scenario.toml").string(), "-n", "20", "--quiet", "-o", "out/deep/crate.h5"});
+  EXPECT_EQ(from_line.status, 0) << from_line.err;
+  EXPECT_TRUE(fs::exists(elsewhere / "out" / "deep" / "crate.h5"));
+  // The same for the report files.
+  EXPECT_EQ(run({"report", "out/deep/crate.h5", "--html", "pages/crate.html"}).status, 0);
+  EXPECT_TRUE(fs::exists(elsewhere / "pages" / "crate.html"));
+  fs::current_path(before);
+  fs::remove_all(root);
+}
+
+// Small defects a first user met.
+TEST(CliDefects, TraceOfAFloatingBodyHasNoImpactAndListsTheValuesFlown) {
+  const CommandResult r =
+      run({"trace", STREWN_SOURCE_DIR "/tests/data/extreme/lighter-than-air.toml", "--json"});
+  EXPECT_EQ(r.status, 3);  // it did not land
+  const auto j = nlohmann::json::parse(r.out);
+  EXPECT_EQ(j["status"], "floats");
+  EXPECT_TRUE(j["impact"].is_null());  // not an all-zero impact
+  EXPECT_TRUE(j["end"].is_object());
+  ASSERT_TRUE(j["inputs"].is_object());  // the values flown, not a sentence
+  EXPECT_TRUE(j["inputs"].contains("release.altitude"));
+  bool mass = false;
+  for (const auto& [key, value] : j["inputs"].items())
+    mass = mass || (key.size() > 5 && key.substr(key.size() - 5) == ".mass" && value.is_number());
+  EXPECT_TRUE(mass) << j["inputs"].dump();
+}
+
+TEST(CliDefects, CrossrangeSaysWhichSideOfTheTrack) {
+  // A crate released flying north into a wind from the east drifts west: left of its track.
+  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-side";
+  std::filesystem::create_directories(dir);
+  const auto file = (dir / "side.toml").string();
+  std::ofstream(file) << "[wind]\nlayers = [{ altitude = 0.0, speed = 8.0, from = 90.0 }]\n"
+                         "[release]\naltitude = 500.0\nspeed = 10.0\ntrack = 0.0\n[[body]]\n"
+                         "mass = 5.0\n[body.drag]\nmodel = \"area\"\ncd = 1.0\narea = 0.5\n";
+  const CommandResult r = run({"trace", file});
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_NE(r.out.find(" m left of track"), std::string::npos) << r.out;
+  EXPECT_EQ(r.out.find("right of track"), std::string::npos) << r.out;
+  const auto j = nlohmann::json::parse(run({"trace", file, "--json"}).out);
+  EXPECT_LT(j["impact"]["crossrange"].get<double>(), 0.0);  // negative: left
+  std::filesystem::remove_all(dir);
+}
+
+TEST(CliDefects, CsvRuleRowsHoldProbabilitiesNotMetres) {
+  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-csv";
+  std::filesystem::create_directories(dir);
+  const auto h5 = (dir / "ridge.h5").string(), csv = (dir / "figures.csv").string();
+  ASSERT_EQ(
+      run({"run", STREWN_SOURCE_DIR "/inputs/ridge-drop.toml", "-n", "300", "-o", h5, "--quiet"})
+          .status,
+      0);
+  ASSERT_EQ(run({"report", h5, "--csv", csv}).status, 0);
+  std::istringstream lines(test::slurp(csv));
+  std::string line;
+  bool rule = false;
+  while (std::getline(lines, line)) {
+    if (line.find(",rule_zone_radius,") == std::string::npos) continue;
+    rule = true;
+    // group,figure,level,estimate,interval_lower,interval_upper,bound_upper,confidence,unit,note
+    std::vector<std::string> cells{""};
+    for (char ch : line.substr(0, line.find(",\"")))
+      if (ch == ',')
+        cells.emplace_back();
+      else
+        cells.back() += ch;
+    ASSERT_GE(cells.size(), 9u) << line;
+    EXPECT_EQ(cells[2], "") << "level: " << line;  // no level for a rule
+    EXPECT_EQ(cells[8], "") << "unit: " << line;   // a probability has no unit
+    EXPECT_NE(line.find("accepted probability 0.001 of landing outside 900 m"), std::string::npos)
+        << line;
+  }
+  EXPECT_TRUE(rule);
+  std::filesystem::remove_all(dir);
 }
 
 }  // namespace

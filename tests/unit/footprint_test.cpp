@@ -301,6 +301,48 @@ TEST(Footprint, SpearmanOfABivariateNormal) {
   EXPECT_TRUE(std::isnan(spearman(std::vector<double>{1, 1, 1}, std::vector<double>{1, 2, 3})));
 }
 
+// A category's effect is its correlation ratio (Pearson 1903) of the impact's ranks; with two
+// categories that is exactly the size of Spearman's correlation with the category's two codes (a
+// point-biserial correlation on ranks: the ratio of the between-group to the total sum of
+// squares is the squared correlation with the group indicator). Sensitivities are ranked
+// strongest first, energy included.
+TEST(Footprint, CorrelationRatioOfTwoCategoriesIsTheSizeOfSpearmans) {
+  OwnedTable t;
+  boost::random::mt19937 engine(21);
+  boost::random::normal_distribution<double> normal;
+  std::vector<double> member, weak;
+  for (int i = 0; i < 3000; ++i) {
+    const double m = i % 3 == 0 ? 1.0 : 0.0;  // two ensemble members, unequal shares
+    member.push_back(m);
+    weak.push_back(normal(engine));
+    t.add(0, 30.0 * m + normal(engine) + 0.1 * weak.back(), normal(engine), true,
+          5.0 + m + 0.3 * normal(engine));
+  }
+  t.names = {"weak", "wind.member", "member_as_number"};
+  t.inputs = {weak, member, member};
+  ImpactTable table = t.view();
+  table.categorical = {false, true, false};
+  FootprintSettings s = one_body(3000);
+  s.downrange_bearing = 90.0;  // east: the member's shift is downrange
+  const Footprint f = compute_footprint(table, s);
+  const auto& list = f.groups[0].sensitivity;
+  ASSERT_EQ(list.size(), 3u);
+  const InputSensitivity *category = nullptr, *number = nullptr;
+  for (const auto& x : list) {
+    if (x.input == "wind.member") category = &x;
+    if (x.input == "member_as_number") number = &x;
+  }
+  ASSERT_TRUE(category && number);
+  EXPECT_TRUE(category->categorical);
+  EXPECT_NEAR(category->downrange, std::abs(number->downrange), 1e-9);
+  EXPECT_NEAR(category->energy, std::abs(number->energy), 1e-9);
+  EXPECT_GT(category->downrange, 0.5);
+  // Strongest first: the weak input last.
+  EXPECT_EQ(list.back().input, "weak");
+  for (std::size_t k = 1; k < list.size(); ++k)
+    EXPECT_GE(list[k - 1].strength(), list[k].strength());
+}
+
 // Ray casting, written independently of the footprint code, to count points in a polygon.
 bool inside_by_ray(const std::vector<PlanePoint>& ring, double x, double y) {
   bool inside = false;
@@ -507,8 +549,8 @@ TEST(Footprint, ResultsFileRoundTrip) {
   StudyRecord record;
   record.title = "round trip";
   record.sampling = "random";
-  record.latitude = 46.5;
-  record.longitude = 7.25;
+  record.latitude = -35.0;
+  record.longitude = -20.0;
   record.body_names = s.body_names;
   record.footprint = compute_footprint(t.view(), s);
   // Through the results file written by the study path.

@@ -3,6 +3,7 @@
 // with dense output at a tight tolerance. Only the forces (forces.hpp) are shared with strewn;
 // the stepping, step control, event location (TOMS 748 from Boost.Math on Odeint's dense output)
 // and stage handling are Odeint's and this file's. Used by the tests and by the benchmark.
+#include <Eigen/Geometry>
 #include <array>
 #include <boost/math/tools/toms748_solve.hpp>
 #include <boost/numeric/odeint.hpp>
@@ -22,15 +23,49 @@ struct ReferenceImpact {
   long steps = 0;
 };
 
+/// What the flat, non-rotating frame of strewn leaves out, put back for the reference:
+/// - `rotating`: the Coriolis acceleration -2 Omega x v of a frame turning with the Earth at
+///   `latitude` (Omega = kEarthRotationRate along the axis, (0, cos lat, sin lat) in east, north,
+///   up; the centrifugal part is absorbed in g, as usual);
+/// - `spherical`: a round Earth of radius constants::earth_radius under the site's origin:
+///   altitude is the distance from its centre less the radius, gravity points to the centre, and
+///   the ground lies at site.ground above that sphere.
+struct ReferenceFrame {
+  bool rotating = false;
+  double latitude = 0.0;  ///< degrees
+  bool spherical = false;
+};
+
 inline ReferenceImpact reference_fly(const Body& body, const Environment& environment,
                                      const ReleaseState& release, double tolerance = 1e-10,
-                                     double max_time = 1e6) {
+                                     double max_time = 1e6, const ReferenceFrame& frame = {}) {
   namespace odeint = boost::numeric::odeint;
   Forces forces(body, environment);
-  auto rhs = [&forces](const OdeState& x, OdeState& dxdt, double t) {
+  const double r0 = constants::earth_radius;
+  // Height above mean sea level of a state: z, or on the sphere the distance from its centre
+  // (at (0, 0, -r0)) less r0.
+  auto altitude = [&](const OdeState& x) {
+    return frame.spherical ? std::sqrt(x[0] * x[0] + x[1] * x[1] + (x[2] + r0) * (x[2] + r0)) - r0
+                           : x[2];
+  };
+  const double omega = kEarthRotationRate, lat = frame.latitude * constants::degree;
+  const Vec3 spin(0.0, omega * std::cos(lat), omega * std::sin(lat));
+  auto rhs = [&](const OdeState& x, OdeState& dxdt, double t) {
     FlightState y = Eigen::Map<const FlightState>(x.data());
+    const double h = altitude(x);
+    FlightState at = y;
+    at[2] = h;  // the air, the wind and the size of gravity at the true height
     FlightState d;
-    forces(t, y, d);
+    forces(t, at, d);
+    d.head<3>() = y.tail<3>();
+    if (frame.spherical) {
+      // Gravity toward the centre instead of straight down.
+      const double g = forces.effective_gravity(h);
+      const Vec3 radial = Vec3(x[0], x[1], x[2] + r0).normalized();
+      d[5] += g;
+      d.tail<3>() -= g * radial;
+    }
+    if (frame.rotating) d.tail<3>() -= 2.0 * spin.cross(Vec3(y[3], y[4], y[5]));
     Eigen::Map<FlightState>(dxdt.data()) = d;
   };
   auto stepper =
@@ -71,7 +106,7 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
     OdeState s;
     auto offset = [&](double t) {
       stepper.calc_state(t, s);
-      return s[2] - level;
+      return altitude(s) - level;
     };
     const double fa = offset(a), fb = offset(b);
     if (fb == 0.0) return b;
@@ -92,11 +127,12 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
     double event_time = std::numeric_limits<double>::infinity();
     int event = 0;  // 1 ground, 2 deployment height, 3 time event
     OdeState end = stepper.current_state();
-    if (end[2] <= ground) {
+    if (altitude(end) <= ground) {
       event_time = bisect(t0, t1, ground);
       event = 1;
     }
-    if (watch_height && stage == DragStage::body && end[2] <= ground + canopy.deploy_height) {
+    if (watch_height && stage == DragStage::body &&
+        altitude(end) <= ground + canopy.deploy_height) {
       const double te = bisect(t0, t1, ground + canopy.deploy_height);
       if (te < event_time) {
         event_time = te;
@@ -112,7 +148,7 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
     stepper.calc_state(event_time, s);
     if (event == 1) {
       impact.time = event_time;
-      impact.position = Vec3(s[0], s[1], ground);
+      impact.position = Vec3(s[0], s[1], frame.spherical ? s[2] : ground);
       impact.velocity = Vec3(s[3], s[4], s[5]);
       impact.landed = true;
       return impact;

@@ -127,11 +127,13 @@ TEST_F(Report, WritesMapPageAndTableFiles) {
       run({"report", file_, "--svg", svg.string(), "--html", html.string(), "--csv", csv.string()});
   ASSERT_EQ(r.status, 0) << r.err;
   const std::string map = slurp(svg), page = slurp(html), table = slurp(csv);
-  for (const char* part : {"<svg", "id=\"density\"", "hazard-polygon", "containment-bound",
-                           "release-track", "north-arrow", "scale-bar", "legend"})
+  for (const char* part :
+       {"<svg", "class=\"density\"", "hazard-polygon", "containment-bound", "release-track",
+        "north-arrow", "scale-bar", "legend", "class=\"ticks\""})
     EXPECT_NE(map.find(part), std::string::npos) << part;
-  for (const char* part : {"<svg", "id=\"rules\"", "id=\"containment\"", "id=\"sensitivity\"",
-                           "id=\"provenance\"", "id=\"cautions\"", "responsible authority"})
+  for (const char* part :
+       {"<svg", "id=\"rules\"", "id=\"containment\"", "id=\"sensitivity\"", "id=\"provenance\"",
+        "id=\"cautions\"", "id=\"warnings\"", "responsible authority"})
     EXPECT_NE(page.find(part), std::string::npos) << part;
   EXPECT_EQ(page.find("src=\"http"), std::string::npos);  // self-contained
   EXPECT_EQ(table.rfind("group,figure,level,estimate", 0), 0u);
@@ -212,6 +214,117 @@ TEST(ReportConvergence, GrownStudyEqualsAStraightRun) {
   ASSERT_EQ(s.status, 0) << s.err;
   const auto sj = nlohmann::json::parse(s.out);
   EXPECT_EQ(gj["footprint"], sj["footprint"]);
+  std::filesystem::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace strewn
+
+namespace strewn {
+namespace {
+
+// The numbers of an SVG element's attribute, e.g. the x of every <rect class="...">.
+std::vector<double> attribute_values(const std::string& svg, const std::string& element,
+                                     const std::string& attribute) {
+  std::vector<double> out;
+  for (std::size_t at = svg.find(element); at != std::string::npos;
+       at = svg.find(element, at + 1)) {
+    const std::size_t end = svg.find('>', at);
+    const std::string tag = svg.substr(at, end - at);
+    const std::size_t a = tag.find(" " + attribute + "=\"");
+    if (a != std::string::npos) out.push_back(std::stod(tag.substr(a + attribute.size() + 3)));
+  }
+  return out;
+}
+
+// The map and page answer "how big, centred where" at a glance: each rule's zone drawn and
+// labelled with its radius and status, the containment circles labelled with their level,
+// latitude and longitude on the frame, nothing laid over the map panel but the map (legend,
+// north arrow and scale bar beside it), no impact cell cut by the frame, a map per body beside
+// the map of all, every warning on the page, the centres in words with their coordinates.
+TEST(ReportMaps, AnswerHowBigAndCentredWhere) {
+  const auto dir =
+      std::filesystem::temp_directory_path() / ("strewn-report-maps-" + std::to_string(::getpid()));
+  std::filesystem::create_directories(dir);
+  const auto h5 = (dir / "debris.h5").string();
+  ASSERT_EQ(run({"run", STREWN_SOURCE_DIR "/inputs/test-range-debris.toml", "-n", "2000", "-o", h5,
+                 "--quiet"})
+                .status,
+            0);
+  const auto svg = dir / "map.svg", html = dir / "page.html";
+  const CommandResult r = run({"report", h5, "--svg", svg.string(), "--html", html.string()});
+  ASSERT_EQ(r.status, 0) << r.err;
+  // A map per body beside the map of all, named after the bodies.
+  for (const char* body : {"motor_case", "avionics_box", "skin_panel"}) {
+    const auto own = dir / ("map-" + std::string(body) + ".svg");
+    EXPECT_TRUE(std::filesystem::exists(own)) << own;
+    EXPECT_NE(r.out.find(own.string()), std::string::npos);
+  }
+  const std::string map = slurp(svg), page = slurp(html);
+  // The rule's zone, about the centre of all, labelled with its radius and status.
+  EXPECT_NE(map.find("class=\"rule-zone\""), std::string::npos);
+  EXPECT_NE(map.find("zone 6 km: "), std::string::npos);
+  // The containment bound circles labelled with their levels.
+  for (const char* level : {">50 %<", ">90 %<", ">99 %<", ">99.9 %<"})
+    EXPECT_NE(map.find(level), std::string::npos) << level;
+  // Latitude and longitude on the frame (the site is at 22.4 S, 96.8 W).
+  EXPECT_NE(map.find("\u00b0S<"), std::string::npos);
+  EXPECT_NE(map.find("\u00b0W<"), std::string::npos);
+  // The panel is x in [92, 732], y in [64, 704] (map_svg.cpp): every density cell lies within it
+  // (none cut by the frame), the release point and track too; the legend, north arrow and scale
+  // bar lie beside it.
+  constexpr double kLeft = 92.0, kRight = 732.0, kTop = 64.0, kBottom = 704.0;
+  const std::string density = map.substr(map.find("class=\"density\""));
+  const auto xs = attribute_values(density.substr(0, density.find("</g>")), "<rect", "x");
+  const auto ys = attribute_values(density.substr(0, density.find("</g>")), "<rect", "y");
+  ASSERT_FALSE(xs.empty());
+  for (double x : xs) {
+    EXPECT_GE(x, kLeft - 0.5);
+    EXPECT_LE(x, kRight);
+  }
+  for (double y : ys) {
+    EXPECT_GE(y, kTop - 0.5);
+    EXPECT_LE(y, kBottom);
+  }
+  for (double x : attribute_values(map, "<line class=\"release-track\"", "x1")) {
+    EXPECT_GT(x, kLeft);
+    EXPECT_LT(x, kRight);
+  }
+  for (const char* beside : {"class=\"legend\"", "class=\"north-arrow\"", "class=\"scale-bar\""}) {
+    const std::string part = map.substr(map.find(beside));
+    const auto x = attribute_values(part.substr(0, part.find("</g>")), "<text", "x");
+    ASSERT_FALSE(x.empty()) << beside;
+    EXPECT_GT(*std::min_element(x.begin(), x.end()), kRight) << beside;
+  }
+  // The page: a map of all and one per body, every warning, the centres' coordinates, which
+  // centre each rule's zone is about.
+  std::size_t maps = 0;
+  for (std::size_t at = page.find("<svg"); at != std::string::npos; at = page.find("<svg", at + 1))
+    ++maps;
+  EXPECT_EQ(maps, 4u);
+  const auto summary = nlohmann::json::parse(run({"report", h5, "--json"}).out);
+  for (const auto& w : summary["warnings"])
+    EXPECT_NE(page.find(w.get<std::string>().substr(0, 40)), std::string::npos) << w;
+  EXPECT_NE(page.find("about the mean impact of one object of the release"), std::string::npos);
+  EXPECT_NE(page.find(" S, "), std::string::npos);  // a latitude in words
+  std::filesystem::remove_all(dir);
+}
+
+TEST(ReportMaps, OneBodyIsNotRepeatedAsAll) {
+  const auto dir =
+      std::filesystem::temp_directory_path() / ("strewn-report-one-" + std::to_string(::getpid()));
+  std::filesystem::create_directories(dir);
+  const auto h5 = (dir / "ridge.h5").string(), html = (dir / "ridge.html").string();
+  ASSERT_EQ(
+      run({"run", STREWN_SOURCE_DIR "/inputs/ridge-drop.toml", "-n", "500", "-o", h5, "--quiet"})
+          .status,
+      0);
+  ASSERT_EQ(run({"report", h5, "--html", html}).status, 0);
+  const std::string page = slurp(html);
+  EXPECT_EQ(page.find("<td class=\"name\">all</td>"), std::string::npos);
+  EXPECT_NE(page.find("<td class=\"name\">bundle</td>"), std::string::npos);
+  const CommandResult text = run({"report", h5});
+  EXPECT_EQ(text.out.find("\nall"), std::string::npos) << text.out;
   std::filesystem::remove_all(dir);
 }
 

@@ -259,6 +259,17 @@ TEST(Sampling, SobolIsEvenAndInsideTheOpenInterval) {
   for (double s : sum) EXPECT_NEAR(s / n, 0.5, 1e-3);
 }
 
+// A found defect: a Sobol study whose inputs are all fixed numbers crashed on its first sample
+// (the plan had no engine for no dimension). Every plan draws nothing for it.
+TEST(Sampling, PlansWithNoSampledInputDrawNothing) {
+  for (SamplingPlan kind : {SamplingPlan::random, SamplingPlan::latin, SamplingPlan::sobol}) {
+    const SamplePlan plan(kind, 7, 0, 100);
+    SamplePlan::Cursor cursor(plan);
+    for (std::uint64_t i : {0u, 5u, 1u, 99u}) cursor.uniforms(i, std::span<double>());
+    EXPECT_EQ(plan.dimensions(), 0u);
+  }
+}
+
 TEST(Sampling, StreamsAreSeparateAndReplayable) {
   RandomStream a(1, 42, 0), b(1, 42, 0), c(1, 43, 0), d(2, 42, 0), e(1, 42, 1);
   const double ua = a.uniform();

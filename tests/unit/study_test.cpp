@@ -4,6 +4,7 @@
 
 #include <tbb/global_control.h>
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <cstring>
 #include <filesystem>
@@ -105,7 +106,7 @@ TEST(Study, RowBytesRoundTripAndRefuseShortInput) {
   append_row_bytes(rows, 0, 30, bytes);
   append_row_bytes(rows, 30, 100, bytes);
   StudyColumns back;
-  back.set_inputs(rows.input_names);
+  back.set_inputs(rows.input_names, rows.choices);
   std::size_t at = 0;
   ASSERT_TRUE(take_row_bytes(bytes, at, 30, back));
   ASSERT_TRUE(take_row_bytes(bytes, at, 70, back));
@@ -113,7 +114,7 @@ TEST(Study, RowBytesRoundTripAndRefuseShortInput) {
   EXPECT_TRUE(same_columns(rows, back));
 
   StudyColumns short_of;
-  short_of.set_inputs(rows.input_names);
+  short_of.set_inputs(rows.input_names, rows.choices);
   at = 0;
   const std::span<const std::byte> cut(bytes.data(), bytes.size() - 1);
   EXPECT_FALSE(take_row_bytes(cut, at, 100, short_of));
@@ -140,6 +141,99 @@ TEST(Study, ReplayedSampleEqualsItsRow) {
   }
 }
 
+// Every random choice a sample makes is a column beside the sampled inputs, so that it can be
+// replayed and ranked: the layered wind's perturbation (its mean over the layers) and the burst
+// velocity, whose length is the sampled burst speed (the canopy state has a column of its own).
+TEST(Study, RandomChoicesAreRecordedColumns) {
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const SampleModel model(s, world, 100);
+  const StudyResult result = run_with(model, 100, 2, 16);
+  const StudyColumns& c = result.columns;
+  auto column = [&](const std::string& name) -> const std::vector<double>& {
+    const auto at = std::find(c.input_names.begin(), c.input_names.end(), name);
+    if (at == c.input_names.end()) throw std::runtime_error("no column " + name);
+    return c.inputs[static_cast<std::size_t>(at - c.input_names.begin())];
+  };
+  EXPECT_EQ(c.choices, 5u);
+  EXPECT_EQ(c.sampled_inputs(), model.sampler().dimensions());
+  const auto &east = column("release.burst.east"), &north = column("release.burst.north"),
+             &up = column("release.burst.up"), &speed = column("release.burst.speed");
+  const auto& perturbation = column("wind.perturbation_east");
+  for (std::size_t i = 0; i < c.rows(); ++i) {
+    EXPECT_NEAR(std::sqrt(east[i] * east[i] + north[i] * north[i] + up[i] * up[i]), speed[i],
+                1e-12 * (1.0 + speed[i]));
+    // Both bodies of a sample share its wind; each has its own burst direction.
+    if (i % 2 == 1) {
+      EXPECT_EQ(perturbation[i], perturbation[i - 1]);
+    }
+  }
+  // The layered perturbation is Gaussian with sd 1.5 per layer, its mean over two layers
+  // correlated by exp(-1000/600): sd 1.5 sqrt((1 + 0.189) / 2) = 1.16; over 100 samples the
+  // spread of the column is that within a few standard errors (common practice).
+  double sum = 0.0, squares = 0.0;
+  for (std::size_t i = 0; i < c.rows(); i += 2) {
+    sum += perturbation[i];
+    squares += perturbation[i] * perturbation[i];
+  }
+  const double sd = std::sqrt(squares / 100.0 - (sum / 100.0) * (sum / 100.0));
+  EXPECT_NEAR(sd, 1.5 * std::sqrt((1.0 + std::exp(-1000.0 / 600.0)) / 2.0), 0.35);
+  // Replayed alone, a sample gives the same choices.
+  const ReplayedRow row = replay_row(model, 37, 1);
+  for (std::size_t d = 0; d < row.values.size(); ++d)
+    EXPECT_EQ(row.values[d], c.inputs[d][37 * 2 + 1]) << c.input_names[d];
+}
+
+// A study stopped by a signal keeps every sample it finished: those of the rounds written in
+// order, and the starts of the blocks that were flying, handed to the sink to keep; each kept row
+// is the row the uninterrupted study has at that index.
+TEST(Study, AStoppedStudyKeepsEveryFinishedSample) {
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const std::uint64_t n = 3000;
+  const SampleModel model(s, world, n);
+  const StudyResult whole = run_with(model, n, 2, 4);
+  struct Keeper : RowSink {
+    std::atomic<bool> stop{false};
+    std::vector<std::pair<std::size_t, std::size_t>> written, kept;
+    StudyColumns rows;
+    void write(const StudyColumns& c, std::size_t first, std::size_t end) override {
+      written.emplace_back(first, end);
+      stop = true;  // stop at the first round written
+      if (rows.input_names.empty()) rows.set_inputs(c.input_names, c.choices);
+      rows.for_each_column_with(c, [&](auto& ours, const auto& theirs) {
+        ours.insert(ours.end(), theirs.begin() + static_cast<long>(first),
+                    theirs.begin() + static_cast<long>(end));
+      });
+    }
+    void keep(const StudyColumns& c, std::size_t first, std::size_t end) override {
+      kept.emplace_back(first, end);
+      for (std::size_t row = first; row < end; ++row) rows_kept.push_back({row, c.east[row]});
+    }
+    std::vector<std::pair<std::size_t, double>> rows_kept;
+  } sink;
+  tbb::global_control limit(tbb::global_control::max_allowed_parallelism, 2);
+  StudyOptions options;
+  options.samples = n;
+  options.block = 4;
+  options.sink = &sink;
+  options.stop = &sink.stop;
+  const StudyResult stopped = run_study(model, options);
+  ASSERT_TRUE(stopped.interrupted);
+  std::size_t rows = 0;
+  for (const auto& [first, end] : sink.written) rows += end - first;
+  for (const auto& [first, end] : sink.kept) {
+    EXPECT_EQ(first % 2, 0u);  // whole samples (two bodies)
+    EXPECT_EQ(end % 2, 0u);
+    rows += end - first;
+  }
+  EXPECT_EQ(rows, stopped.finished * 2);
+  EXPECT_GT(stopped.finished, stopped.samples);  // more than the rounds written in order
+  for (const auto& [row, east] : sink.rows_kept) EXPECT_EQ(east, whole.columns.east[row]);
+  for (std::size_t row = 0; row < sink.rows.rows(); ++row)
+    EXPECT_EQ(sink.rows.east[row], whole.columns.east[row]);
+}
+
 TEST(Study, ResultsFileReadsBackWithEveryName) {
   const Scenario s = parse_scenario(kStudy, "study.toml");
   const World world = build_world(s);
@@ -148,7 +242,7 @@ TEST(Study, ResultsFileReadsBackWithEveryName) {
   const auto path = (std::filesystem::temp_directory_path() / "strewn-study-test.h5").string();
   const Footprint footprint =
       compute_footprint(impact_table(result.columns), footprint_settings(s, world, result.samples));
-  write_results(path, s, result, make_record(s, result, footprint, s.study.seed, 2));
+  write_results(path, s, result, make_record(s, world, result, footprint, s.study.seed, 2));
   const ResultsFile file = read_results(path);
   EXPECT_EQ(file.format_version, kResultsFormatVersion);
   EXPECT_EQ(file.record.seed, 4242u);

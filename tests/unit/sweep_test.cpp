@@ -5,6 +5,7 @@
 
 #include <filesystem>
 #include <fstream>
+#include <nlohmann/json.hpp>
 #include <sstream>
 
 #include "app/commands.hpp"
@@ -62,6 +63,80 @@ TEST_F(Sweep, GridAndZipCases) {
   const SweepPlan zipped = load_sweep(zip);
   ASSERT_EQ(zipped.cases.size(), 2u);
   EXPECT_EQ(zipped.cases[1].values, (std::vector<double>{2800.0, 50.0}));
+}
+
+// Wind layers and table rows are swept by their index in the list, counted from 0.
+TEST_F(Sweep, ListElementsBySweptIndex) {
+  const std::string debris = STREWN_SOURCE_DIR "/tests/data/debris-sphere-mach.toml";
+  const auto sweep =
+      write("index.toml", "base = \"" + debris +
+                              "\"\n[[axis]]\nkey = \"wind.layers[1].speed\"\nvalues = [10.0, "
+                              "30.0]\n[[axis]]\nkey = \"ball.drag.mach_table[2][1]\"\nvalues = "
+                              "[1.5, 2.5]\n");
+  const SweepPlan plan = load_sweep(sweep);
+  ASSERT_EQ(plan.cases.size(), 4u);
+  const Scenario s = parse_scenario(plan.cases[3].text, plan.base_path);
+  EXPECT_EQ(s.wind.layers[1].speed, 30.0);
+  EXPECT_EQ(s.wind.layers[0].speed, 4.0);  // the others as in the base
+  EXPECT_EQ(s.bodies[0].mach_table->factor()[2], 2.5);
+  EXPECT_EQ(s.bodies[0].mach_table->mach()[2], 1.0);
+  // An index past the list's end, and a malformed one, are refused with the sweep's line.
+  const auto beyond = write("beyond.toml", "base = \"" + debris +
+                                               "\"\n[[axis]]\nkey = \"wind.layers[3].speed\"\n"
+                                               "values = [1.0]\n");
+  const CommandResult r = run({"sweep", beyond, "-o", (dir_ / "b.h5").string(), "--quiet"});
+  EXPECT_EQ(r.status, 2);
+  EXPECT_NE(r.err.find(":3: axis[0].key: wind.layers[3].speed is not a key of the scenario: "
+                       "wind.layers has 3 elements, counted from 0; there is no [3]"),
+            std::string::npos)
+      << r.err;
+  const auto broken = write("broken.toml", "base = \"" + debris +
+                                               "\"\n[[axis]]\nkey = \"wind.layers[x].speed\"\n"
+                                               "values = [1.0]\n");
+  EXPECT_EQ(run({"sweep", broken, "-o", (dir_ / "c.h5").string(), "--quiet"}).status, 2);
+}
+
+// The summary says what each case ran (its samples, whether target_width was met, its
+// warnings), and `report --case` shows one case of the sweep's file as a study of its own.
+TEST_F(Sweep, SummaryAndOneCaseReported) {
+  const auto sweep =
+      write("grow.toml", "base = \"" + base() +
+                             "\"\n[[axis]]\nkey = \"study.target_width\"\nvalues = [0.5, "
+                             "0.001]\n[[axis]]\nkey = \"study.max_samples\"\nvalues = [4096]\n");
+  const auto output = (dir_ / "grow.h5").string();
+  const CommandResult r = run({"sweep", sweep, "-n", "500", "-o", output, "--quiet"});
+  ASSERT_EQ(r.status, 0) << r.err;
+  const std::string csv = test::slurp(dir_ / "grow-summary.csv");
+  std::istringstream lines(csv);
+  std::string header, first, second;
+  std::getline(lines, header);
+  std::getline(lines, first);
+  std::getline(lines, second);
+  EXPECT_NE(header.find(",samples,warnings,"), std::string::npos) << header;
+  EXPECT_NE(header.find("target_width_met"), std::string::npos) << header;
+  // A loose target is met (once the 99.9 % bound exists: about 3000 samples); a tight one grows
+  // the case to its cap without meeting it.
+  EXPECT_EQ(first.find(",500,"), std::string::npos) << first;  // it grew
+  EXPECT_NE(first.find(",yes"), std::string::npos) << first;
+  EXPECT_NE(second.find(",4096,"), std::string::npos) << second;
+  EXPECT_NE(second.find(",no"), std::string::npos) << second;
+  // One case, as `report` shows a study; its figures are those of the case run alone.
+  const CommandResult one = run({"report", output, "--case", "1", "--json"});
+  ASSERT_EQ(one.status, 0) << one.err;
+  const auto j = nlohmann::json::parse(one.out);
+  EXPECT_EQ(j["samples"], 4096);
+  EXPECT_EQ(j["convergence"]["met"], false);
+  const SweepPlan plan = load_sweep(sweep, 500);
+  const auto alone = (dir_ / "alone.toml");
+  std::ofstream(alone) << plan.cases[1].text;
+  const auto alone_h5 = (dir_ / "alone.h5").string();
+  // The case's text names its base's relative files from the base's folder: run it from there.
+  ASSERT_EQ(run({"run", alone.string(), "-o", alone_h5, "--quiet"}).status, 0);
+  const auto direct = nlohmann::json::parse(run({"report", alone_h5, "--json"}).out);
+  EXPECT_EQ(j["footprint"], direct["footprint"]);
+  EXPECT_EQ(run({"report", output, "--case", "2"}).status, 2);    // no such case
+  EXPECT_EQ(run({"report", output}).status, 2);                   // which case?
+  EXPECT_EQ(run({"report", alone_h5, "--case", "0"}).status, 2);  // not a sweep
 }
 
 TEST_F(Sweep, MalformedSweepsAreRefusedBeforeAnyCaseRuns) {
