@@ -216,15 +216,16 @@ std::vector<const GroupFootprint*> shown_groups(const Footprint& f) {
 
 std::string centre_text(const StudyRecord& r, const GroupFootprint& g) {
   const Footprint& f = r.footprint;
-  const bool release = g.name == "all";
+  const bool release = g.name == "all" && f.groups.size() > 2;
+  const std::string name = g.name == "all" && !release ? f.groups.front().name : g.name;
   std::string what;
   if (f.centre == "mean")
     what = release ? "the mean impact of one object of the release (bodies weighted by their "
                      "objects per release)"
-                   : "the mean impact of " + g.name;
+                   : "the mean impact of " + name;
   else if (f.centre == "nominal")
     what = release ? "the nominal impacts of the bodies, weighted by their objects per release"
-                   : "the nominal impact of " + g.name + " (every input at its median)";
+                   : "the nominal impact of " + name + " (every input at its median)";
   else
     what = "the point given in study.centre";
   if (!std::isfinite(g.centre.east) || !std::isfinite(g.centre.north))
@@ -329,7 +330,10 @@ void write_record_text(std::ostream& out, const StudyRecord& r) {
   if (!f.rules.empty()) {
     out << "\nagainst the criteria entered in [rules] (reported, not decided):\n";
     for (const auto& k : f.rules) {
-      out << "  " << to_string(k.status) << "  " << k.group << " " << k.rule << ": "
+      // With one body, "all" is that body.
+      const std::string group =
+          k.group == "all" && f.groups.size() == 2 ? f.groups.front().name : k.group;
+      out << "  " << to_string(k.status) << "  " << group << " " << k.rule << ": "
           << rule_statement(k) << "\n";
       if (k.rule == "zone_radius")
         for (const auto& g : f.groups)
