@@ -117,46 +117,6 @@ class StopOnSignals {
   std::array<struct sigaction, 3> old_{};
 };
 
-// Makes the folder of an output file (and its parents) when it is missing (with `make`; without,
-// as `check` does, only finds that it could be made), and checks that a file can be made there,
-// before any flight: a destination that cannot be written is refused with status 2, nothing
-// having run. `origin` says where the path came from.
-void prepare_output(const std::string& path, const std::string& origin, bool make) {
-  namespace fs = std::filesystem;
-  fs::path folder = fs::path(path).parent_path();
-  std::error_code ec;
-  if (fs::is_directory(path, ec))
-    throw UsageError(origin + path + ": is a folder; name the results file itself");
-  if (folder.empty()) folder = ".";
-  fs::path existing = folder;  // the folder, or the nearest of its parents that exists
-  while (!fs::exists(existing, ec)) {
-    if (!existing.has_parent_path() || existing.parent_path() == existing) {
-      existing = ".";  // a relative path's first part: the working directory holds it
-      break;
-    }
-    existing = existing.parent_path();
-  }
-  if (!fs::is_directory(existing, ec))
-    throw UsageError(origin + path + ": cannot make the folder " + folder.string() + " (" +
-                     existing.string() + " is a file, not a folder)");
-  if (make && existing != folder) {
-    fs::create_directories(folder, ec);
-    if (ec || !fs::is_directory(folder))
-      throw UsageError(origin + path + ": cannot make the folder " + folder.string() + " (" +
-                       (ec ? ec.message() : std::string("a file is in the way")) + ")");
-    existing = folder;
-  }
-  // A file made and removed again: the one sure test that the folder takes new files.
-  const std::string probe =
-      (existing / (fs::path(temporary_path_of(path)).filename().string() + ".probe")).string();
-  const int fd = ::open(probe.c_str(), O_WRONLY | O_CREAT | O_EXCL, 0644);
-  if (fd < 0)
-    throw UsageError(origin + path + ": cannot write in " + existing.string() + " (" +
-                     std::strerror(errno) + ")");
-  ::close(fd);
-  ::unlink(probe.c_str());
-}
-
 // The results file: -o, else the scenario's [output] file, else results/<scenario name>.h5.
 std::string output_path(const RunArguments& a, const Scenario& s) {
   if (!a.output.empty()) return a.output;
@@ -220,21 +180,28 @@ int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& ou
           {p.point.time, p.point.position.x(), p.point.position.y(), p.point.position.z()});
     const auto& r = row.result;
     all_landed = all_landed && r.status == FlightStatus::landed;
-    j["bodies"].push_back({{"body", s.bodies[b].name},
-                           {"status", to_string(r.status)},
-                           {"canopy", to_string(row.inputs.body.canopy_state())},
-                           {"impact",
-                            {{"time", r.time},
-                             {"east", r.position.x()},
-                             {"north", r.position.y()},
-                             {"speed", r.speed},
-                             {"energy", r.energy},
-                             {"angle", r.angle}}},
-                           {"inputs", inputs},
-                           {"choices", choices},
-                           {"warnings", flight_warnings(r, row.limits, s.study.tolerance)},
-                           {"trajectory_columns", {"time", "east", "north", "altitude"}},
-                           {"trajectory", points}});
+    j["bodies"].push_back(
+        {{"body", s.bodies[b].name},
+         {"status", to_string(r.status)},
+         {"canopy", to_string(row.inputs.body.canopy_state())},
+         // No impact for a flight that did not land: where it ended.
+         {"impact", r.status == FlightStatus::landed ? nlohmann::json{{"time", r.time},
+                                                                      {"east", r.position.x()},
+                                                                      {"north", r.position.y()},
+                                                                      {"speed", r.speed},
+                                                                      {"energy", r.energy},
+                                                                      {"angle", r.angle}}
+                                                     : nlohmann::json(nullptr)},
+         {"end", r.status == FlightStatus::landed ? nlohmann::json(nullptr)
+                                                  : nlohmann::json{{"time", r.time},
+                                                                   {"east", r.position.x()},
+                                                                   {"north", r.position.y()},
+                                                                   {"altitude", r.position.z()}}},
+         {"inputs", inputs},
+         {"choices", choices},
+         {"warnings", flight_warnings(r, row.limits, s.study.tolerance)},
+         {"trajectory_columns", {"time", "east", "north", "altitude"}},
+         {"trajectory", points}});
   }
   out << j.dump(2) << '\n';
   return all_landed ? kExitDone : kExitFailure;
@@ -259,7 +226,7 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   const std::string path = output_path(a, scenario);
   const std::string origin = output_origin(a, scenario);
   // Refuse an unwritable destination before any flight (a missing folder is made).
-  if (job.leader()) prepare_output(path, origin, true);
+  if (job.leader()) prepare_output(path, origin, true, scenario.files_read);
   if (signals) StopOnSignals::remove_on_second_signal(temporary_path_of(path));
   const auto start_wall = std::chrono::steady_clock::now();
   check_memory(scenario, model);
@@ -301,7 +268,8 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   }
   if (run.result.interrupted) {
     if (show) err << "\n";
-    err << "interrupted: " << run.result.finished << " of " << samples
+    err << "interrupted: " << run.result.finished << " of "
+        << (run.result.planned ? run.result.planned : samples)
         << " samples are finished and kept in " << path
         << ".checkpoint; no results file was written. Run the "
         << "same command with --resume to go on.\n";
@@ -309,6 +277,9 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   }
   if (!job.leader()) return kExitDone;
   if (show) err << "\n";
+  if (a.resume)
+    err << "resumed: " << run.resumed << " of " << run.result.samples
+        << " samples taken from the checkpoint, the others flown now\n";
   run.record.file = path;
   if (a.timing)
     err << "timing: "
@@ -355,11 +326,12 @@ int run_report(const ReportArguments& a, std::ostream& out) {
                      "not keep (output.samples = false)");
   const StudyRecord& record = file.record;
   if (!a.geojson.empty())
-    write_report_file(a.geojson, geojson_text(record, need_samples ? &file.columns : nullptr));
+    write_report_file(a.geojson, geojson_text(record, need_samples ? &file.columns : nullptr),
+                      {a.results});
   std::vector<std::string> written;
   if (!a.geojson.empty()) written.push_back(a.geojson);
   if (!a.svg.empty()) {
-    write_report_file(a.svg, map_svg(record));
+    write_report_file(a.svg, map_svg(record), {a.results});
     written.push_back(a.svg);
     // With several bodies, a map of each beside the map of all: <name>-<body>.svg.
     const auto& groups = record.footprint.groups;
@@ -368,17 +340,17 @@ int run_report(const ReportArguments& a, std::ostream& out) {
       for (std::size_t b = 0; b + 1 < groups.size(); ++b) {
         const std::string path =
             (svg.parent_path() / (svg.stem().string() + "-" + groups[b].name + ".svg")).string();
-        write_report_file(path, map_svg(record, groups[b].name));
+        write_report_file(path, map_svg(record, groups[b].name), {a.results});
         written.push_back(path);
       }
     }
   }
   if (!a.html.empty()) {
-    write_report_file(a.html, html_report(record));
+    write_report_file(a.html, html_report(record), {a.results});
     written.push_back(a.html);
   }
   if (!a.csv.empty()) {
-    write_report_file(a.csv, figures_csv(record));
+    write_report_file(a.csv, figures_csv(record), {a.results});
     written.push_back(a.csv);
   }
   if (a.json)
@@ -390,21 +362,25 @@ int run_report(const ReportArguments& a, std::ostream& out) {
   return kExitDone;
 }
 
-// A whole number of at least `least`, refused in plain words (CLI11's own range checks print the
-// largest double, 309 digits).
-CLI::Validator whole_number(std::uint64_t least) {
+// A whole number from `least` to `most`, refused in plain words (CLI11's own range checks print
+// the largest double, 309 digits).
+CLI::Validator whole_number(std::uint64_t least, std::uint64_t most) {
   return CLI::Validator(
-      [least](std::string& text) -> std::string {
+      [least, most](std::string& text) -> std::string {
         std::uint64_t value = 0;
         const char* end = text.data() + text.size();
         const auto [stop, error] = std::from_chars(text.data(), end, value);
-        if (error != std::errc() || stop != end || value < least)
-          return "expected a whole number of at least " + std::to_string(least) + ", got \"" +
-                 text + "\"";
+        if (error != std::errc() || stop != end || value < least || value > most)
+          return "expected a whole number from " + std::to_string(least) + " to " +
+                 std::to_string(most) + ", got \"" + text + "\"";
         return "";
       },
-      least == 0 ? "WHOLE NUMBER" : "WHOLE NUMBER >= " + std::to_string(least));
+      "WHOLE NUMBER " + std::to_string(least) + ".." + std::to_string(most));
 }
+// The ranges of the command line's numbers: samples as study.samples (1 .. 2e9), threads as
+// many as a machine may have, seeds and indices as TOML's integers hold.
+constexpr std::uint64_t kMostSamples = 2000000000, kMostThreads = 4096,
+                        kMostInteger = 9223372036854775807ULL;
 
 }  // namespace
 
@@ -441,16 +417,17 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       "run", "Run the Monte Carlo study of a scenario into an HDF5 results file");
   run_cmd->add_option("SCENARIO", run.scenario, "Scenario file (TOML)")->required();
   run_cmd->add_option("-n", run.samples, "Samples (default: study.samples)")
-      ->check(whole_number(1));
+      ->check(whole_number(1, kMostSamples));
   run_cmd->add_option("--seed", run.seed, "Random seed (default: study.seed)")
-      ->check(whole_number(0));
-  run_cmd->add_option("-j", run.threads, "Threads (default: all)")->check(whole_number(1));
+      ->check(whole_number(0, kMostInteger));
+  run_cmd->add_option("-j", run.threads, "Threads (default: all)")
+      ->check(whole_number(1, kMostThreads));
   run_cmd->add_option("-o", run.output,
                       "Results file (default: output.file, else results/<scenario>.h5)");
   run_cmd
       ->add_option("--sample", run.sample,
                    "Replay this one sample with its trajectory (writes nothing)")
-      ->check(whole_number(0));
+      ->check(whole_number(0, kMostInteger));
   run_cmd->add_flag("--quiet", run.quiet, "No progress line");
   run_cmd->add_flag("--json", run.json, "Print the summary as JSON");
   run_cmd->add_flag("--resume", run.resume,
@@ -466,9 +443,9 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       "sweep", "Run every case of a parameter sweep (a complete study each) into one results file");
   sweep_cmd->add_option("SWEEP", sweep_file, "Sweep file (TOML)")->required();
   sweep_cmd->add_option("-n", sweep_samples, "Samples per case (default: the base scenario's)")
-      ->check(whole_number(1));
+      ->check(whole_number(1, kMostSamples));
   sweep_cmd->add_option("-j", sweep.threads, "Threads per rank (default: all)")
-      ->check(whole_number(1));
+      ->check(whole_number(1, kMostThreads));
   sweep_cmd->add_option("-o", sweep.output,
                         "Results file (default: the sweep's output, else results/<sweep>.h5)");
   sweep_cmd->add_flag(
@@ -484,7 +461,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
   report_cmd
       ->add_option("--case", report.sweep_case,
                    "Of a sweep's file: the case to show (0, 1, ...; see its summary CSV)")
-      ->check(whole_number(0));
+      ->check(whole_number(0, kMostInteger));
   report_cmd->add_flag("--json", report.json, "Print the summary as JSON");
   report_cmd->add_option("--geojson", report.geojson,
                          "Write the footprint as GeoJSON (needs site.latitude and longitude)");
@@ -540,7 +517,8 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       // The results file `run` would write: its folder must be one that can be made and written.
       RunArguments as_run;
       as_run.scenario = check_scenario;
-      prepare_output(output_path(as_run, scenario), output_origin(as_run, scenario), false);
+      prepare_output(output_path(as_run, scenario), output_origin(as_run, scenario), false,
+                     scenario.files_read);
       if (check_json)
         out << scenario_json(scenario).dump(2) << '\n';
       else

@@ -121,48 +121,49 @@ Place place(toml::table& root, const std::string& key, std::string& problem,
   }
   std::string walked = i == 1 ? steps[0].name : "";
   auto describe = [&] { return walked.empty() ? std::string("the scenario") : walked; };
+  // The table, or the list holding element `index`, that a step needs `node` to be; null, with
+  // the problem said, when it is not.
+  auto table_of = [&](toml::node* node) -> toml::table* {
+    toml::table* table = node->as_table();
+    if (!table) problem = describe() + " is " + node_kind(*node) + ", not a table";
+    return table;
+  };
+  auto list_of = [&](toml::node* node, std::size_t index) -> toml::array* {
+    toml::array* list = node->as_array();
+    if (!list) {
+      problem = describe() + " is " + node_kind(*node) + ", not a list";
+    } else if (index >= list->size()) {
+      problem = describe() + " has " + std::to_string(list->size()) +
+                " elements, counted from 0; there is no [" + std::to_string(index) + "]";
+      return nullptr;
+    }
+    return list;
+  };
   for (; i + 1 < steps.size(); ++i) {
     const KeyStep& step = steps[i];
     toml::node* next = nullptr;
     if (!step.name.empty()) {
-      toml::table* table = at->as_table();
-      if (!table) {
-        problem = describe() + " is " + node_kind(*at) + ", not a table";
+      toml::table* table = table_of(at);
+      if (!table) return {};
+      next = table->get(step.name);
+      if (!next && steps[i + 1].name.empty()) {
+        problem = walked + (walked.empty() ? "" : ".") + step.name + " is not in the scenario";
         return {};
       }
-      next = table->get(step.name);
-      if (!next) {
-        if (!steps[i + 1].name.empty())
-          next = &table->insert_or_assign(step.name, toml::table{}).first->second;
-        else {
-          problem = walked + (walked.empty() ? "" : ".") + step.name + " is not in the scenario";
-          return {};
-        }
-      }
+      if (!next) next = &table->insert_or_assign(step.name, toml::table{}).first->second;
       walked += (walked.empty() ? "" : ".") + step.name;
     } else {
-      toml::array* array = at->as_array();
-      if (!array) {
-        problem = describe() + " is " + node_kind(*at) + ", not a list";
-        return {};
-      }
-      if (step.index >= array->size()) {
-        problem = describe() + " has " + std::to_string(array->size()) +
-                  " elements, counted from 0; there is no [" + std::to_string(step.index) + "]";
-        return {};
-      }
-      next = array->get(step.index);
+      toml::array* list = list_of(at, step.index);
+      if (!list) return {};
+      next = list->get(step.index);
       walked += "[" + std::to_string(step.index) + "]";
     }
     at = next;
   }
   const KeyStep& last = steps.back();
   if (!last.name.empty()) {
-    toml::table* table = at->as_table();
-    if (!table) {
-      problem = describe() + " is " + node_kind(*at) + ", not a table";
-      return {};
-    }
+    toml::table* table = table_of(at);
+    if (!table) return {};
     if (existing) *existing = table->get(last.name);
     return [table, name = last.name](double v, bool integer) {
       if (integer)
@@ -171,22 +172,14 @@ Place place(toml::table& root, const std::string& key, std::string& problem,
         table->insert_or_assign(name, v);
     };
   }
-  toml::array* array = at->as_array();
-  if (!array) {
-    problem = describe() + " is " + node_kind(*at) + ", not a list";
-    return {};
-  }
-  if (last.index >= array->size()) {
-    problem = describe() + " has " + std::to_string(array->size()) +
-              " elements, counted from 0; there is no [" + std::to_string(last.index) + "]";
-    return {};
-  }
-  if (existing) *existing = array->get(last.index);
-  return [array, index = last.index](double v, bool integer) {
+  toml::array* list = list_of(at, last.index);
+  if (!list) return {};
+  if (existing) *existing = list->get(last.index);
+  return [list, index = last.index](double v, bool integer) {
     if (integer)
-      array->replace(array->cbegin() + static_cast<long>(index), static_cast<std::int64_t>(v));
+      list->replace(list->cbegin() + static_cast<long>(index), static_cast<std::int64_t>(v));
     else
-      array->replace(array->cbegin() + static_cast<long>(index), v);
+      list->replace(list->cbegin() + static_cast<long>(index), v);
   };
 }
 
@@ -284,11 +277,18 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
           d.add(axis.key_path("key"), axis.line_of("key"),
                 a.key + " is not a key of the scenario" + (problem.empty() ? "" : ": " + problem));
         } else if (existing) {
-          if (existing->is_table())
+          if (existing->is_table() && existing->as_table()->contains("dist"))
             d.add(axis.key_path("key"), axis.line_of("key"),
                   a.key + " is a distribution in " + *base +
                       "; sweep one of its parameters, e.g. " + a.key +
                       (existing->as_table()->contains("mean") ? ".mean" : ".median"));
+          else if (existing->is_table())
+            d.add(axis.key_path("key"), axis.line_of("key"),
+                  a.key + " is a table in " + *base + "; sweep one of its numeric keys, e.g. " +
+                      a.key + "." +
+                      (existing->as_table()->empty()
+                           ? std::string("speed")
+                           : std::string(existing->as_table()->cbegin()->first.str())));
           else if (!existing->is_number())
             d.add(axis.key_path("key"), axis.line_of("key"),
                   a.key + " is " + node_kind(*existing) + " in " + *base +
@@ -358,16 +358,31 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
     try {
       const Scenario s = parse_scenario(plan.cases[index].text, plan.base_path);
       (void)SampleModel(s, build_world(s), 1);  // correlations hold together
-      if (index == 0) plan.samples = static_cast<std::uint64_t>(s.study.samples);
+      if (index == 0) {
+        plan.samples = static_cast<std::uint64_t>(s.study.samples);
+        plan.files_read = s.files_read;
+        plan.files_read.push_back(path);
+      }
     } catch (const ScenarioError& e) {
       for (const auto& p : e.problems()) {
-        // Name the axis whose key the problem is about, at its line in the sweep file.
-        std::string key_path = p.key_path;
+        // Name the axis whose key the problem is about, at its line in the sweep file. The
+        // scenario names a body by its place (body[1].mass); an axis by its name (crate.mass).
+        std::string key_path = p.key_path, named = p.key_path;
+        if (named.rfind("body[", 0) == 0) {
+          const std::size_t close = named.find(']');
+          const auto* bodies = base_table["body"].as_array();
+          if (close != std::string::npos && bodies &&
+              named.find_first_not_of("0123456789", 5) == close) {
+            const std::size_t b = std::stoul(named.substr(5, close - 5));
+            const toml::table* body = b < bodies->size() ? bodies->get(b)->as_table() : nullptr;
+            const auto name = body ? (*body)["name"].value<std::string>() : std::nullopt;
+            if (name) named = *name + named.substr(close + 1);
+          }
+        }
         long line = 0;
         for (std::size_t a = 0; a < plan.axes.size(); ++a) {
           const std::string& k = plan.axes[a].key;
-          if (p.key_path == k || k.rfind(p.key_path + ".", 0) == 0 ||
-              p.key_path.rfind(k + ".", 0) == 0) {
+          if (named == k || k.rfind(named + ".", 0) == 0 || named.rfind(k + ".", 0) == 0) {
             key_path = "axis[" + std::to_string(a) + "].key";
             line = plan.axes[a].line;
             break;
@@ -426,9 +441,9 @@ int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options
   int threads = options.threads;
   if (threads <= 0) threads = static_cast<int>(std::thread::hardware_concurrency());
   if (job.leader()) {
-    const auto parent = fs::path(output).parent_path();
-    if (!parent.empty() && !fs::is_directory(parent))
-      throw IoError(output + ": the folder " + parent.string() + " does not exist");
+    // A missing folder is made; one that cannot be is refused before any case runs (status 2).
+    prepare_output(output, options.output.empty() ? plan.path + ": output: " : "", true,
+                   plan.files_read);
     std::error_code ec;
     if (options.fresh) fs::remove_all(folder, ec);
     fs::create_directories(folder, ec);
@@ -522,14 +537,16 @@ int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options
       throw IoError(file + ": case " + std::to_string(i) + " did not finish");
     sources.push_back({file, plan.cases[i].values});
   }
-  const std::string csv = write_sweep_file(output, plan.text, keys, plan.zip, sources, job.size());
+  const SweepSummary summary =
+      write_sweep_file(output, plan.text, keys, plan.zip, sources, job.size());
   const std::string csv_path = (fs::path(output).replace_extension("").string()) + "-summary.csv";
-  write_report_file(csv_path, csv);
+  write_report_file(csv_path, summary.csv, plan.files_read);
   std::error_code ec;
   fs::remove_all(folder, ec);
-  out << "strewn sweep: " << plan.cases.size() << " cases of " << plan.base_path << "\n"
-      << "results   " << output << "\nsummary   " << csv_path << "\n\n"
-      << csv;
+  out << "strewn sweep: " << plan.cases.size() << " cases of " << plan.base_path << "\n\n"
+      << summary.text << "\nresults   " << output << " (strewn report " << output
+      << " --case N shows case N in full)\nsummary   " << csv_path
+      << " (every figure of every case)\n";
   return 0;
 }
 

@@ -34,9 +34,10 @@ struct SweepPlan {
   std::string base_path;   ///< the base scenario, resolved against the sweep file's folder
   bool zip = false;
   std::vector<SweepAxis> axes;
-  std::vector<SweepCase> cases;  ///< grid: the first axis varies slowest
-  std::string output;            ///< the sweep's results file
-  std::uint64_t samples = 0;     ///< per case (the base scenario's, or -n)
+  std::vector<SweepCase> cases;         ///< grid: the first axis varies slowest
+  std::string output;                   ///< the sweep's results file
+  std::uint64_t samples = 0;            ///< per case (the base scenario's, or -n)
+  std::vector<std::string> files_read;  ///< the sweep file, the base scenario and its tables
 };
 
 /// Reads and checks a sweep file and every case. Throws ScenarioError with every problem (the

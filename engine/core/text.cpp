@@ -80,4 +80,11 @@ std::string csv_number(double value) {
   return printf_text("%.10g", value);
 }
 
+std::string readable_number(double value, int significant) {
+  std::string text = printf_text("%.*g", significant, value);
+  if (text.find('e') != std::string::npos && std::abs(value) >= 1.0 && std::abs(value) < 1e12)
+    text = printf_text("%.0f", value);
+  return text;
+}
+
 }  // namespace strewn

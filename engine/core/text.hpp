@@ -22,4 +22,8 @@ std::string format_number(double value);
 /// A number for a CSV cell: ten significant digits; empty for NaN (no value), "inf" or "-inf".
 std::string csv_number(double value);
 
+/// A number for a reader: `significant` figures, without an exponent from 1 up to 1e12 (16090,
+/// not 1.609e+04); small numbers keep theirs (5.72e-09).
+std::string readable_number(double value, int significant);
+
 }  // namespace strewn

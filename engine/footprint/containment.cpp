@@ -40,22 +40,11 @@ std::uint64_t upper_bound_rank(std::uint64_t n, double p, double c) {
 
 std::uint64_t samples_for_bound(double p, double c, std::uint64_t r) {
   // The r-th largest is rank n - r + 1; it bounds when P[Bin(n, p) <= n - r] >= c. That
-  // probability grows with n for fixed r, so search by doubling, then bisection.
-  auto holds = [&](std::uint64_t n) {
+  // probability grows with n for fixed r.
+  return smallest_count(r, [&](std::uint64_t n) {
     const boost::math::binomial_distribution<double> binomial(static_cast<double>(n), p);
     return boost::math::cdf(binomial, static_cast<double>(n - r)) >= c;
-  };
-  std::uint64_t high = r;
-  while (!holds(high)) high *= 2;
-  std::uint64_t low = std::max<std::uint64_t>(r, high / 2);
-  while (low < high) {
-    const std::uint64_t mid = low + (high - low) / 2;
-    if (holds(mid))
-      high = mid;
-    else
-      low = mid + 1;
-  }
-  return low;
+  });
 }
 
 std::uint64_t quantile_rank(std::uint64_t n, double p) {

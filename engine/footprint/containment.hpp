@@ -41,6 +41,27 @@ std::uint64_t upper_bound_rank(std::uint64_t n, double p, double c);
 /// confidence c (r = 1: the maximum).
 std::uint64_t samples_for_bound(double p, double c, std::uint64_t r = 1);
 
+/// The smallest count n >= `from` (at least 1) at which `holds(n)` is true, for a `holds` that is
+/// false below some count and true from it on: doubling, then bisection. 0 when it does not hold
+/// by `most`.
+template <class Holds>
+std::uint64_t smallest_count(std::uint64_t from, Holds holds,
+                             std::uint64_t most = std::uint64_t{1} << 40) {
+  const std::uint64_t first = from > 0 ? from : 1;
+  std::uint64_t high = first;
+  while (!holds(high) && high < most) high *= 2;
+  if (!holds(high)) return 0;
+  std::uint64_t low = high / 2 > first ? high / 2 : first;
+  while (low < high) {
+    const std::uint64_t mid = low + (high - low) / 2;
+    if (holds(mid))
+      high = mid;
+    else
+      low = mid + 1;
+  }
+  return high;
+}
+
 /// The rank of the empirical p-quantile among n samples: the smallest k with k >= p n (at least 1).
 std::uint64_t quantile_rank(std::uint64_t n, double p);
 

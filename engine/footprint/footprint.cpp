@@ -180,6 +180,17 @@ void correlation_ratios(std::span<const double> column,
   }
 }
 
+// Whether an input can move the impacts of group `group`: every input but another body's own
+// (named "<other body>.", as "crate.mass" cannot move the straps).
+bool concerns(const std::string& input, const std::string& group,
+              const std::vector<std::string>& bodies) {
+  for (const auto& body : bodies)
+    if (body != group && input.size() > body.size() && input.compare(0, body.size(), body) == 0 &&
+        input[body.size()] == '.')
+      return false;
+  return true;
+}
+
 struct GroupRows {
   std::vector<std::uint32_t> landed;  // row indices, in row order
   std::uint64_t rows = 0;
@@ -275,6 +286,7 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
         el.semi_minor = el.scale * std::sqrt(axes.minor);
         el.bearing = axes.bearing;
         el.counted = g.rows ? static_cast<double>(inside[l]) / static_cast<double>(g.rows) : kNaN;
+        if (m < 2) el.semi_major = el.semi_minor = el.bearing = kNaN;  // no spread to measure
         f.ellipses.push_back(el);
       }
     });
@@ -421,6 +433,7 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
   } else if (ranked) {
     f.sensitivity.resize(t.inputs.size());
     tbb::parallel_for(std::size_t{0}, t.inputs.size(), [&](std::size_t d) {
+      if (!concerns(t.input_names[d], name, s.body_names)) return;  // removed below
       RankScratch& scratch = scratches.local();
       std::vector<double> r_input(m), column(m);
       for (std::size_t k = 0; k < m; ++k) column[k] = t.inputs[d][g.landed[k]];
@@ -435,13 +448,15 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
       }
       f.sensitivity[d] = {t.input_names[d], rho[0], rho[1], rho[2], rho[3], categorical};
     });
+    std::erase_if(f.sensitivity, [](const InputSensitivity& x) { return x.input.empty(); });
     // Strongest first: the input that moves the impact most leads (ties keep the inputs' order).
     std::stable_sort(f.sensitivity.begin(), f.sensitivity.end(),
                      [](const auto& a, const auto& b) { return a.strength() > b.strength(); });
   } else {
     for (std::size_t d = 0; d < t.input_names.size(); ++d)
-      f.sensitivity.push_back(
-          {t.input_names[d], kNaN, kNaN, kNaN, kNaN, d < t.categorical.size() && t.categorical[d]});
+      if (concerns(t.input_names[d], name, s.body_names))
+        f.sensitivity.push_back({t.input_names[d], kNaN, kNaN, kNaN, kNaN,
+                                 d < t.categorical.size() && t.categorical[d]});
   }
   return f;
 }
@@ -500,21 +515,8 @@ RuleCheck judge(std::string rule, std::string group, double threshold, double ac
     return value < accepted ? clopper_pearson_upper(x, n, confidence) <= accepted
                             : clopper_pearson_lower(x, n, confidence) > accepted;
   };
-  if (value != accepted && rows > 0 && !(share.upper <= accepted || share.lower > accepted)) {
-    std::uint64_t high = std::max<std::uint64_t>(rows, 1);
-    while (!decides(high) && high < (std::uint64_t{1} << 40)) high *= 2;
-    if (decides(high)) {
-      std::uint64_t low = rows;
-      while (low < high) {
-        const std::uint64_t mid = low + (high - low) / 2;
-        if (decides(mid))
-          high = mid;
-        else
-          low = mid + 1;
-      }
-      needed = high;
-    }
-  }
+  if (value != accepted && rows > 0 && !(share.upper <= accepted || share.lower > accepted))
+    needed = smallest_count(rows, decides);
   return judge_share(std::move(rule), std::move(group), threshold, accepted, count, rows, share,
                      confidence, needed);
 }
@@ -667,6 +669,7 @@ GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettin
                 inside += row_weight[k];
             }
         el.counted = f.objects_per_release > 0.0 ? inside / f.objects_per_release : kNaN;
+        if (f.landed < 2) el.semi_major = el.semi_minor = el.bearing = kNaN;
         f.ellipses.push_back(el);
       }
     });

@@ -169,18 +169,7 @@ std::uint64_t MixtureColumn::samples_to_decide(double x, double accepted, double
   };
   std::uint64_t rows = 1;
   for (const auto& k : components_) rows = std::max(rows, k.rows);
-  std::uint64_t high = rows;
-  while (!decides(high) && high < (std::uint64_t{1} << 40)) high *= 2;
-  if (!decides(high)) return 0;
-  std::uint64_t low = rows;
-  while (low < high) {
-    const std::uint64_t mid = low + (high - low) / 2;
-    if (decides(mid))
-      high = mid;
-    else
-      low = mid + 1;
-  }
-  return high;
+  return smallest_count(rows, decides);
 }
 
 }  // namespace strewn

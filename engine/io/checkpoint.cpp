@@ -56,13 +56,16 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
     }
     if (whole_header) {
       good_bytes = header.size();
+      std::error_code size_error;
+      const std::uint64_t file_bytes = std::filesystem::file_size(path_, size_error);
       while (true) {              // complete records only
         std::uint64_t fields[4];  // magic, first row, rows, payload bytes
         if (std::fread(fields, sizeof fields, 1, in) != 1 || fields[0] != kRecordMagic) break;
+        // A damaged length is not believed: a whole record lies within the file.
+        if (size_error || fields[3] > file_bytes - good_bytes) break;
         std::vector<std::byte> payload(fields[3]);
         std::uint32_t crc = 0;
-        if (fields[3] > (std::uint64_t{1} << 40) ||
-            std::fread(payload.data(), 1, payload.size(), in) != payload.size() ||
+        if (std::fread(payload.data(), 1, payload.size(), in) != payload.size() ||
             std::fread(&crc, sizeof crc, 1, in) != 1 || crc != crc_of(payload))
           break;
         StudyColumns rows;

@@ -50,10 +50,11 @@ nlohmann::json group_json(const GroupFootprint& g) {
       {"objects_per_release", g.objects_per_release},
       {"mean", {{"east", json_number(g.mean.east)}, {"north", json_number(g.mean.north)}}},
       {"centre", {{"east", json_number(g.centre.east)}, {"north", json_number(g.centre.north)}}},
+      // Undetermined below two landed flights.
       {"covariance",
-       {{"east_east", g.covariance[0]},
-        {"east_north", g.covariance[1]},
-        {"north_north", g.covariance[2]}}},
+       {{"east_east", g.landed >= 2 ? json_number(g.covariance[0]) : nullptr},
+        {"east_north", g.landed >= 2 ? json_number(g.covariance[1]) : nullptr},
+        {"north_north", g.landed >= 2 ? json_number(g.covariance[2]) : nullptr}}},
       {"containment", upper_quantiles_json(g.containment, "radius", "radius_upper")},
       {"cep", {{"counted", json_number(g.cep)}, {"gaussian", json_number(g.cep_gaussian)}}}};
   nlohmann::json ellipses = nlohmann::json::array();
@@ -131,6 +132,7 @@ std::string rule_statement(const RuleCheck& r) {
 nlohmann::json record_json(const StudyRecord& r, bool provenance) {
   nlohmann::json j{{"samples", r.samples}, {"completed", r.completed}, {"failed", r.failed},
                    {"seed", r.seed},       {"sampling", r.sampling},   {"title", r.title}};
+  if (!r.case_label.empty()) j["case"] = r.case_label;
   if (provenance) {
     j["provenance"] = {{"file", r.file},
                        {"engine_version", r.engine_version},
@@ -242,7 +244,7 @@ std::string centre_text(const StudyRecord& r, const GroupFootprint& g) {
 namespace {
 std::string metres(double v) {
   if (std::isnan(v)) return "-";
-  if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
+  if (std::isinf(v)) return "unbounded";  // failed flights reach it (they count as infinitely far)
   // Decimetres for field studies; three significant digits below 10 m (a laboratory tank).
   return std::abs(v) >= 10.0 || v == 0.0 ? printf_text("%.1f", v) : printf_text("%.3g", v);
 }
@@ -250,14 +252,17 @@ std::string metres(double v) {
 
 void write_record_text(std::ostream& out, const StudyRecord& r) {
   const Footprint& f = r.footprint;
-  out << "strewn: " << (r.title.empty() ? std::string("study") : r.title) << "\n"
-      << r.samples << " samples, " << r.completed << " flights landed, " << r.failed
+  out << "strewn: " << (r.title.empty() ? std::string("study") : r.title) << "\n";
+  if (!r.case_label.empty()) out << r.case_label << "\n";
+  out << r.samples << " samples, " << r.completed << " flights landed, " << r.failed
       << " failed (seed " << r.seed << ", " << r.sampling << " sampling";
   if (r.rounds > 1) out << ", grown in " << r.rounds << " parts";
   out << "); bounds at " << f.confidence * 100.0 << "% confidence\n";
   const std::vector<std::string> warnings = record_warnings(r);
   if (!warnings.empty())
     out << "warnings  " << warnings.size() << ", listed below: read them before the figures\n";
+  else
+    out << "warnings  none: every sample stayed within its models' ranges and assumptions\n";
   for (const GroupFootprint* group : shown_groups(f)) {
     const GroupFootprint& g = *group;
     char line[256];
@@ -270,7 +275,8 @@ void write_record_text(std::ostream& out, const StudyRecord& r) {
     out << ": mean impact east " << metres(g.mean.east) << " m, north " << metres(g.mean.north)
         << " m; CEP " << metres(g.cep) << " m (Gaussian " << metres(g.cep_gaussian) << " m)\n"
         << "  centre: " << centre_text(r, g) << "\n";
-    out << "  level   radius m   upper bound m   polygon m^2 (counted)   ellipse m (Gaussian)\n";
+    out << "  level   radius m   upper bound m   polygon m^2 (counted)   ellipse semi-axes m "
+           "(Gaussian)\n";
     for (std::size_t k = 0; k < g.containment.size(); ++k) {
       const auto& c = g.containment[k];
       const std::string upper =
@@ -283,7 +289,7 @@ void write_record_text(std::ostream& out, const StudyRecord& r) {
         polygon = p;
       }
       std::string ellipse = "-";
-      if (k < g.ellipses.size()) {
+      if (k < g.ellipses.size() && g.landed >= 2) {
         char e[64];
         std::snprintf(e, sizeof e, "%s x %s", metres(g.ellipses[k].semi_major).c_str(),
                       metres(g.ellipses[k].semi_minor).c_str());

@@ -3,6 +3,7 @@
 #include <cstdio>
 #include <sstream>
 
+#include "core/text.hpp"
 #include "io/cautions.hpp"
 #include "io/footprint_report.hpp"
 #include "io/report_files.hpp"
@@ -17,6 +18,11 @@ std::string cell(double v, const char* format = "%.1f") {
   char text[48];
   std::snprintf(text, sizeof text, format, v);
   return text;
+}
+
+// Energies span tiny droplets to tonnes: four figures, without an exponent above 1 J.
+std::string energy_cell(double v) {
+  return std::isfinite(v) ? readable_number(v, 4) : cell(v);
 }
 
 const char* kStyle = R"(
@@ -109,8 +115,9 @@ void maps_section(std::ostream& h, const StudyRecord& r) {
     h << "<figure>\n"
       << svg << "<figcaption class=\"note\">" << caption
       << " Hazard polygons hold at least their level of the impacts, counted; dashed circles are "
-         "the distribution-free upper bounds of the containment radii; dotted ellipses are a "
-         "Gaussian approximation; dash-dotted circles are the zones of your rules.</figcaption>\n"
+         "the distribution-free upper bounds of the containment radii (the faint circles their "
+         "estimates); dash-dotted circles are the zones of your rules. The Gaussian ellipses are "
+         "in the tables.</figcaption>\n"
          "</figure>\n";
   };
   if (f.groups.size() > 2) {
@@ -133,10 +140,12 @@ std::string html_report(const StudyRecord& r) {
     << "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
     << "<title>" << escape_markup(title) << " &ndash; strewn report</title>\n<style>" << kStyle
     << "</style>\n</head>\n<body>\n<main>\n";
-  h << "<h1>" << escape_markup(title) << "</h1>\n<p class=\"note\">" << r.samples << " samples, "
-    << r.completed << " landed, " << r.failed << " failed; " << escape_markup(r.sampling)
-    << " sampling; bounds at " << f.confidence * 100.0 << "% confidence; centre "
-    << escape_markup(f.centre) << ".</p>\n";
+  h << "<h1>" << escape_markup(title) << "</h1>\n";
+  if (!r.case_label.empty())
+    h << "<p id=\"case\"><strong>" << escape_markup(r.case_label) << "</strong></p>\n";
+  h << "<p class=\"note\">" << r.samples << " samples, " << r.completed << " landed, " << r.failed
+    << " failed; " << escape_markup(r.sampling) << " sampling; bounds at " << f.confidence * 100.0
+    << "% confidence; centre " << escape_markup(f.centre) << ".</p>\n";
   h << "<section class=\"cautions\" id=\"cautions\"><strong>Read this first.</strong><ul>\n";
   for (const auto& c : cautions()) h << "<li>" << escape_markup(c) << "</li>\n";
   h << "</ul></section>\n";
@@ -221,8 +230,8 @@ std::string html_report(const StudyRecord& r) {
       const auto& en = g.energy[k];
       h << "<tr><td class=\"name\">" << name(g) << "</td><td>" << sp.level << "</td><td>"
         << cell(sp.radius) << "</td><td>" << (sp.radius_upper ? cell(*sp.radius_upper) : "&ndash;")
-        << "</td><td>" << cell(en.radius, "%.4g") << "</td><td>"
-        << (en.radius_upper ? cell(*en.radius_upper, "%.4g") : "&ndash;") << "</td></tr>\n";
+        << "</td><td>" << energy_cell(en.radius) << "</td><td>"
+        << (en.radius_upper ? energy_cell(*en.radius_upper) : "&ndash;") << "</td></tr>\n";
     }
   }
   h << "</table>\n<table id=\"exceedance\"><tr><th class=\"name\">group</th><th>threshold J</th>"

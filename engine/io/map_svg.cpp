@@ -30,10 +30,11 @@ const char* level_colour(std::size_t k) {
 constexpr const char* kInk = "#1f2933";
 constexpr const char* kZone = "#111111";
 
-// Density shading: from pale wheat to deep plum through apricot and brick, on log10 scale.
+// Density shading, on log10 scale: greys from near white to slate, so that no shade is mistaken
+// for a level's line colour and every line (over its white halo) reads on every shade.
 std::string density_colour(double t) {  // t in [0, 1], 1 the densest
   static const double stops[4][3] = {
-      {251, 238, 193}, {242, 184, 114}, {209, 96, 61}, {107, 45, 92}};
+      {236, 236, 230}, {196, 199, 197}, {140, 146, 150}, {74, 81, 90}};
   t = std::clamp(t, 0.0, 1.0) * 3.0;
   const int i = std::min(2, static_cast<int>(t));
   const double f = t - i;
@@ -87,9 +88,10 @@ std::string path_of(const View& v, const std::vector<PlanePoint>& ring) {
 
 // Text with a white halo (drawn under its letters), readable on any shading.
 void label(std::ostream& s, double x, double y, const std::string& text, const char* colour,
-           const char* anchor = "start", double size = 12.0) {
+           const char* anchor = "start", double size = 12.0, bool bold = false) {
   s << "<text x=\"" << fmt(x) << "\" y=\"" << fmt(y) << "\" font-size=\"" << size
-    << "\" text-anchor=\"" << anchor << "\" fill=\"" << colour
+    << (bold ? "\" font-weight=\"bold" : "") << "\" text-anchor=\"" << anchor << "\" fill=\""
+    << colour
     << "\" stroke=\"#ffffff\" stroke-width=\"3.5\" stroke-linejoin=\"round\" "
        "paint-order=\"stroke\">"
     << escape_markup(text) << "</text>\n";
@@ -178,7 +180,9 @@ class MapWriter {
        << escape_markup(group_title()) << "\">\n";
     s_ << "<rect width=\"100%\" height=\"100%\" fill=\"#ffffff\"/>\n";
     s_ << "<text x=\"" << kLeft << "\" y=\"26\" font-size=\"18\" font-weight=\"bold\" fill=\""
-       << kInk << "\">" << escape_markup(r_.title.empty() ? "strewn footprint" : r_.title)
+       << kInk << "\">"
+       << escape_markup((r_.title.empty() ? std::string("strewn footprint") : r_.title) +
+                        (r_.case_label.empty() ? "" : ", " + r_.case_label))
        << "</text>\n";
     s_ << "<text x=\"" << kLeft << "\" y=\"46\" font-size=\"13\" fill=\"#52606d\">"
        << escape_markup(group_title() + "; " + std::to_string(r_.samples) + " samples, " +
@@ -248,30 +252,20 @@ class MapWriter {
     s_ << "</g>\n";
   }
 
-  // Ellipses (dotted), containment circles (thin; dashed for the upper bound) labelled with their
-  // level, hazard polygons (solid); each line over a white halo.
+  // Containment circles labelled with their level (the upper bound dashed over a white halo,
+  // the estimate thin beneath it) and hazard polygons (solid). The Gaussian ellipses are left to
+  // the tables and the GeoJSON: sixteen curves over four levels would hide the footprint.
   void figures() {
     const GroupFootprint& g = g_;
-    for (std::size_t k = 0; k < g.ellipses.size(); ++k) {
-      const auto& e = g.ellipses[k];
-      if (!(e.semi_major > 0.0) || !std::isfinite(e.semi_major)) continue;
-      const std::string at = "class=\"ellipse\" cx=\"" + fmt(view_.x(g.mean.east)) + "\" cy=\"" +
-                             fmt(view_.y(g.mean.north)) + "\" rx=\"" +
-                             fmt(e.semi_major * view_.scale()) + "\" ry=\"" +
-                             fmt(std::max(e.semi_minor, 1e-9) * view_.scale()) +
-                             "\" transform=\"rotate(" + fmt(e.bearing - 90.0) + " " +
-                             fmt(view_.x(g.mean.east)) + " " + fmt(view_.y(g.mean.north)) + ")\"";
-      s_ << haloed("ellipse", at, level_colour(k), 1.0, "1.5 3");
-    }
     const double cx = view_.x(g.centre.east), cy = view_.y(g.centre.north);
     for (std::size_t k = 0; k < g.containment.size(); ++k) {
       const auto& ct = g.containment[k];
-      if (std::isfinite(ct.radius) && std::isfinite(cx))
-        s_ << haloed("circle",
-                     "class=\"containment\" cx=\"" + fmt(cx) + "\" cy=\"" + fmt(cy) + "\" r=\"" +
-                         fmt(ct.radius * view_.scale()) + "\"",
-                     level_colour(k), 1.0);
       const bool bounded = ct.radius_upper && std::isfinite(*ct.radius_upper);
+      if (std::isfinite(ct.radius) && std::isfinite(cx))
+        s_ << "<circle class=\"containment\" cx=\"" << fmt(cx) << "\" cy=\"" << fmt(cy) << "\" r=\""
+           << fmt(ct.radius * view_.scale()) << "\" fill=\"none\" stroke=\"" << level_colour(k)
+           << "\" stroke-width=\"" << (bounded ? "0.8" : "1.4") << "\" stroke-opacity=\""
+           << (bounded ? "0.55" : "1") << "\"/>\n";
       if (bounded && std::isfinite(cx))
         s_ << haloed("circle",
                      "class=\"containment-bound\" cx=\"" + fmt(cx) + "\" cy=\"" + fmt(cy) +
@@ -284,7 +278,7 @@ class MapWriter {
         const double radius = outer * view_.scale();
         const double angle = (30.0 + 14.0 * static_cast<double>(k)) * std::numbers::pi / 180.0;
         label(s_, cx + radius * std::cos(angle) + 4.0, cy - radius * std::sin(angle) - 3.0,
-              printf_text("%g %%", 100.0 * ct.level), level_colour(k));
+              printf_text("%g %%", 100.0 * ct.level), level_colour(k), "start", 13.0, true);
       }
     }
     for (std::size_t k = 0; k < g.polygons.size(); ++k) {
@@ -311,25 +305,17 @@ class MapWriter {
                    "class=\"rule-zone\" cx=\"" + fmt(cx) + "\" cy=\"" + fmt(cy) + "\" r=\"" +
                        fmt(radius) + "\"",
                    kZone, 2.4, "14 4 2 4");
-      label(s_, cx, cy - radius - 6.0,
+      // Inside the circle, under its top: above it, the label could leave the panel.
+      label(s_, cx, radius > 40.0 ? cy - radius + 18.0 : cy - radius - 6.0,
             "zone " + length_label(k->threshold) + ": " + to_string(k->status) +
                 printf_text(" (accepted outside %g)", k->accepted),
-            kZone, "middle", 13.0);
+            kZone, "middle", 13.0, true);
     }
   }
 
-  // Release point and track; centre and mean impact.
+  // Centre and mean impact; release point and track drawn last, on top, and half transparent,
+  // so that a release point on the centre hides neither.
   void markers() {
-    const double x = view_.x(r_.release.east), y = view_.y(r_.release.north);
-    const double t = r_.release_track * std::numbers::pi / 180.0;
-    const double length = 0.14 * kPanel;
-    s_ << "<line class=\"release-track\" x1=\"" << fmt(x) << "\" y1=\"" << fmt(y) << "\" x2=\""
-       << fmt(x + length * std::sin(t)) << "\" y2=\"" << fmt(y - length * std::cos(t))
-       << "\" stroke=\"" << kInk << "\" stroke-width=\"1.6\" marker-end=\"url(#arrow-" << clip_id()
-       << ")\"/>\n";
-    s_ << "<path class=\"release-point\" d=\"M" << fmt(x) << " " << fmt(y - 8) << " L" << fmt(x + 7)
-       << " " << fmt(y + 5) << " L" << fmt(x - 7) << " " << fmt(y + 5)
-       << " Z\" fill=\"#ffffff\" stroke=\"" << kInk << "\" stroke-width=\"1.6\"/>\n";
     const double cx = view_.x(g_.centre.east), cy = view_.y(g_.centre.north);
     if (std::isfinite(cx) && std::isfinite(cy))
       s_ << "<path class=\"centre\" d=\"M" << fmt(cx - 7) << " " << fmt(cy) << " H" << fmt(cx + 7)
@@ -342,6 +328,17 @@ class MapWriter {
     if (std::isfinite(mx) && std::isfinite(my))
       s_ << "<circle class=\"mean-impact\" cx=\"" << fmt(mx) << "\" cy=\"" << fmt(my)
          << "\" r=\"3\" fill=\"" << kInk << "\" stroke=\"#ffffff\" stroke-width=\"1\"/>\n";
+    const double x = view_.x(r_.release.east), y = view_.y(r_.release.north);
+    const double t = r_.release_track * std::numbers::pi / 180.0;
+    const double length = 0.14 * kPanel;
+    s_ << "<line class=\"release-track\" x1=\"" << fmt(x) << "\" y1=\"" << fmt(y) << "\" x2=\""
+       << fmt(x + length * std::sin(t)) << "\" y2=\"" << fmt(y - length * std::cos(t))
+       << "\" stroke=\"" << kInk << "\" stroke-width=\"1.6\" marker-end=\"url(#arrow-" << clip_id()
+       << ")\"/>\n";
+    s_ << "<path class=\"release-point\" d=\"M" << fmt(x) << " " << fmt(y - 10) << " L"
+       << fmt(x + 9) << " " << fmt(y + 6) << " L" << fmt(x - 9) << " " << fmt(y + 6)
+       << " Z\" fill=\"#ffffff\" fill-opacity=\"0.55\" stroke=\"" << kInk
+       << "\" stroke-width=\"1.8\"/>\n";
   }
 
   // Graticule: the positions (m, along the panel's east or north axis) of round latitudes or
@@ -370,8 +367,17 @@ class MapWriter {
     if (!a || !b) return out;
     const double d0 = east_axis ? a->longitude : a->latitude;
     const double d1 = east_axis ? b->longitude : b->latitude;
-    const double step = round_length(std::abs(d1 - d0) / 4.0);
-    const int places = std::max(0, static_cast<int>(std::ceil(-std::log10(step))));
+    // A round step giving at most five ticks whose labels (about 6.5 px a character at 11 px)
+    // do not run into each other.
+    double step = round_length(std::abs(d1 - d0) / 4.0);
+    int places = 0;
+    for (int tries = 0; tries < 8; ++tries) {
+      places = std::max(0, static_cast<int>(std::ceil(-std::log10(step) - 1e-9)));
+      const double width = 6.5 * (static_cast<double>(places) + 6.0);
+      const double spacing = step / std::abs(d1 - d0) * kPanel;
+      if (spacing >= width + 14.0) break;
+      step = round_length(step * 2.5) == step ? step * 2.0 : round_length(step * 2.5);
+    }
     for (double v = std::ceil(std::min(d0, d1) / step) * step; v <= std::max(d0, d1) + 1e-12;
          v += step) {
       const GeoPoint at = east_axis ? GeoPoint{a->latitude, v} : GeoPoint{v, a->longitude};
@@ -456,7 +462,6 @@ class MapWriter {
     line_entry("", 2.2, kInk, "hazard polygon (counted)");
     line_entry("", 1.0, kInk, "containment radius");
     line_entry("8 4", 1.6, kInk, "its upper confidence bound");
-    line_entry("1.5 3", 1.0, kInk, "ellipse (Gaussian approx.)");
     if (!zone_rules(f_, g_).empty()) line_entry("14 4 2 4", 2.4, kZone, "zone of a rule ([rules])");
     s_ << "<path d=\"M" << x + 11 << " " << y - 12 << " L" << x + 18 << " " << y + 1 << " L"
        << x + 4 << " " << y + 1 << " Z\" fill=\"#ffffff\" stroke=\"" << kInk << "\"/><text x=\""

@@ -14,6 +14,7 @@
 #include "core/text.hpp"
 #include "io/cautions.hpp"
 #include "io/footprint_report.hpp"
+#include "io/results_file.hpp"
 
 namespace strewn {
 
@@ -38,14 +39,21 @@ std::string escape_markup(const std::string& text) {
         out += "&#39;";
         break;
       default:
-        out += c;
+        // XML 1.0 admits no C0 control character but tab, line feed and carriage return: any
+        // other would make the map a parse error, so it is shown as the replacement character.
+        if ((static_cast<unsigned char>(c) < 0x20 && c != '\t' && c != '\n' && c != '\r'))
+          out += "\xEF\xBF\xBD";
+        else
+          out += c;
     }
   }
   return out;
 }
 
-void write_report_file(const std::string& path, const std::string& text) {
+void write_report_file(const std::string& path, const std::string& text,
+                       const std::vector<std::string>& reads) {
   namespace fs = std::filesystem;
+  refuse_unsafe_output(path, "", reads);
   const fs::path final_path(path);
   // A missing folder is made, as for a study's results file.
   if (const fs::path folder = final_path.parent_path(); !folder.empty()) {
@@ -181,6 +189,20 @@ std::string geojson_text(const StudyRecord& r, const StudyColumns* impacts) {
       features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(g.mean)}},
                                  {{"group", g.name}, {"kind", "mean_impact"}}));
   }
+  // The zone of each zone rule: the planned radius about its group's centre, with its status.
+  for (const auto& k : r.footprint.rules) {
+    if (k.rule != "zone_radius") continue;
+    for (const auto& g : r.footprint.groups)
+      if (g.name == k.group && std::isfinite(g.centre.east))
+        features.push_back(feature(
+            {{"type", "Polygon"}, {"coordinates", {geo.ring(circle_ring(g.centre, k.threshold))}}},
+            {{"group", g.name},
+             {"kind", "rule_zone"},
+             {"radius_m", k.threshold},
+             {"accepted_outside", k.accepted},
+             {"status", to_string(k.status)},
+             {"estimate_outside", json_number(k.value)}}));
+  }
   features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(r.release)}},
                              {{"kind", "release_point"},
                               {"altitude_m", r.release_altitude},
@@ -216,9 +238,12 @@ std::string figures_csv(const StudyRecord& r) {
       for (char c : text) q += c == '"' ? std::string("\"\"") : std::string(1, c);
       return q + "\"";
     };
+    // The confidence belongs to a figure that has bounds; a mean or a CEP has none.
+    const bool bounded = !(std::isnan(lower) && std::isnan(upper) && std::isnan(bound));
     out += quoted(group) + "," + figure + "," + number(level) + "," + number(estimate) + "," +
            number(lower) + "," + number(upper) + "," + number(bound) + "," +
-           number(r.footprint.confidence) + "," + unit + "," + quoted(note) + "\n";
+           (bounded ? number(r.footprint.confidence) : std::string()) + "," + unit + "," +
+           quoted(note) + "\n";
   };
   constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
   for (const auto& g : r.footprint.groups) {

@@ -3,6 +3,7 @@
 // self-contained HTML page. Each is built from the study's record alone, as stored in the results
 // file, so it shows exactly the figures `run` computed. docs/results.md describes each file.
 #include <string>
+#include <vector>
 
 #include "io/study_record.hpp"
 #include "study/study.hpp"
@@ -32,8 +33,11 @@ std::string map_svg(const StudyRecord& record);
 /// One self-contained HTML page: the map, the tables, the rule statuses, provenance, cautions.
 std::string html_report(const StudyRecord& record);
 
-/// Writes a file whole (temporary name, then rename). Throws IoError naming the path.
-void write_report_file(const std::string& path, const std::string& text);
+/// Writes a file whole (temporary name, then rename), making a missing folder. Refuses
+/// (UsageError, status 2) a path that is a folder, a device, a pipe or a link, or one of `reads`,
+/// the files the command reads; throws IoError naming the path when writing fails.
+void write_report_file(const std::string& path, const std::string& text,
+                       const std::vector<std::string>& reads = {});
 
 /// Text escaped for XML and HTML.
 std::string escape_markup(const std::string& text);

@@ -1,17 +1,22 @@
 #include "io/results_file.hpp"
 
 #include <H5Cpp.h>
+#include <fcntl.h>
 #include <openssl/evp.h>
+#include <signal.h>
 #include <unistd.h>
 
 #include <atomic>
+#include <cerrno>
 #include <chrono>
 #include <cstdio>
+#include <cstring>
 #include <ctime>
 #include <filesystem>
 #include <optional>
 
 #include "core/errors.hpp"
+#include "core/text.hpp"
 #include "core/version.hpp"
 #include "footprint/footprint.hpp"
 #include "io/checkpoint.hpp"
@@ -140,6 +145,76 @@ std::string temporary_path_of(const std::string& path) {
   return (final_path.parent_path() /
           (final_path.filename().string() + ".partial-" + std::to_string(::getpid())))
       .string();
+}
+
+// Makes the folder of an output file (and its parents) when it is missing (with `make`; without,
+// as `check` does, only finds that it could be made), and checks that a file can be made there,
+// before any flight: a destination that cannot be written is refused with status 2, nothing
+// having run. `origin` says where the path came from.
+void refuse_unsafe_output(const std::string& path, const std::string& origin,
+                          const std::vector<std::string>& inputs) {
+  namespace fs = std::filesystem;
+  std::error_code ec;
+  const fs::file_status status = fs::symlink_status(path, ec);
+  if (fs::is_directory(status))
+    throw UsageError(origin + path + ": is a folder; name the output file itself");
+  if (fs::exists(status) && !fs::is_regular_file(status))
+    throw UsageError(origin + path +
+                     ": is not a regular file (a device, a pipe or a link); strewn writes its "
+                     "outputs only as regular files, which it replaces whole");
+  for (const auto& input : inputs)
+    if (fs::exists(status) && fs::equivalent(path, input, ec))
+      throw UsageError(origin + path + ": is a file this command reads (" + input +
+                       "); choose another name for the output");
+}
+
+void prepare_output(const std::string& path, const std::string& origin, bool make,
+                    const std::vector<std::string>& inputs) {
+  namespace fs = std::filesystem;
+  refuse_unsafe_output(path, origin, inputs);
+  fs::path folder = fs::path(path).parent_path();
+  std::error_code ec;
+  if (folder.empty()) folder = ".";
+  fs::path existing = folder;  // the folder, or the nearest of its parents that exists
+  while (!fs::exists(existing, ec)) {
+    if (!existing.has_parent_path() || existing.parent_path() == existing) {
+      existing = ".";  // a relative path's first part: the working directory holds it
+      break;
+    }
+    existing = existing.parent_path();
+  }
+  if (!fs::is_directory(existing, ec))
+    throw UsageError(origin + path + ": cannot make the folder " + folder.string() + " (" +
+                     existing.string() + " is a file, not a folder)");
+  if (make && existing != folder) {
+    fs::create_directories(folder, ec);
+    if (ec || !fs::is_directory(folder))
+      throw UsageError(origin + path + ": cannot make the folder " + folder.string() + " (" +
+                       (ec ? ec.message() : std::string("a file is in the way")) + ")");
+    existing = folder;
+  }
+  // A file made and removed again: the one sure test that the folder takes new files.
+  const std::string probe =
+      (existing / (fs::path(temporary_path_of(path)).filename().string() + ".probe")).string();
+  const int fd = ::open(probe.c_str(), O_WRONLY | O_CREAT | O_EXCL, 0644);
+  if (fd < 0)
+    throw UsageError(origin + path + ": cannot write in " + existing.string() + " (" +
+                     std::strerror(errno) + ")");
+  ::close(fd);
+  ::unlink(probe.c_str());
+  if (!make) return;
+  // Temporary files of runs that were killed (their process is gone): strewn's own leftovers.
+  const std::string stem = fs::path(path).filename().string() + ".partial-";
+  for (const auto& entry : fs::directory_iterator(existing, ec)) {
+    const std::string name = entry.path().filename().string();
+    if (name.rfind(stem, 0) != 0) continue;
+    const std::string digits = name.substr(stem.size());
+    if (digits.empty() || digits.size() > 9 ||
+        digits.find_first_not_of("0123456789") != std::string::npos)
+      continue;
+    const auto pid = static_cast<pid_t>(std::stol(digits));
+    if (::kill(pid, 0) != 0 && errno == ESRCH) fs::remove(entry.path(), ec);
+  }
 }
 
 ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
@@ -343,6 +418,7 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
         const Checkpoint::Piece& piece = pieces[next_piece];
         const std::uint64_t end = std::min(total, piece.first_sample + piece.rows.samples);
         StudyResult rows = slice_samples(piece.rows, done - piece.first_sample, end - done);
+        run.resumed += rows.samples;
         writer.write(rows.columns, 0, rows.columns.rows());
         append_rows(run.result, std::move(rows));
         if (options.progress) options.progress(run.result.samples);
@@ -361,6 +437,7 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
         std::uint64_t kept = done + flown.finished;
         for (std::size_t k = next_piece; k < pieces.size(); ++k) kept += pieces[k].rows.samples;
         run.result.finished = kept;
+        run.result.planned = total;
         return run;  // the writer removes its temporary file; the checkpoint stays
       }
       append_rows(run.result, std::move(flown));
@@ -369,11 +446,20 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
     if (stopped()) {
       run.result.interrupted = true;
       run.result.finished = run.result.samples;
+      run.result.planned = total;
       return run;
     }
     ++rounds;
     footprint = compute_footprint(impact_table(run.result.columns),
                                   footprint_settings(s, world, run.result.samples));
+    // A signal during the statistics stops the run too, within their time (under a second for
+    // a million samples), everything kept.
+    if (stopped()) {
+      run.result.interrupted = true;
+      run.result.finished = run.result.samples;
+      run.result.planned = total;
+      return run;
+    }
     if (!s.study.target_width) break;
     const double width = footprint.widest_relative_width();
     const auto max_samples = static_cast<std::uint64_t>(s.study.max_samples);
@@ -460,6 +546,14 @@ ResultsFile read_results(const std::string& path, bool with_samples,
                              std::to_string(cases ? cases - 1 : 0) + ", not " +
                              std::to_string(*sweep_case));
       root = file.openGroup("cases/" + std::to_string(*sweep_case));
+      // Which case this is, in its axes' values: said wherever the record is shown.
+      std::string values;
+      for (const auto& key : read_strings_attribute(file, "axes"))
+        if (root.attrExists(key))
+          values += (values.empty() ? "" : ", ") + key + " = " +
+                    printf_text("%g", read_attribute<double>(root, key));
+      record.case_label = "case " + std::to_string(*sweep_case) + " of the sweep" +
+                          (values.empty() ? "" : ": " + values);
       record.file = path + " (case " + std::to_string(*sweep_case) + ")";
     } else {
       if (sweep_case)

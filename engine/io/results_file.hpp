@@ -27,6 +27,21 @@ namespace strewn {
 // 2: /footprint; 3: the model-range columns and warnings, the choice columns, "all" as one release
 inline constexpr int kResultsFormatVersion = 3;
 
+/// Refuses (UsageError, status 2) an output path that strewn must not write: a folder, an existing
+/// entry that is not a regular file (a device such as /dev/null, a pipe, a link: writing a whole
+/// file under the name would replace it), or one of `inputs`, the files the command reads. The
+/// message starts with `origin` (where the path came from, e.g. "file:line: output.file: ").
+void refuse_unsafe_output(const std::string& path, const std::string& origin,
+                          const std::vector<std::string>& inputs = {});
+
+/// Refuses an unsafe output (refuse_unsafe_output), makes the folder of an output file (and its
+/// parents) when it is missing (with `make`; without, as `check` does, only finds that it could
+/// be made), and checks that a file can be made there by making and removing one. With `make`,
+/// also removes the temporary files that killed runs left under this name (their process is
+/// gone). Throws UsageError (status 2: refused before anything runs).
+void prepare_output(const std::string& path, const std::string& origin, bool make,
+                    const std::vector<std::string>& inputs = {});
+
 /// The temporary name a results file is written under until it is complete: beside it, with
 /// ".partial-<process id>" added.
 std::string temporary_path_of(const std::string& path);
@@ -79,6 +94,7 @@ struct RunControl {
 struct StudyRun {
   StudyResult result;
   StudyRecord record;
+  std::uint64_t resumed = 0;  ///< samples taken from the checkpoint of an earlier, stopped run
 };
 
 /// Runs the study and writes its results file as it goes: each finished round of samples is

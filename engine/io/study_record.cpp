@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <array>
+#include <cmath>
 #include <functional>
 #include <limits>
 
@@ -64,8 +65,21 @@ ImpactTable impact_table(const StudyColumns& c) {
   return t;
 }
 
+namespace {
+// A share in percent to three figures, never rounded to 0 or 100 unless it is that.
+std::string percent_text(std::uint64_t count, std::uint64_t rows) {
+  if (rows == 0) return "-";
+  const double p = 100.0 * static_cast<double>(count) / static_cast<double>(rows);
+  std::string text = printf_text("%.3g", p);
+  for (int digits = 4;
+       digits <= 9 && ((text == "100" && count < rows) || (text == "0" && count > 0)); ++digits)
+    text = printf_text("%.*g", digits, p);
+  return text;
+}
+}  // namespace
+
 std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
-                                         const StudyColumns& c) {
+                                         const StudyColumns& c, const Footprint& footprint) {
   const std::size_t bodies = s.bodies.size();
   // Per body and flag: rows, and the most extreme value among the flagged rows.
   struct Tally {
@@ -126,10 +140,10 @@ std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
     ModelLimits limits = model_limits(nominal.body, environment);
     if (!s.wind.member_layers.empty()) limits.wind_top = wind_top;
     auto counted = [&](std::uint64_t count) {
-      return printf_text("%s: %llu of %llu samples (%.3g %%): ", s.bodies[b].name.c_str(),
+      return printf_text("%s: %llu of %llu samples (%s %%): ", s.bodies[b].name.c_str(),
                          static_cast<unsigned long long>(count),
                          static_cast<unsigned long long>(rows[b]),
-                         100.0 * static_cast<double>(count) / static_cast<double>(rows[b]));
+                         percent_text(count, rows[b]).c_str());
     };
     for (int bit = 0; bit < kModelRangeFlagCount; ++bit) {
       const Tally& t = tally[b][static_cast<std::size_t>(bit)];
@@ -144,6 +158,12 @@ std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
         w.limit = s.study.tolerance;
         w.extreme = std::max(t.extreme, t.second);  // the larger offset
         w.text = counted(t.count) + describe_frame_offset(t.extreme, t.second, s.study.tolerance);
+        // Beside the footprint it is small or not: say how wide the footprint is.
+        for (const auto& g : footprint.groups)
+          if (g.name == s.bodies[b].name && !g.containment.empty() &&
+              std::isfinite(g.containment.back().radius))
+            w.text += printf_text(", against the body's %g %% containment radius of %.0f m",
+                                  100.0 * g.containment.back().level, g.containment.back().radius);
       } else {
         w.text = counted(t.count) + describe(flag, t.extreme, w.limit, limits.drag_model);
       }
@@ -188,8 +208,8 @@ StudyRecord make_record(const Scenario& s, const World& world, const StudyResult
   r.max_samples = static_cast<std::uint64_t>(s.study.max_samples);
   for (const auto& b : s.bodies) r.body_names.push_back(b.name);
   r.tolerance = s.study.tolerance;
+  r.range_warnings = range_warnings(s, world, result.columns, footprint);
   r.footprint = std::move(footprint);
-  r.range_warnings = range_warnings(s, world, result.columns);
   return r;
 }
 

@@ -42,6 +42,7 @@ struct StudyRecord {
   std::uint64_t max_samples = 0;
   int rounds = 1;  ///< parts the study was run in (more than 1 when grown to target_width)
   std::vector<std::string> body_names;
+  std::string case_label;  ///< read from a sweep's file: "case 3 of the sweep: key = value, ..."
   double tolerance = 0.0;  ///< study.tolerance, m
   Footprint footprint;
   std::vector<RangeWarning> range_warnings;  ///< per body, in the order of the flags
@@ -71,9 +72,10 @@ FootprintSettings footprint_settings(const Scenario& scenario, const World& worl
 ImpactTable impact_table(const StudyColumns& columns);
 
 /// Every body's samples that left its models' ranges or their assumptions, counted from the
-/// rows' flags (flight/model_range.hpp) and statuses.
+/// rows' flags (flight/model_range.hpp) and statuses; the frame's offsets are set beside the
+/// body's widest containment radius of `footprint`.
 std::vector<RangeWarning> range_warnings(const Scenario& scenario, const World& world,
-                                         const StudyColumns& columns);
+                                         const StudyColumns& columns, const Footprint& footprint);
 
 /// The record of a study: its scenario, counts, range warnings and footprint.
 StudyRecord make_record(const Scenario& scenario, const World& world, const StudyResult& result,

@@ -2,6 +2,7 @@
 
 #include <cmath>
 #include <cstdio>
+#include <filesystem>
 #include <limits>
 
 namespace strewn {
@@ -41,6 +42,13 @@ nlohmann::json uncertain_json(const Uncertain& u) {
   }
   return nullptr;
 }
+// A file named in the scenario as it will be read: relative to the scenario's folder.
+std::string as_read(const Scenario& s, const std::string& file) {
+  const std::filesystem::path p(file);
+  return p.is_relative()
+             ? (std::filesystem::path(s.path).parent_path() / p).lexically_normal().string()
+             : file;
+}
 const char* medium_name(Medium::Kind k) {
   return k == Medium::Kind::us1976 ? "us1976" : k == Medium::Kind::profile ? "profile" : "uniform";
 }
@@ -57,7 +65,7 @@ nlohmann::json scenario_json(const Scenario& s) {
        {"density_factor", uncertain_json(s.medium.density_factor)}};
   if (s.medium.model != Medium::Kind::uniform)
     m["temperature_offset"] = uncertain_json(s.medium.temperature_offset);
-  if (s.medium.model == Medium::Kind::profile) m["profile"] = s.medium.profile_file;
+  if (s.medium.model == Medium::Kind::profile) m["profile"] = as_read(s, s.medium.profile_file);
   if (s.medium.model == Medium::Kind::uniform) {
     m["density"] = s.medium.density;
     m["viscosity"] = s.medium.viscosity;
@@ -67,14 +75,17 @@ nlohmann::json scenario_json(const Scenario& s) {
   for (const auto& l : s.wind.layers)
     layers.push_back({{"altitude", l.altitude}, {"speed", l.speed}, {"from", l.from}});
   j["wind"] = {{"layers", layers}, {"uncertainty", {{"model", to_string(s.wind.uncertainty)}}}};
-  if (!s.wind.file.empty()) j["wind"]["file"] = s.wind.file;
+  if (!s.wind.file.empty()) j["wind"]["file"] = as_read(s, s.wind.file);
   auto& wu = j["wind"]["uncertainty"];
   if (s.wind.uncertainty == WindUncertaintyModel::bias ||
       s.wind.uncertainty == WindUncertaintyModel::layered)
     wu["speed_sd"] = s.wind.speed_sd;
   if (s.wind.uncertainty == WindUncertaintyModel::layered)
     wu["correlation_length"] = s.wind.correlation_length;
-  if (s.wind.uncertainty == WindUncertaintyModel::ensemble) wu["members"] = s.wind.members;
+  if (s.wind.uncertainty == WindUncertaintyModel::ensemble) {
+    wu["members"] = nlohmann::json::array();
+    for (const auto& member : s.wind.members) wu["members"].push_back(as_read(s, member));
+  }
   const auto& r = s.release;
   j["release"] = {{"altitude", uncertain_json(r.altitude)},
                   {"east", uncertain_json(r.east)},

@@ -25,9 +25,38 @@ std::string level_text(double level) {
 }
 }  // namespace
 
-std::string write_sweep_file(const std::string& path, const std::string& sweep_text,
-                             const std::vector<std::string>& axis_keys, bool zip,
-                             const std::vector<SweepCaseSource>& cases, int ranks) {
+namespace {
+// One case in a line: its axis values, samples, warnings, the widest level's radius of all bodies
+// (of the one body) with its bound, and the rules' statuses.
+std::string case_line(std::size_t index, const std::vector<std::string>& axis_keys,
+                      const SweepCaseSource& source, const StudyRecord& r) {
+  std::string line = "case " + std::to_string(index) + " (";
+  for (std::size_t a = 0; a < axis_keys.size(); ++a)
+    line += (a ? ", " : "") + axis_keys[a] + " = " + printf_text("%g", source.values.at(a));
+  const std::size_t warnings = record_warnings(r).size();
+  line += printf_text("): %llu samples", static_cast<unsigned long long>(r.samples));
+  if (r.target_width)
+    line += r.footprint.widest_relative_width() <= *r.target_width ? ", target width met"
+                                                                   : ", target width NOT met";
+  line += ", " + std::to_string(warnings) + (warnings == 1 ? " warning" : " warnings");
+  if (!r.footprint.groups.empty()) {
+    const GroupFootprint& all = r.footprint.groups.back();
+    if (!all.containment.empty()) {
+      const Containment& c = all.containment.back();
+      line += printf_text("; %g %% within %.1f m (upper bound ", 100.0 * c.level, c.radius) +
+              (c.radius_upper ? printf_text("%.1f m)", *c.radius_upper)
+                              : "needs " + std::to_string(c.samples_needed) + " samples)");
+    }
+  }
+  for (const auto& k : r.footprint.rules)
+    line += "; " + k.group + " " + k.rule + " " + to_string(k.status);
+  return line + "\n";
+}
+}  // namespace
+
+SweepSummary write_sweep_file(const std::string& path, const std::string& sweep_text,
+                              const std::vector<std::string>& axis_keys, bool zip,
+                              const std::vector<SweepCaseSource>& cases, int ranks) {
   namespace fs = std::filesystem;
   const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   H5::Exception::dontPrint();
@@ -42,7 +71,7 @@ std::string write_sweep_file(const std::string& path, const std::string& sweep_t
   std::vector<std::vector<double>> numbers;  // per column after "case" and the axes
   std::vector<std::string> number_names, text_names;
   std::vector<std::vector<std::string>> texts;
-  std::string csv;
+  std::string csv, text;
   try {
     H5::H5File file(temporary, H5F_ACC_TRUNC);
     write_attribute(file, "format_version", kResultsFormatVersion);
@@ -62,6 +91,7 @@ std::string write_sweep_file(const std::string& path, const std::string& sweep_t
     for (std::size_t i = 0; i < cases.size(); ++i) {
       const ResultsFile source = read_results(cases[i].file, false);
       const StudyRecord& r = source.record;
+      text += case_line(i, axis_keys, cases[i], r);
       H5::H5File in(cases[i].file, H5F_ACC_RDONLY);
       H5::Group target = all_cases.createGroup(std::to_string(i));
       for (const char* object : {"scenario", "samples", "footprint"})
@@ -126,9 +156,16 @@ std::string write_sweep_file(const std::string& path, const std::string& sweep_t
     write_strings_attribute(summary, "columns", order);
 
     // The same table as CSV.
-    auto cell = [&](const std::string& text, bool first) {
+    auto cell = [&](const std::string& value, bool first) {
       if (!first) csv += ',';
-      csv += text;
+      // A name holding a comma, a quote or a line break is quoted (RFC 4180).
+      if (value.find_first_of(",\"\n\r") == std::string::npos) {
+        csv += value;
+        return;
+      }
+      csv += '"';
+      for (char ch : value) csv += ch == '"' ? std::string("\"\"") : std::string(1, ch);
+      csv += '"';
     };
     for (std::size_t c = 0; c < order.size(); ++c) cell(order[c], c == 0);
     csv += '\n';
@@ -153,7 +190,7 @@ std::string write_sweep_file(const std::string& path, const std::string& sweep_t
   std::error_code error;
   fs::rename(temporary, final_path, error);
   if (error) throw IoError(path + ": cannot put the sweep file in place (" + error.message() + ")");
-  return csv;
+  return {csv, text};
 }
 
 }  // namespace strewn

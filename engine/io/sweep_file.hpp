@@ -14,10 +14,15 @@ struct SweepCaseSource {
   std::vector<double> values;
 };
 
-/// Gathers the cases, in order, into `path` (written whole, then renamed). Returns the summary as
-/// CSV. Throws IoError naming the path.
-std::string write_sweep_file(const std::string& path, const std::string& sweep_text,
-                             const std::vector<std::string>& axis_keys, bool zip,
-                             const std::vector<SweepCaseSource>& cases, int ranks);
+/// The summary of a sweep: as CSV (every column), and as text for a terminal (a line a case).
+struct SweepSummary {
+  std::string csv, text;
+};
+
+/// Gathers the cases, in order, into `path` (written whole, then renamed). Returns the summary.
+/// Throws IoError naming the path.
+SweepSummary write_sweep_file(const std::string& path, const std::string& sweep_text,
+                              const std::vector<std::string>& axis_keys, bool zip,
+                              const std::vector<SweepCaseSource>& cases, int ranks);
 
 }  // namespace strewn

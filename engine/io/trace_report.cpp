@@ -130,8 +130,9 @@ nlohmann::json trace_json(const TraceRecord& t) {
   j["title"] = t.scenario->title;
   j["body"] = t.scenario->bodies[t.body_index].name;
   j["inputs"] = flown_inputs(t);
-  j["flown"] =
-      "nominal: every distribution at its median, the canopy fully open, no burst velocity";
+  j["flown"] = std::string("nominal: every distribution at its median") +
+               (t.inputs.body.has_canopy ? ", the canopy fully open" : "") +
+               (t.scenario->release.has_burst ? ", no burst velocity" : "");
   j["status"] = to_string(r.status);
   if (r.status == FlightStatus::landed) {
     j["impact"] = {{"time", r.time},
@@ -211,8 +212,9 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
         << " m   north " << fixed(r.position.y(), 2) << " m\n";
     out << "          downrange " << fixed(downrange, 2) << " m, " << side_of_track(crossrange)
         << " (from the release point)\n";
-    out << "          speed " << general(r.speed) << " m/s   energy " << general(r.energy)
-        << " J   angle " << fixed(r.angle, 1) << " deg below horizontal\n";
+    out << "          speed " << readable_number(r.speed, 3) << " m/s   energy "
+        << readable_number(r.energy, 3) << " J   angle " << fixed(r.angle, 1)
+        << " deg below horizontal\n";
   } else {
     out << "no impact the flight ended at " << fixed(r.time, 2) << " s, east "
         << fixed(r.position.x(), 2) << " m, north " << fixed(r.position.y(), 2) << " m, altitude "
@@ -229,8 +231,11 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
         << general(rec.quadratic_to_linear().max);
   out << "\nsteps     " << r.steps << " (tolerance " << t.tolerance << " m at the impact point)\n";
   for (const auto& w : t.warnings) out << "warning   " << w << "\n";
+  if (!r.quasi_steady)
+    out << "settling  the full equations carried the whole fall (the settling form was not "
+           "used)\n";
   if (r.quasi_steady)
-    out << "note      the settling (quasi-steady) form carried the fall after the release "
+    out << "settling  the settling (quasi-steady) form carried the fall after the release "
            "transient\n";
   // A short trajectory table: at most about 12 rows spread over the flight.
   const auto& points = rec.points();

@@ -66,6 +66,7 @@ class Loader {
   Loader(const std::string& text, const std::string& path) : diagnostics_(path), path_(path) {
     scenario_.path = path;
     scenario_.text = text;
+    scenario_.files_read.push_back(path);
     folder_ = std::filesystem::path(path).parent_path();
   }
 
@@ -113,6 +114,12 @@ class Loader {
     if (p.is_relative()) p = (folder_ / p).lexically_normal();
     return p.string();
   }
+  // A table the scenario reads: resolved, and remembered among the files it reads.
+  std::string read_from(const std::string& file) {
+    const std::string path = resolve(file);
+    scenario_.files_read.push_back(path);
+    return path;
+  }
 
   void read_site(Table site) {
     if (auto lat = site.number("latitude", kLatitude)) scenario_.site.latitude = lat;
@@ -141,7 +148,7 @@ class Loader {
     if (m.model == Medium::Kind::profile) {
       if (auto file = medium.text("profile", {}, true)) {
         m.profile_file = *file;
-        read_profile(resolve(*file), medium.key_path("profile"), medium.line_of("profile"));
+        read_profile(read_from(*file), medium.key_path("profile"), medium.line_of("profile"));
       }
     }
     if (m.model == Medium::Kind::uniform) {
@@ -265,7 +272,7 @@ class Loader {
         diagnostics_.add(wind.key_path("file"), wind.line_of("file"),
                          "give the wind either as layers or as a file, not both");
       w.file = *file;
-      w.layers = read_wind_file(resolve(*file), wind.key_path("file"), wind.line_of("file"));
+      w.layers = read_wind_file(read_from(*file), wind.key_path("file"), wind.line_of("file"));
     }
     Table u = wind.table("uncertainty");
     const auto model = u.text("model", {"none", "bias", "layered", "ensemble"});
@@ -295,7 +302,7 @@ class Loader {
           }
           const std::string name = item->as_string()->get();
           w.members.push_back(name);
-          w.member_layers.push_back(read_wind_file(resolve(name), path, line_of(item)));
+          w.member_layers.push_back(read_wind_file(read_from(name), path, line_of(item)));
         }
         if (members->empty())
           diagnostics_.add(u.key_path("members"), u.line_of("members"), "lists no profile");
@@ -367,6 +374,13 @@ class Loader {
                        "must be a non-empty name without dots, spaces or slashes (it names the "
                        "body's inputs, e.g. \"" +
                            b.name + ".mass\")");
+    // A name is part of input names, map file names (<map>-<name>.svg) and table cells: short.
+    constexpr std::size_t kLongestName = 64;
+    if (name && name->size() > kLongestName)
+      diagnostics_.add(t.key_path("name"), t.line_of("name"),
+                       "is " + std::to_string(name->size()) +
+                           " characters long; a body's name "
+                           "may have at most 64");
     if (b.name == "all")
       diagnostics_.add(t.key_path("name"), t.line_of("name"),
                        "\"all\" is reserved for the footprint of every body together");
@@ -642,8 +656,9 @@ class Loader {
       if (ground < levels.front().altitude || r.altitude.nominal() > top)
         diagnostics_.add("medium.profile", line_for("medium", "profile"),
                          "the sounding covers " + format_number(levels.front().altitude) + " .. " +
-                             format_number(top) +
-                             " m; it must reach from the ground to the release altitude");
+                             format_number(top) + " m; it must reach from the ground (" +
+                             format_number(ground) + " m) to the release altitude (nominal " +
+                             format_number(r.altitude.nominal()) + " m)");
       else if (r.altitude.probability_above(top) > kOutsideTolerance)
         diagnostics_.add("release.altitude", line_for("release", "altitude"),
                          "the release altitude may reach above the sounding's top at " +

@@ -144,6 +144,9 @@ struct Scenario {
   RulesSpec rules;
   OutputSpec output;
   std::vector<SampledInput> sampled_inputs;
+  /// Every file the scenario reads, resolved: itself, then its tables (sounding, wind files), so
+  /// that no output may be written over one of them.
+  std::vector<std::string> files_read;
 
   /// Index of the body with this name, or -1.
   [[nodiscard]] int body_index(const std::string& name) const;

@@ -94,11 +94,11 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
     return last - first;
   };
 
-  // Blocks are grouped in rounds of 64. The thread that completes a round writes every finished
-  // round in order (the "combining" pattern: whoever holds the writer lock drains the queue, and
-  // rechecks after letting go), so writing runs beside flying on the threads allowed, with no
-  // barrier between rounds. Each row depends only on its sample index, never on which thread or
-  // round handled it.
+  // Blocks are grouped in rounds (at most 64 blocks). The thread that completes a round writes
+  // every finished round in order (the "combining" pattern: whoever holds the writer lock drains
+  // the queue, and rechecks after letting go), so writing runs beside flying on the threads
+  // allowed, with no barrier between rounds. Each row depends only on its sample index, never on
+  // which thread or round handled it.
   // Blocks small enough that every thread gets several when samples are few (a study of slow
   // flights, or the gaps a resumed study fills); the rows do not depend on the block size.
   const int workers = tbb::this_task_arena::max_concurrency();
@@ -106,7 +106,9 @@ StudyResult run_study(const SampleModel& model, const StudyOptions& options) {
       std::clamp<std::uint64_t>(options.samples / (4 * static_cast<std::uint64_t>(workers)), 1,
                                 std::max<std::size_t>(1, options.block));
   const std::uint64_t blocks = (options.samples + block - 1) / block;
-  constexpr std::uint64_t kBlocksPerRound = 64;
+  // At least about 16 rounds a study, so that the rows reach the sink (the checkpoint) as the
+  // study goes, not only at its end: a study killed without warning keeps what was written.
+  const std::uint64_t kBlocksPerRound = std::clamp<std::uint64_t>(blocks / 16, 1, 64);
   const std::uint64_t rounds = (blocks + kBlocksPerRound - 1) / kBlocksPerRound;
   std::vector<std::atomic<std::uint64_t>> remaining(rounds);  // blocks still flying; 0: finished
   for (std::uint64_t r = 0; r < rounds; ++r)

@@ -151,6 +151,7 @@ struct StudyResult {
   std::size_t bodies = 0;
   bool interrupted = false;    ///< stopped early: `samples` counts the prefix that was finished
   std::uint64_t finished = 0;  ///< stopped early: every finished sample, in order or not
+  std::uint64_t planned = 0;   ///< stopped early: the samples it was flying toward (0: samples)
 
   /// Sets `completed` and `failed` from the rows' statuses.
   void count_outcomes() {

@@ -82,8 +82,9 @@ for signal in INT HUP TWICE; do
   sleep "$(awk -v ms="$slow_ms" 'BEGIN { printf "%.3f", ms / 1000 * 0.5 }')"
   sent=$(date +%s%N)
   if [[ $signal == TWICE ]]; then
+    # Two different signals: the kernel merges a signal sent again before it is handled.
     kill -INT "$pid"
-    kill -INT "$pid"
+    kill -TERM "$pid"
   else
     kill -"$signal" "$pid"
   fi
@@ -102,8 +103,11 @@ for signal in INT HUP TWICE; do
     [[ -n "$kept" ]] && ((kept >= slow_samples / 5)) ||
       fail "slow, SIG$signal: halfway through, only '${kept}' samples were kept ($(cat "$work/err"))"
   fi
-  "$strewn" run "$slow" -n $slow_samples -j 2 -o "$out" --quiet --resume >/dev/null ||
+  "$strewn" run "$slow" -n $slow_samples -j 2 -o "$out" --quiet --resume >/dev/null 2>"$work/resumed" ||
     fail "slow, SIG$signal: resume failed"
+  # The resumed run says how much it took from the checkpoint (found by a user: it said nothing).
+  grep -q "^resumed: [1-9][0-9]* of $slow_samples samples taken from the checkpoint" "$work/resumed" ||
+    fail "slow, SIG$signal: the resume does not say what it took: $(cat "$work/resumed")"
   h5diff -q "$work/slow.h5" "$out" /samples /samples || fail "slow, SIG$signal: resumed samples differ"
   [[ "$(summary "$work/slow.h5")" == "$(summary "$out")" ]] || fail "slow, SIG$signal: footprint differs"
   echo "ok: slow flights, $signal: stopped in $took ms, ${kept:-the written} samples kept, resumed to the same file"

@@ -2,6 +2,8 @@
 // messages, and `trace --json` on every shipped and test scenario against an independent
 // tight-tolerance integration of the same physics (Boost.Odeint, reference_flight.hpp).
 #include <gtest/gtest.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include <filesystem>
 #include <fstream>
@@ -66,7 +68,8 @@ TEST(Cli, TraceFormats) {
   const CommandResult text = run({"trace", file});
   EXPECT_EQ(text.status, 0);
   EXPECT_NE(text.out.find("impact"), std::string::npos);
-  EXPECT_NE(text.out.find("responsible authority"), std::string::npos);  // the cautions
+  EXPECT_NE(text.out.find("settling  the full equations"), std::string::npos);  // said either way
+  EXPECT_NE(text.out.find("responsible authority"), std::string::npos);         // the cautions
   const CommandResult csv = run({"trace", file, "--csv"});
   EXPECT_EQ(csv.status, 0);
   EXPECT_EQ(csv.out.rfind("time_s,east_m,north_m,altitude_m", 0), 0u);
@@ -192,7 +195,7 @@ TEST(CliRun, ReplayCheckAndRefusals) {
   // A sample count of zero is refused in plain words, not with the largest double (309 digits).
   const CommandResult zero = run({"run", scenario, "-n", "0"});
   EXPECT_EQ(zero.status, 2);
-  EXPECT_NE(zero.err.find("-n: expected a whole number of at least 1, got \"0\""),
+  EXPECT_NE(zero.err.find("-n: expected a whole number from 1 to 2000000000, got \"0\""),
             std::string::npos)
       << zero.err;
   EXPECT_LT(zero.err.size(), 200u) << zero.err;
@@ -229,6 +232,12 @@ TEST(CliPaths, ScenarioPathsFromItsFolderCommandLinePathsFromTheWorkingDirectory
   EXPECT_EQ(from_file.status, 0) << from_file.err;
   EXPECT_TRUE(fs::exists(here / "results" / "crate.h5"));  // the folder made, beside the scenario
   EXPECT_FALSE(fs::exists(elsewhere / "results"));
+  // `check` shows every file as it is read: from the scenario's folder.
+  const auto resolved =
+      nlohmann::json::parse(run({"check", (here / "scenario.toml").string(), "--json"}).out);
+  EXPECT_EQ(resolved["medium"]["profile"], (here / "sounding.csv").string());
+  EXPECT_EQ(resolved["wind"]["file"], (here / "winds.csv").string());
+  EXPECT_EQ(resolved["output"]["file"], (here / "results" / "crate.h5").string());
   // -o is the command line's: from the working directory, its folders made too.
   const CommandResult from_line = run(
       {"run", (here / "scenario.toml").string(), "-n", "20", "--quiet", "-o", "out/deep/crate.h5"});
@@ -304,7 +313,71 @@ TEST(CliDefects, CsvRuleRowsHoldProbabilitiesNotMetres) {
         << line;
   }
   EXPECT_TRUE(rule);
+  // A figure without bounds (the mean) carries no confidence.
+  const std::string all_rows = test::slurp(csv);
+  const std::size_t mean = all_rows.find("\"bundle\",mean_east,");
+  ASSERT_NE(mean, std::string::npos);
+  const std::string mean_row = all_rows.substr(mean, all_rows.find('\n', mean) - mean);
+  EXPECT_NE(mean_row.find(",,,,,m,"), std::string::npos) << mean_row;
   std::filesystem::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace strewn
+
+namespace strewn {
+namespace {
+
+// Found by a tester: an output that is a device, a pipe or a link was replaced by a regular file
+// (as root, /dev/null itself), and an output naming a file the command reads overwrote it.
+// Each is refused with status 2 before anything runs, and left as it was.
+TEST(CliPaths, UnsafeOutputsAreRefusedAndLeftAlone) {
+  namespace fs = std::filesystem;
+  const fs::path dir =
+      fs::temp_directory_path() / ("strewn-cli-unsafe-" + std::to_string(::getpid()));
+  fs::remove_all(dir);
+  fs::create_directories(dir);
+  const std::string scenario = (dir / "s.toml").string();
+  std::ofstream(scenario) << "[release]\naltitude = 300.0\n[[body]]\nmass = 1.0\n[body.drag]\n"
+                             "model = \"area\"\ncd = 1.0\narea = 0.05\n[study]\nsamples = 20\n";
+  const fs::path pipe = dir / "pipe", link = dir / "link", target = dir / "target.h5";
+  ASSERT_EQ(::mkfifo(pipe.c_str(), 0644), 0);
+  std::ofstream(target) << "keep me";
+  fs::create_symlink(target, link);
+  for (const fs::path& out : {pipe, link, fs::path(scenario)}) {
+    const CommandResult r = run({"run", scenario, "-o", out.string(), "--quiet"});
+    EXPECT_EQ(r.status, 2) << out << ": " << r.err;
+    EXPECT_EQ(run({"check", scenario}).status, 0);
+  }
+  EXPECT_TRUE(fs::is_fifo(fs::symlink_status(pipe)));
+  EXPECT_TRUE(fs::is_symlink(fs::symlink_status(link)));
+  EXPECT_EQ(test::slurp(target), "keep me");
+  EXPECT_NE(test::slurp(scenario).find("[release]"), std::string::npos);
+  // `report` neither writes over the results file it reads, nor into a folder or a pipe.
+  const std::string h5 = (dir / "r.h5").string();
+  ASSERT_EQ(run({"run", scenario, "-o", h5, "--quiet"}).status, 0);
+  const std::string before = test::slurp(h5);
+  EXPECT_EQ(run({"report", h5, "--csv", h5}).status, 2);
+  EXPECT_EQ(run({"report", h5, "--svg", dir.string()}).status, 2);
+  EXPECT_EQ(run({"report", h5, "--html", pipe.string()}).status, 2);
+  EXPECT_EQ(test::slurp(h5), before);
+  // Huge counts are refused in words, not by a failed allocation.
+  for (const char* n : {"18446744073709551615", "9223372036854775808", "2000000001"})
+    EXPECT_EQ(run({"run", scenario, "-n", n}).status, 2) << n;
+  EXPECT_EQ(run({"run", scenario, "-j", "2147483647"}).status, 2);
+  fs::remove_all(dir);
+}
+
+// Found by a tester: a replayed sample of a floating body gave an all-zero impact.
+TEST(CliDefects, ReplayOfAFloatingBodyHasNoImpact) {
+  const CommandResult r =
+      run({"run", STREWN_SOURCE_DIR "/tests/data/extreme/lighter-than-air.toml", "--sample", "3"});
+  EXPECT_EQ(r.status, 3);
+  const auto j = nlohmann::json::parse(r.out);
+  for (const auto& body : j["bodies"]) {
+    EXPECT_TRUE(body["impact"].is_null()) << body.dump();
+    EXPECT_TRUE(body["end"].is_object());
+  }
 }
 
 }  // namespace

@@ -17,6 +17,7 @@
 #include "footprint/containment.hpp"
 #include "footprint/footprint.hpp"
 #include "footprint/mixture.hpp"
+#include "impact_rows.hpp"
 
 namespace strewn {
 namespace {
@@ -121,34 +122,20 @@ TEST(ReleaseGroup, UpperBoundCoversTheMixtureQuantileAtLeastAtTheConfidence) {
 TEST(ReleaseGroup, AllIsOneReleaseAboutOneWeightedCentre) {
   // Two bodies, 1 and 3 objects per release, landing about (3, 0) and (103, 0): the centre of
   // "all" is the objects' mean, (78, 0), and its zone rule counts about that centre.
-  std::vector<std::uint16_t> body;
-  std::vector<double> east, north, time, speed, energy;
-  std::vector<std::uint8_t> status;
+  test::OwnedTable rows;
   std::vector<double> input;  // a sampled input that moves every impact east
   boost::random::mt19937 rng(5);
   boost::random::normal_distribution<double> spread(0.0, 5.0);
   constexpr int kReleases = 2000;
   for (int i = 0; i < kReleases; ++i)
     for (std::uint16_t b = 0; b < 2; ++b) {
-      body.push_back(b);
       input.push_back(static_cast<double>(i % 7));
-      east.push_back(100.0 * b + spread(rng) + input.back());
-      north.push_back(spread(rng));
-      time.push_back(10.0);
-      speed.push_back(5.0);
-      energy.push_back(b ? 50.0 : 5.0);
-      status.push_back(0);
+      const double east = 100.0 * b + spread(rng) + input.back();
+      rows.add(b, east, spread(rng), true, b ? 50.0 : 5.0);
     }
-  ImpactTable t;
-  t.body = body;
-  t.east = east;
-  t.north = north;
-  t.time = time;
-  t.speed = speed;
-  t.energy = energy;
-  t.status = status;
-  t.input_names = {"push"};
-  t.inputs = {input};
+  rows.names = {"push"};
+  rows.inputs = {input};
+  const ImpactTable t = rows.view();
   FootprintSettings s;
   s.body_names = {"light", "heavy"};
   s.body_counts = {1.0, 3.0};
@@ -184,6 +171,20 @@ TEST(ReleaseGroup, AllIsOneReleaseAboutOneWeightedCentre) {
   EXPECT_NEAR(f.groups[1].centre.east, 103.0, 0.5);
   // Sensitivities are each body's own; none are pooled across bodies.
   EXPECT_TRUE(all.sensitivity.empty());
+  // Found by a user: a body's table listed another body's inputs, which cannot move it.
+  {
+    ImpactTable own = rows.view();
+    own.input_names = {"push", "light.drag.cd", "heavy.mass"};
+    own.inputs = {input, input, input};
+    const Footprint g = compute_footprint(own, s);
+    std::vector<std::string> light, heavy;
+    for (const auto& x : g.groups[0].sensitivity) light.push_back(x.input);
+    for (const auto& x : g.groups[1].sensitivity) heavy.push_back(x.input);
+    std::sort(light.begin(), light.end());
+    std::sort(heavy.begin(), heavy.end());
+    EXPECT_EQ(light, (std::vector<std::string>{"light.drag.cd", "push"}));
+    EXPECT_EQ(heavy, (std::vector<std::string>{"heavy.mass", "push"}));
+  }
   ASSERT_EQ(f.groups[0].sensitivity.size(), 1u);
   EXPECT_GT(f.groups[0].sensitivity[0].crossrange, 0.2);  // east: right of a northward track
   // The hazard polygons hold at least their level of the objects, weighted.

@@ -16,6 +16,7 @@
 
 #include "app/commands.hpp"
 #include "command_line.hpp"
+#include "io/report_files.hpp"
 
 namespace strewn {
 namespace {
@@ -84,7 +85,7 @@ TEST_F(Report, GeoJsonRingsAreClosedCounterClockwiseAndOnTheEllipsoid) {
   ASSERT_EQ(r.status, 0) << r.err;
   const auto j = nlohmann::json::parse(slurp(geojson));
   EXPECT_EQ(j["type"], "FeatureCollection");
-  int polygons = 0, circles = 0;
+  int polygons = 0, circles = 0, zones = 0;
   std::size_t impacts = 0;
   nlohmann::json centre;
   for (const auto& f : j["features"])
@@ -100,6 +101,16 @@ TEST_F(Report, GeoJsonRingsAreClosedCounterClockwiseAndOnTheEllipsoid) {
       ASSERT_GE(ring.size(), 4u);
       EXPECT_EQ(ring.front(), ring.back());                         // closed (RFC 7946, 3.1.6)
       EXPECT_GT(signed_area(ring), 0.0) << f["properties"].dump();  // counter-clockwise
+      // The planned zone of the ridge drop's rule (900 m), drawn for a GIS like the figures.
+      if (f["properties"]["kind"] == "rule_zone") {
+        ++zones;
+        EXPECT_EQ(f["properties"]["radius_m"], 900.0);
+        EXPECT_EQ(f["properties"]["status"], "exceeds");
+        double distance = 0.0;
+        geodesic.Inverse(centre[1].get<double>(), centre[0].get<double>(), ring[0][1].get<double>(),
+                         ring[0][0].get<double>(), distance);
+        EXPECT_NEAR(distance, 900.0, 0.9 + 0.03);
+      }
       if (f["properties"]["kind"] == "containment_circle" && f["properties"]["group"] == "all") {
         ++circles;
         // Every vertex lies at the radius from the centre along the ellipsoid (GeographicLib's
@@ -118,6 +129,7 @@ TEST_F(Report, GeoJsonRingsAreClosedCounterClockwiseAndOnTheEllipsoid) {
   }
   EXPECT_GE(polygons, 12);  // polygons, circles and ellipses of bundle and all
   EXPECT_EQ(circles, 4);
+  EXPECT_EQ(zones, 1);
   EXPECT_EQ(impacts, run_json_["completed"].get<std::size_t>());
 }
 
@@ -296,6 +308,20 @@ TEST(ReportMaps, AnswerHowBigAndCentredWhere) {
     ASSERT_FALSE(x.empty()) << beside;
     EXPECT_GT(*std::min_element(x.begin(), x.end()), kRight) << beside;
   }
+  // Found by a user: longitude labels ran into each other on a narrow map. The tick labels along
+  // each edge stand apart by more than a label's width.
+  const std::string ticks = map.substr(map.find("class=\"ticks\""));
+  std::vector<double> along;
+  for (std::size_t at = ticks.find("text-anchor=\"middle\">"); at != std::string::npos;
+       at = ticks.find("text-anchor=\"middle\">", at + 1)) {
+    const std::size_t x = ticks.rfind(" x=\"", at);
+    along.push_back(std::stod(ticks.substr(x + 4)));
+  }
+  ASSERT_GE(along.size(), 2u);
+  for (std::size_t k = 1; k < along.size(); ++k) EXPECT_GT(along[k] - along[k - 1], 60.0);
+  // Energies of tonnes of debris read without exponents (16090, not 1.609e+04).
+  const std::string energy = page.substr(page.find("<table id=\"energy\">"));
+  EXPECT_EQ(energy.substr(0, energy.find("</table>")).find("e+0"), std::string::npos);
   // The page: a map of all and one per body, every warning, the centres' coordinates, which
   // centre each rule's zone is about.
   std::size_t maps = 0;
@@ -326,6 +352,24 @@ TEST(ReportMaps, OneBodyIsNotRepeatedAsAll) {
   const CommandResult text = run({"report", h5});
   EXPECT_EQ(text.out.find("\nall"), std::string::npos) << text.out;
   std::filesystem::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace strewn
+
+namespace strewn {
+namespace {
+
+// Found by a tester: a control character in a title or a body's name went raw into the SVG map,
+// which then did not parse. XML 1.0 admits none but tab, line feed and carriage return.
+TEST(ReportMaps, ControlCharactersNeverReachTheMarkup) {
+  const std::string escaped = escape_markup(std::string("t\x01i<t>l&e\x1f\"'\t\n"));
+  for (char c : escaped) {
+    const auto byte = static_cast<unsigned char>(c);
+    EXPECT_TRUE(byte >= 0x20 || c == '\t' || c == '\n') << static_cast<int>(byte);
+  }
+  EXPECT_EQ(escaped.find('<'), std::string::npos);
+  EXPECT_NE(escaped.find("&lt;t&gt;"), std::string::npos);
 }
 
 }  // namespace

@@ -43,6 +43,9 @@ TEST_P(Extreme, FiniteResultsOrAnExplicitStatus) {
   // Landed, or failed flights explicitly counted (status 3 when above study.max_failed).
   ASSERT_TRUE(r.status == 0 || r.status == 3) << r.err;
   EXPECT_FALSE(has_non_finite_text(r.out)) << r.out.substr(0, 2000);
+  // The terminal summary too (found by a tester: "CEP inf m", "0.0 x 0.0" ellipses).
+  const CommandResult text = run({"report", file});
+  EXPECT_FALSE(has_non_finite_text(text.out)) << text.out.substr(0, 2000);
   const ResultsFile f = read_results(file);
   const StudyColumns& c = f.columns;
   ASSERT_EQ(c.rows(), 400u);

@@ -11,6 +11,7 @@
 #include <fstream>
 
 #include "core/errors.hpp"
+#include "io/checkpoint.hpp"
 #include "io/results_file.hpp"
 #include "study/study.hpp"
 
@@ -232,6 +233,94 @@ TEST(Study, AStoppedStudyKeepsEveryFinishedSample) {
   for (const auto& [row, east] : sink.rows_kept) EXPECT_EQ(east, whole.columns.east[row]);
   for (std::size_t row = 0; row < sink.rows.rows(); ++row)
     EXPECT_EQ(sink.rows.east[row], whole.columns.east[row]);
+}
+
+// Found by a tester: a study of fewer than 16 384 samples wrote its rows in one round, at its end,
+// so a kill (or a power cut) kept nothing of it however long it had flown. The rows now reach the
+// sink in about 16 rounds or more.
+TEST(Study, RowsReachTheSinkAsTheStudyGoes) {
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const SampleModel model(s, world, 1600);
+  struct Counter : RowSink {
+    int writes = 0;
+    void write(const StudyColumns&, std::size_t, std::size_t) override { ++writes; }
+  } sink;
+  tbb::global_control limit(tbb::global_control::max_allowed_parallelism, 2);
+  StudyOptions options;
+  options.samples = 1600;
+  options.sink = &sink;
+  (void)run_study(model, options);
+  EXPECT_GE(sink.writes, 8);
+}
+
+// Found by a tester: a signal that came after the last flight, while the statistics were
+// computed, was ignored and the run ended as if never stopped. It stops the run, everything kept
+// in the checkpoint, and a resumed run writes the uninterrupted file.
+TEST(Study, AStopAfterTheLastFlightKeepsEverythingAndResumes) {
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const SampleModel model(s, world, 300);
+  const auto dir = std::filesystem::temp_directory_path() / "strewn-study-late-stop";
+  std::filesystem::remove_all(dir);
+  std::filesystem::create_directories(dir);
+  const std::string straight = (dir / "straight.h5").string(), late = (dir / "late.h5").string();
+  StudyOptions options;
+  options.samples = 300;
+  const StudyRun whole = run_and_write(model, world, options, straight, 1);
+  std::atomic<bool> stop{false};
+  options.progress = [&](std::uint64_t done) {
+    if (done == 300) stop = true;  // the signal comes once every sample has flown
+  };
+  RunControl control;
+  control.stop = &stop;
+  control.checkpoint = true;
+  const StudyRun stopped = run_and_write(model, world, options, late, 1, true, control);
+  EXPECT_TRUE(stopped.result.interrupted);
+  EXPECT_EQ(stopped.result.finished, 300u);
+  EXPECT_FALSE(std::filesystem::exists(late));
+  EXPECT_TRUE(std::filesystem::exists(late + ".checkpoint"));
+  options.progress = nullptr;
+  control.stop = nullptr;
+  control.resume = true;
+  const StudyRun resumed = run_and_write(model, world, options, late, 1, true, control);
+  EXPECT_EQ(resumed.resumed, 300u);  // nothing flown again
+  EXPECT_TRUE(same_columns(resumed.result.columns, whole.result.columns));
+  EXPECT_FALSE(std::filesystem::exists(late + ".checkpoint"));
+  std::filesystem::remove_all(dir);
+}
+
+// Found by a tester: a checkpoint whose record length was damaged made --resume fail for want of
+// memory, for ever. A length the file cannot hold is not believed: that record and those after
+// it are cut off, and the records before it are kept.
+TEST(Study, ADamagedRecordLengthIsCutOff) {
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const SampleModel model(s, world, 40);
+  const StudyResult rows = run_with(model, 40, 1, 8);
+  const auto path = (std::filesystem::temp_directory_path() / "strewn-damaged.checkpoint").string();
+  const Checkpoint::Identity id{sha256_hex(s.text), s.study.seed, 40, 2,
+                                rows.columns.input_names.size()};
+  std::uintmax_t first_record_end = 0;
+  {
+    Checkpoint fresh(path, id, rows.columns.input_names, rows.columns.choices, false);
+    fresh.append(rows.columns, 0, 40);  // samples 0 .. 19
+    first_record_end = std::filesystem::file_size(path);
+    fresh.append(rows.columns, 40, 80);  // samples 20 .. 39
+  }
+  {
+    // The second record's payload length (its fourth 8-byte field) made enormous.
+    std::fstream file(path, std::ios::in | std::ios::out | std::ios::binary);
+    file.seekp(static_cast<std::streamoff>(first_record_end + 3 * sizeof(std::uint64_t)));
+    const std::uint64_t huge = 0xffffffffffffULL;
+    file.write(reinterpret_cast<const char*>(&huge), sizeof huge);
+  }
+  Checkpoint back(path, id, rows.columns.input_names, rows.columns.choices, true);
+  const auto pieces = back.take_pieces();
+  ASSERT_EQ(pieces.size(), 1u);
+  EXPECT_EQ(pieces[0].first_sample, 0u);
+  EXPECT_EQ(pieces[0].rows.samples, 20u);
+  back.remove();
 }
 
 TEST(Study, ResultsFileReadsBackWithEveryName) {

@@ -90,10 +90,57 @@ TEST_F(Sweep, ListElementsBySweptIndex) {
                        "wind.layers has 3 elements, counted from 0; there is no [3]"),
             std::string::npos)
       << r.err;
+  // A whole layer is a table, not a distribution: one of its keys is to be swept.
+  const auto whole = write("whole.toml", "base = \"" + debris +
+                                             "\"\n[[axis]]\nkey = \"wind.layers[1]\"\n"
+                                             "values = [1.0]\n");
+  const CommandResult table = run({"sweep", whole, "-o", (dir_ / "w.h5").string(), "--quiet"});
+  EXPECT_EQ(table.status, 2);
+  EXPECT_NE(table.err.find("wind.layers[1] is a table in"), std::string::npos) << table.err;
   const auto broken = write("broken.toml", "base = \"" + debris +
                                                "\"\n[[axis]]\nkey = \"wind.layers[x].speed\"\n"
                                                "values = [1.0]\n");
   EXPECT_EQ(run({"sweep", broken, "-o", (dir_ / "c.h5").string(), "--quiet"}).status, 2);
+}
+
+// Found by a user and a tester: a sweep's missing output folder was not made (status 3), an output
+// that is a folder was refused only after every case had run, and a comma in a body's name broke
+// the summary CSV's header.
+TEST_F(Sweep, OutputsAreMadeOrRefusedBeforeAnyCase) {
+  const auto sweep = write(
+      "one.toml", "base = \"" + base() + "\"\n[[axis]]\nkey = \"study.samples\"\nvalues = [50]\n");
+  const CommandResult made =
+      run({"sweep", sweep, "-o", (dir_ / "new" / "deeper" / "one.h5").string(), "--quiet"});
+  EXPECT_EQ(made.status, 0) << made.err;
+  EXPECT_TRUE(std::filesystem::exists(dir_ / "new" / "deeper" / "one.h5"));
+  std::filesystem::create_directories(dir_ / "taken");
+  const CommandResult refused = run({"sweep", sweep, "-o", (dir_ / "taken").string(), "--quiet"});
+  EXPECT_EQ(refused.status, 2) << refused.err;
+  EXPECT_FALSE(std::filesystem::exists(dir_ / "taken.cases"));  // nothing ran
+  // A body whose name holds a comma: the header cells are quoted like the rows'.
+  write("odd.toml",
+        "[release]\naltitude = 200.0\n[[body]]\nname = \"pod,1\"\n"
+        "mass = 2.0\n[body.drag]\nmodel = \"area\"\ncd = 1.0\n"
+        "area = 0.1\n[study]\nsamples = 60\n");
+  const auto odd_sweep = write("odd-sweep.toml",
+                               "base = \"odd.toml\"\n[[axis]]\nkey = "
+                               "\"release.altitude\"\nvalues = [200.0, 300.0]\n");
+  ASSERT_EQ(run({"sweep", odd_sweep, "-o", (dir_ / "odd.h5").string(), "--quiet"}).status, 0);
+  std::istringstream lines(test::slurp(dir_ / "odd-summary.csv"));
+  std::string header, row;
+  std::getline(lines, header);
+  std::getline(lines, row);
+  auto fields = [](const std::string& line) {  // RFC 4180 fields
+    std::size_t count = 1;
+    bool quoted = false;
+    for (char ch : line) {
+      if (ch == '"') quoted = !quoted;
+      if (ch == ',' && !quoted) ++count;
+    }
+    return count;
+  };
+  EXPECT_EQ(fields(header), fields(row)) << header << "\n" << row;
+  EXPECT_NE(header.find("\"pod,1.radius_0.5\""), std::string::npos) << header;
 }
 
 // The summary says what each case ran (its samples, whether target_width was met, its
@@ -134,6 +181,15 @@ TEST_F(Sweep, SummaryAndOneCaseReported) {
   ASSERT_EQ(run({"run", alone.string(), "-o", alone_h5, "--quiet"}).status, 0);
   const auto direct = nlohmann::json::parse(run({"report", alone_h5, "--json"}).out);
   EXPECT_EQ(j["footprint"], direct["footprint"]);
+  // The case says which it is: its axes' values, in every report.
+  EXPECT_NE(j["case"].get<std::string>().find("case 1 of the sweep: study.target_width = 0.001"),
+            std::string::npos)
+      << j["case"];
+  // The terminal summary is a line a case, not the CSV.
+  EXPECT_NE(r.out.find("case 1 (study.target_width = 0.001, study.max_samples = 4096): 4096 "
+                       "samples, target width NOT met"),
+            std::string::npos)
+      << r.out;
   EXPECT_EQ(run({"report", output, "--case", "2"}).status, 2);    // no such case
   EXPECT_EQ(run({"report", output}).status, 2);                   // which case?
   EXPECT_EQ(run({"report", alone_h5, "--case", "0"}).status, 2);  // not a sweep
@@ -164,6 +220,10 @@ TEST_F(Sweep, MalformedSweepsAreRefusedBeforeAnyCaseRuns) {
        "cannot be read"},
       {head, "at least one [[axis]] is required"},
       {head + "[[axis]]\nkey = \"release.altitude\"\nvalue = [1.0]\n", "unknown key \"value\""},
+      // A body's key, named by the body's name in the axis and by its place in the scenario's
+      // message: the axis's line is found all the same.
+      {head + "[[axis]]\nkey = \"box.mass.sigma\"\nvalues = [-1.0]\n",
+       ":3: axis[0].key: case 0 (box.mass.sigma = -1): body[0].mass.sigma:"},
   };
   for (std::size_t i = 0; i < cases.size(); ++i) {
     const auto path = write("bad" + std::to_string(i) + ".toml", cases[i].text);

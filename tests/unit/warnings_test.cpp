@@ -86,6 +86,10 @@ TEST_F(Warnings, AnArrayEvenWhenThereAreNone) {
   EXPECT_TRUE(j["warnings"].is_array());
   EXPECT_TRUE(j["warnings"].empty()) << j["warnings"].dump();
   EXPECT_TRUE(j["model_ranges"].empty());
+  // The terminal says there are none, rather than leaving the line out.
+  const CommandResult text =
+      run({"run", scenario, "-n", "50", "-o", (dir_ / "tank.h5").string(), "--quiet"});
+  EXPECT_NE(text.out.find("warnings  none"), std::string::npos) << text.out;
 }
 
 TEST_F(Warnings, SamplingPlanCaveatReachesThePage) {
@@ -131,6 +135,12 @@ TEST_F(Warnings, EarthsCurvatureAndRotationBeyondTheTolerance) {
       EXPECT_EQ(w["limit"], 0.05);
     }
   EXPECT_TRUE(frame) << j["model_ranges"].dump();
+  // Found by a user: the warning alone cannot say whether metres matter; it sets the offsets
+  // beside the footprint's width.
+  bool beside = false;
+  for (const auto& w : j["warnings"])
+    beside = beside || w.get<std::string>().find("containment radius of") != std::string::npos;
+  EXPECT_TRUE(beside) << j["warnings"].dump();
 }
 
 }  // namespace
