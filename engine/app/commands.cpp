@@ -1,30 +1,29 @@
 #include "app/commands.hpp"
 
+#include <fcntl.h>
+#include <tbb/global_control.h>
+#include <time.h>
+#include <unistd.h>
 #include <CLI/CLI.hpp>
+
+#include <array>
+#include <atomic>
+#include <cerrno>
+#include <charconv>
+#include <chrono>
+#include <csignal>
+#include <cstdint>
+#include <cstring>
+#include <filesystem>
 #include <iostream>
 #include <optional>
 #include <sstream>
 
-#include <fcntl.h>
-#include <tbb/global_control.h>
-#include <unistd.h>
-
-#include <array>
-#include <cerrno>
-#include <charconv>
-#include <cstring>
-
-#include <atomic>
-#include <csignal>
-#include "core/errors.hpp"
-#include "core/version.hpp"
-
-#include <chrono>
-#include <filesystem>
-
 #include "cluster/distributed_study.hpp"
 #include "cluster/job.hpp"
 #include "cluster/sweep.hpp"
+#include "core/errors.hpp"
+#include "core/version.hpp"
 #include "io/atmosphere_table.hpp"
 #include "io/footprint_report.hpp"
 #include "io/report_files.hpp"
@@ -75,12 +74,31 @@ struct RunArguments {
 // handler). The first signal stops the run cleanly, keeping every finished sample; a second one
 // ends the process at once, removing the temporary results file (whose name is kept in a fixed
 // buffer, as a handler may only read memory) and leaving the checkpoint, whose records are each
-// on disk before the next is begun (a torn last one is cut off on --resume).
+// on disk before the next is begun (a torn last one is cut off on --resume). A repeat of the
+// first signal within a quarter of a second is not a second request: one Ctrl-C reaches every
+// process of the terminal's group, and a launcher that forwards it delivers it once more.
 std::atomic<bool> stop_requested{false};
+std::atomic<int> first_signal{0};
+std::atomic<std::int64_t> first_signal_ns{0};
+std::atomic<bool> temporary_results_file_ready{false};
 char temporary_results_file[4096] = "";
-extern "C" void request_stop(int) {
-  if (!stop_requested.exchange(true)) return;
-  if (temporary_results_file[0] != '\0') ::unlink(temporary_results_file);
+static_assert(std::atomic<bool>::is_always_lock_free && std::atomic<int>::is_always_lock_free &&
+              std::atomic<std::int64_t>::is_always_lock_free);
+
+std::int64_t monotonic_ns() {  // clock_gettime is async-signal-safe (POSIX.1-2008, signal(7))
+  timespec now{};
+  ::clock_gettime(CLOCK_MONOTONIC, &now);
+  return static_cast<std::int64_t>(now.tv_sec) * 1'000'000'000 + now.tv_nsec;
+}
+
+extern "C" void request_stop(int signal_number) {
+  if (!stop_requested.exchange(true)) {
+    first_signal_ns = monotonic_ns();
+    first_signal = signal_number;
+    return;
+  }
+  if (signal_number == first_signal && monotonic_ns() - first_signal_ns < 250'000'000) return;
+  if (temporary_results_file_ready) ::unlink(temporary_results_file);
   static const char text[] =
       "\nstrewn: stopped at once by a second signal; the checkpoint keeps the samples written to "
       "it: run the same command with --resume to go on\n";
@@ -93,23 +111,27 @@ class StopOnSignals {
  public:
   StopOnSignals() {
     stop_requested = false;
-    temporary_results_file[0] = '\0';
+    first_signal = 0;
+    temporary_results_file_ready = false;
     struct sigaction action {};
     action.sa_handler = request_stop;
+    action.sa_flags = SA_RESTART;  // reads and writes under way go on rather than fail (EINTR)
     sigemptyset(&action.sa_mask);
     for (std::size_t k = 0; k < kSignals.size(); ++k) sigaction(kSignals[k], &action, &old_[k]);
   }
   ~StopOnSignals() {
     for (std::size_t k = 0; k < kSignals.size(); ++k) sigaction(kSignals[k], &old_[k], nullptr);
-    temporary_results_file[0] = '\0';
+    temporary_results_file_ready = false;
   }
   StopOnSignals(const StopOnSignals&) = delete;
   StopOnSignals& operator=(const StopOnSignals&) = delete;
-  /// The file a second signal removes.
+  /// The file a second signal removes (the handler reads the name only once it is whole).
   static void remove_on_second_signal(const std::string& path) {
-    const std::size_t n = std::min(path.size(), sizeof temporary_results_file - 1);
-    std::memcpy(temporary_results_file, path.data(), n);
-    temporary_results_file[n] = '\0';
+    temporary_results_file_ready = false;
+    if (path.size() >= sizeof temporary_results_file) return;  // refused before (prepare_output)
+    std::memcpy(temporary_results_file, path.data(), path.size());
+    temporary_results_file[path.size()] = '\0';
+    temporary_results_file_ready = true;
   }
 
  private:

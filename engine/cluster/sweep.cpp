@@ -156,7 +156,11 @@ Place place(toml::table& root, const std::string& key, std::string& problem,
       toml::array* list = list_of(at, step.index);
       if (!list) return {};
       next = list->get(step.index);
-      walked += "[" + std::to_string(step.index) + "]";
+      // Appended piece by piece: GCC 12 warns falsely (-Wrestrict, its bug 105329) on
+      // "[" + std::string once this function is inlined.
+      walked += '[';
+      walked += std::to_string(step.index);
+      walked += ']';
     }
     at = next;
   }
@@ -335,6 +339,14 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
       std::string problem;
       const toml::node* existing = nullptr;
       const Place set = place(t, plan.axes[a].key, problem, &existing);
+      if (!set) {
+        // Each key was found in the base scenario alone; an earlier axis can still have put a
+        // number where this one needs a table ("release.x" and "release.x.y").
+        d.add("axis[" + std::to_string(a) + "].key", plan.axes[a].line,
+              plan.axes[a].key + " cannot be set once the other axes are" +
+                  (problem.empty() ? std::string() : ": " + problem));
+        throw ScenarioError(d.take());
+      }
       const double v = combos[index][a];
       set(v, (plan.axes[a].integers || (existing && existing->is_integer())) &&
                  v == std::floor(v) && std::abs(v) < 9e18);
@@ -449,10 +461,8 @@ int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options
     fs::create_directories(folder, ec);
     if (ec)
       throw IoError(folder + ": cannot create the folder of the cases (" + ec.message() + ")");
-    // Files left half-written by a stopped run.
-    for (const auto& entry : fs::directory_iterator(folder))
-      if (entry.path().filename().string().find(".partial-") != std::string::npos)
-        fs::remove(entry.path(), ec);
+    // Files left half-written by a stopped run (of this machine, whose process is gone).
+    remove_stale_partials(folder, "");
     for (std::size_t i = 0; i < plan.cases.size(); ++i)
       if (!finished(case_file(folder, i), plan.cases[i].text)) pending.push_back(i);
     const std::size_t skipped = plan.cases.size() - pending.size();

@@ -120,7 +120,8 @@ class FlightRun {
     }
     if (forces_.stage() == DragStage::canopy) return;
     const double v2 = y[3] * y[3] + y[4] * y[4] + y[5] * y[5];
-    if (v2 >= screen_low_ * screen_low_ && v2 <= screen_high_ * screen_high_) return;
+    if (!judge_every_point_ && v2 >= screen_low_ * screen_low_ && v2 <= screen_high_ * screen_high_)
+      return;
     double wind_east, wind_north;
     forces_.wind().at(z, wind_east, wind_north);
     judge(z, Vec3(y[3] - wind_east, y[4] - wind_north, y[5]).norm());
@@ -281,6 +282,7 @@ class FlightRun {
   // The screen of watch(): speeds (m/s) within which a point is in range, and the altitude up to
   // which they hold.
   double screen_low_ = 0.0, screen_high_ = 0.0, screen_top_ = 0.0;
+  bool judge_every_point_ = false;  // the screen cannot clear any point
   double kink_stop_ = std::numeric_limits<double>::infinity();
   FlightResult result_;
   double next_record_ = 0.0;
@@ -542,20 +544,26 @@ void FlightRun::set_screen(double top) {
   const MediumConditions& c = forces_.conditions();
   const double wind = forces_.wind().max_speed();
   const DragLaw& law = forces_.drag();
-  double mu_low, mu_high, sound_low;
+  double mu_low, mu_high, sound_low, rho_low, rho_high;
   if (medium.kind() == Medium::Kind::uniform) {
     const Air air = medium.air(ground_, c);
     mu_low = mu_high = air.viscosity;
     sound_low = air.sound_speed;
+    rho_low = rho_high = air.density;
   } else {
     const double cold = medium.lowest_temperature() + c.temperature_offset;
     const double warm = medium.highest_temperature() + c.temperature_offset;
     mu_low = us1976::sutherland_viscosity(cold);
     mu_high = us1976::sutherland_viscosity(warm);
     sound_low = us1976::sound_speed(cold);
+    // rho = p / (R T'): pressure falls with height (a sounding's must, US76's does), so between
+    // the ground and the top it lies between theirs, and T' between the coldest and warmest.
+    const double p_high = medium.pressure(ground_);
+    const double p_low = medium.pressure(std::min(screen_top_, medium.top()));
+    constexpr double kR = constants::air_specific_gas_constant;
+    rho_high = c.density_factor * p_high / (kR * cold);
+    rho_low = c.density_factor * p_low / (kR * warm);
   }
-  const double rho_high = medium.density(ground_, c);
-  const double rho_low = medium.density(std::min(screen_top_, medium.top()), c);
   // Air speeds of the Reynolds limits, and of the Mach limit.
   const double lowest_air_speed = limits_.reynolds_min * mu_high / (rho_low * law.length());
   double highest_air_speed = limits_.reynolds_max * mu_low / (rho_high * law.length());
@@ -565,8 +573,8 @@ void FlightRun::set_screen(double top) {
   // it, so every point is then judged exactly.
   screen_low_ = limits_.reynolds_min > 0.0 ? lowest_air_speed + wind : 0.0;
   screen_high_ = highest_air_speed - wind;
-  if (!(screen_low_ >= 0.0)) screen_low_ = std::numeric_limits<double>::infinity();
-  if (!(screen_high_ >= 0.0)) screen_high_ = 0.0;
+  // Closed when the wind alone may carry the air speed past a limit, or a bound is not a number.
+  judge_every_point_ = !(screen_low_ >= 0.0) || !(screen_high_ >= 0.0);
 }
 
 void FlightRun::close_regime(const Vec3& release) {

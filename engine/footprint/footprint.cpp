@@ -27,6 +27,13 @@ constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 // vertex.
 constexpr std::size_t kPolygonVertices = 128;
 
+// The one distance on the plane every figure uses: the containment radii, the rows counted
+// outside a zone and the release's weighted figures must round alike, or a sample lying exactly
+// at a radius is inside for one and outside for another.
+double planar_distance(double de, double dn) {
+  return std::sqrt(de * de + dn * dn);
+}
+
 // Eigen-decomposition of the symmetric 2x2 covariance {a, b, c} = [[a, b], [b, c]] in closed form.
 struct Principal {
   double major = 0.0, minor = 0.0;  // variances along the axes, major >= minor >= 0
@@ -236,8 +243,7 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
       RankScratch& scratch = scratches.local();
       std::vector<double> sorted, distance(m);
       for (std::size_t k = 0; k < m; ++k) {
-        const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
-        distance[k] = std::sqrt(de * de + dn * dn);
+        distance[k] = planar_distance(e[k] - f.centre.east, n[k] - f.centre.north);
       }
       sort_and_rank(distance, &sorted, r_dist, scratch);
       sorted.resize(g.rows, kInfinity);
@@ -249,8 +255,7 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
     tasks.run([&] {
       std::vector<double> about_mean(m);
       for (std::size_t k = 0; k < m; ++k) {
-        const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
-        about_mean[k] = std::sqrt(de * de + dn * dn);
+        about_mean[k] = planar_distance(e[k] - f.mean.east, n[k] - f.mean.north);
       }
       about_mean.resize(g.rows, kInfinity);
       if (g.rows == 0) {
@@ -465,10 +470,8 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
 std::uint64_t count_outside(const ImpactTable& t, const GroupRows& g, PlanePoint centre,
                             double radius) {
   std::uint64_t outside = g.rows - g.landed.size();
-  for (std::uint32_t row : g.landed) {
-    const double de = t.east[row] - centre.east, dn = t.north[row] - centre.north;
-    if (de * de + dn * dn > radius * radius) ++outside;
-  }
+  for (std::uint32_t row : g.landed)
+    if (planar_distance(t.east[row] - centre.east, t.north[row] - centre.north) > radius) ++outside;
   return outside;
 }
 std::uint64_t count_above(const ImpactTable& t, const GroupRows& g, double limit) {
@@ -587,7 +590,7 @@ GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettin
   if (place)
     tasks.run([&] {
       const MixtureColumn distance = mixture_of(bodies, s, [&](std::uint32_t row) {
-        return std::hypot(t.east[row] - f.centre.east, t.north[row] - f.centre.north);
+        return planar_distance(t.east[row] - f.centre.east, t.north[row] - f.centre.north);
       });
       for (double p : s.levels) f.containment.push_back(distance.containment(p, s.confidence));
     });
@@ -646,7 +649,7 @@ GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettin
   if (shapes)
     tasks.run([&] {
       const MixtureColumn about_mean = mixture_of(bodies, s, [&](std::uint32_t row) {
-        return std::hypot(t.east[row] - f.mean.east, t.north[row] - f.mean.north);
+        return planar_distance(t.east[row] - f.mean.east, t.north[row] - f.mean.north);
       });
       f.cep = f.rows ? about_mean.quantile(0.5, false) : kNaN;
       f.cep_gaussian = f.landed >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
@@ -895,7 +898,7 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
       const std::uint64_t count = count_outside(t, r, g.centre, radius);
       if (release) {
         const MixtureColumn distance = mixture_of(per_body, s, [&](std::uint32_t row) {
-          return std::hypot(t.east[row] - g.centre.east, t.north[row] - g.centre.north);
+          return planar_distance(t.east[row] - g.centre.east, t.north[row] - g.centre.north);
         });
         out.rules.push_back(
             judge_share("zone_radius", g.name, radius, accepted, count, r.rows,

@@ -49,13 +49,18 @@ double MixtureColumn::each(double c) const {
 double MixtureColumn::quantile(double p, bool failures_low) const {
   if (components_.empty()) return std::numeric_limits<double>::quiet_NaN();
   // F(x) = sum_b w_b #(values_b <= x) / n_b grows with x; the smallest candidate reaching p.
+  // quantile_rank's tolerance, ceil(p n - 1e-9): with one body, F >= p - 1e-9 / n is the same
+  // rank; with several, the largest n gives the narrowest tolerance.
+  std::uint64_t most_rows = 1;
+  for (const auto& c : components_) most_rows = std::max(most_rows, c.rows);
+  const double tolerance = 1e-9 / static_cast<double>(most_rows);
   auto reaches = [&](double x) {
     double f = 0.0;
     for (const auto& c : components_) {
       const std::uint64_t at_most = c.rows - above(c, x, failures_low);
       f += c.weight * static_cast<double>(at_most) / static_cast<double>(c.rows);
     }
-    return f >= p - 1e-12;  // as quantile_rank's tolerance: a product p n that is whole
+    return f >= p - tolerance;
   };
   if (failures_low && reaches(-kInfinity)) return -kInfinity;
   const auto first =

@@ -1,9 +1,12 @@
 #include "io/checkpoint.hpp"
 
+#include <fcntl.h>
 #include <unistd.h>
 #include <zlib.h>
 
 #include <algorithm>
+#include <cerrno>
+#include <cstdio>
 #include <cstring>
 #include <filesystem>
 #include <sstream>
@@ -31,6 +34,16 @@ std::uint32_t crc_of(const std::vector<std::byte>& bytes) {
     crc = crc32(crc, reinterpret_cast<const Bytef*>(bytes.data()) + at,
                 static_cast<uInt>(std::min(bytes.size() - at, std::size_t{1} << 30)));
   return static_cast<std::uint32_t>(crc);
+}
+
+// Opens the checkpoint for writing, never through a link (O_NOFOLLOW): a link planted under its
+// name would have the study write elsewhere. Null with errno set on failure.
+std::FILE* open_for_writing(const std::string& path, int flags) {
+  const int fd = ::open(path.c_str(), O_WRONLY | O_NOFOLLOW | O_CLOEXEC | flags, 0644);
+  if (fd < 0) return nullptr;
+  std::FILE* file = ::fdopen(fd, (flags & O_APPEND) != 0 ? "ab" : "wb");
+  if (!file) ::close(fd);
+  return file;
 }
 
 }  // namespace
@@ -118,9 +131,9 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
     std::error_code ec;
     std::filesystem::resize_file(path_, good_bytes, ec);
     if (ec) throw IoError(path_ + ": cannot repair the checkpoint (" + ec.message() + ")");
-    file_ = std::fopen(path_.c_str(), "ab");
+    file_ = open_for_writing(path_, O_APPEND);
   } else {
-    file_ = std::fopen(path_.c_str(), "wb");
+    file_ = open_for_writing(path_, O_TRUNC | O_CREAT);
     if (file_ && (std::fwrite(header.data(), 1, header.size(), file_) != header.size() ||
                   std::fflush(file_) != 0))
       throw IoError(path_ + ": cannot write the checkpoint");

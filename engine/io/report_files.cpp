@@ -1,10 +1,13 @@
 #include "io/report_files.hpp"
 
+#include <fcntl.h>
 #include <unistd.h>
 
 #include <GeographicLib/LocalCartesian.hpp>
+#include <cerrno>
 #include <cmath>
 #include <cstdio>
+#include <cstring>
 #include <filesystem>
 #include <fstream>
 #include <nlohmann/json.hpp>
@@ -60,17 +63,24 @@ void write_report_file(const std::string& path, const std::string& text,
     std::error_code ec;
     fs::create_directories(folder, ec);
   }
-  const fs::path temporary = final_path.parent_path() / (final_path.filename().string() +
-                                                         ".partial-" + std::to_string(::getpid()));
+  const std::string temporary = temporary_path_of(path);
   {
-    std::ofstream out(temporary, std::ios::binary);
-    if (!out) throw IoError(path + ": cannot write the file (the folder is missing or read-only)");
-    out << text;
-    out.flush();
-    if (!out) {
+    const int fd = create_new_file(temporary);
+    if (fd < 0) throw IoError(path + ": cannot write the file (" + std::strerror(errno) + ")");
+    std::size_t written = 0;
+    while (written < text.size()) {
+      const ssize_t n = ::write(fd, text.data() + written, text.size() - written);
+      if (n < 0 && errno == EINTR) continue;
+      if (n <= 0) break;
+      written += static_cast<std::size_t>(n);
+    }
+    const bool complete = written == text.size();
+    const int saved = errno;
+    if (::close(fd) != 0 || !complete) {
       std::error_code ignored;
       fs::remove(temporary, ignored);
-      throw IoError(path + ": writing failed (is the disk full?)");
+      throw IoError(path + ": writing failed (" +
+                    (complete ? std::string("cannot close the file") : std::strerror(saved)) + ")");
     }
   }
   std::error_code error;

@@ -7,6 +7,7 @@
 #include <unistd.h>
 
 #include <atomic>
+#include <cctype>
 #include <cerrno>
 #include <chrono>
 #include <cstdio>
@@ -140,11 +141,49 @@ void io_guard(const std::string& path, F&& action) {
 }
 }  // namespace
 
+std::string partial_suffix() {
+  // The host name as it may stand in a file name: letters, digits, '-' and '.', the rest '_'.
+  char host[256] = {};
+  if (::gethostname(host, sizeof host - 1) != 0) host[0] = '\0';
+  std::string name;
+  for (const char* c = host; *c != '\0' && name.size() < 64; ++c) {
+    const auto u = static_cast<unsigned char>(*c);
+    name += (std::isalnum(u) || *c == '-' || *c == '.') ? *c : '_';
+  }
+  if (name.empty()) name = "host";
+  return ".partial-" + name + "-" + std::to_string(::getpid());
+}
+
 std::string temporary_path_of(const std::string& path) {
   const std::filesystem::path final_path(path);
-  return (final_path.parent_path() /
-          (final_path.filename().string() + ".partial-" + std::to_string(::getpid())))
-      .string();
+  return (final_path.parent_path() / (final_path.filename().string() + partial_suffix())).string();
+}
+
+void remove_stale_partials(const std::string& folder, const std::string& output_name) {
+  namespace fs = std::filesystem;
+  const std::string suffix = partial_suffix();
+  // ".partial-<host>-": what this machine's runs add, whatever their process id.
+  const std::string ours = suffix.substr(0, suffix.rfind('-') + 1);
+  std::error_code ec;
+  for (const auto& entry : fs::directory_iterator(folder, ec)) {
+    const std::string name = entry.path().filename().string();
+    const std::size_t at = name.rfind(ours);
+    if (at == std::string::npos || (!output_name.empty() && name != output_name + name.substr(at)))
+      continue;
+    const std::string digits = name.substr(at + ours.size());
+    if (digits.empty() || digits.size() > 9 ||
+        digits.find_first_not_of("0123456789") != std::string::npos)
+      continue;
+    const auto pid = static_cast<pid_t>(std::stol(digits));
+    std::error_code ignored;
+    if (::kill(pid, 0) != 0 && errno == ESRCH) fs::remove(entry.path(), ignored);
+  }
+}
+
+int create_new_file(const std::string& path) {
+  std::error_code ignored;
+  std::filesystem::remove(path, ignored);  // removes a link itself, never what it points to
+  return ::open(path.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0644);
 }
 
 // Makes the folder of an output file (and its parents) when it is missing (with `make`; without,
@@ -154,6 +193,10 @@ std::string temporary_path_of(const std::string& path) {
 void refuse_unsafe_output(const std::string& path, const std::string& origin,
                           const std::vector<std::string>& inputs) {
   namespace fs = std::filesystem;
+  // Longer than Linux's PATH_MAX with the temporary suffix: no such file could be opened.
+  if (path.size() + partial_suffix().size() >= 4096)
+    throw UsageError(origin + path.substr(0, 60) + "...: the output's path is too long (" +
+                     std::to_string(path.size()) + " characters)");
   std::error_code ec;
   const fs::file_status status = fs::symlink_status(path, ec);
   if (fs::is_directory(status))
@@ -166,6 +209,11 @@ void refuse_unsafe_output(const std::string& path, const std::string& origin,
     if (fs::exists(status) && fs::equivalent(path, input, ec))
       throw UsageError(origin + path + ": is a file this command reads (" + input +
                        "); choose another name for the output");
+  const std::string checkpoint = path + ".checkpoint";
+  if (const fs::file_status beside = fs::symlink_status(checkpoint, ec);
+      fs::exists(beside) && !fs::is_regular_file(beside))
+    throw UsageError(origin + path + ": its checkpoint " + checkpoint +
+                     " is not a regular file (a folder, a device, a pipe or a link); remove it");
 }
 
 void prepare_output(const std::string& path, const std::string& origin, bool make,
@@ -204,17 +252,7 @@ void prepare_output(const std::string& path, const std::string& origin, bool mak
   ::unlink(probe.c_str());
   if (!make) return;
   // Temporary files of runs that were killed (their process is gone): strewn's own leftovers.
-  const std::string stem = fs::path(path).filename().string() + ".partial-";
-  for (const auto& entry : fs::directory_iterator(existing, ec)) {
-    const std::string name = entry.path().filename().string();
-    if (name.rfind(stem, 0) != 0) continue;
-    const std::string digits = name.substr(stem.size());
-    if (digits.empty() || digits.size() > 9 ||
-        digits.find_first_not_of("0123456789") != std::string::npos)
-      continue;
-    const auto pid = static_cast<pid_t>(std::stol(digits));
-    if (::kill(pid, 0) != 0 && errno == ESRCH) fs::remove(entry.path(), ec);
-  }
+  remove_stale_partials(existing.string(), fs::path(path).filename().string());
 }
 
 ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
@@ -227,7 +265,10 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
   io_guard(path_, [&] {
     auto open = std::make_unique<Open>();
     open->keep_samples = keep_samples;
-    open->file = H5::H5File(temporary_, H5F_ACC_TRUNC);
+    // Made new, never through a link planted under the temporary name.
+    std::error_code ignored;
+    std::filesystem::remove(temporary_, ignored);
+    open->file = H5::H5File(temporary_, H5F_ACC_EXCL);
     H5::H5File& file = open->file;
     write_attribute(file, "format_version", kResultsFormatVersion);
     write_attribute(file, "engine_version", std::string(kEngineVersion));
@@ -435,7 +476,11 @@ StudyRun run_and_write(const SampleModel& model, const World& world, StudyOption
         run.result.interrupted = true;
         // Every sample finished so far is in the checkpoint: those of this run and of earlier ones.
         std::uint64_t kept = done + flown.finished;
-        for (std::size_t k = next_piece; k < pieces.size(); ++k) kept += pieces[k].rows.samples;
+        // Pieces past the planned total (of a longer earlier round) are not counted in it.
+        for (std::size_t k = next_piece; k < pieces.size(); ++k) {
+          const std::uint64_t first = pieces[k].first_sample;
+          if (first < total) kept += std::min(total, first + pieces[k].rows.samples) - first;
+        }
         run.result.finished = kept;
         run.result.planned = total;
         return run;  // the writer removes its temporary file; the checkpoint stays

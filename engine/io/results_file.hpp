@@ -30,21 +30,39 @@ inline constexpr int kResultsFormatVersion = 3;
 /// Refuses (UsageError, status 2) an output path that strewn must not write: a folder, an existing
 /// entry that is not a regular file (a device such as /dev/null, a pipe, a link: writing a whole
 /// file under the name would replace it), or one of `inputs`, the files the command reads. The
-/// message starts with `origin` (where the path came from, e.g. "file:line: output.file: ").
+/// checkpoint beside it (`<path>.checkpoint`) must be a regular file too when it exists: a link
+/// planted there would have the study write through it. The message starts with `origin` (where
+/// the path came from, e.g. "file:line: output.file: ").
 void refuse_unsafe_output(const std::string& path, const std::string& origin,
                           const std::vector<std::string>& inputs = {});
 
 /// Refuses an unsafe output (refuse_unsafe_output), makes the folder of an output file (and its
 /// parents) when it is missing (with `make`; without, as `check` does, only finds that it could
 /// be made), and checks that a file can be made there by making and removing one. With `make`,
-/// also removes the temporary files that killed runs left under this name (their process is
-/// gone). Throws UsageError (status 2: refused before anything runs).
+/// also removes the temporary files that killed runs on this machine left under this name (their
+/// process is gone; remove_stale_partials). Throws UsageError (status 2: refused before anything
+/// runs).
 void prepare_output(const std::string& path, const std::string& origin, bool make,
                     const std::vector<std::string>& inputs = {});
 
+/// What strewn adds to an output's name while it writes it: ".partial-<host>-<process id>". The
+/// host name keeps two machines sharing a folder (a cluster's shared file system) from taking
+/// each other's process ids for their own.
+std::string partial_suffix();
+
 /// The temporary name a results file is written under until it is complete: beside it, with
-/// ".partial-<process id>" added.
+/// partial_suffix() added.
 std::string temporary_path_of(const std::string& path);
+
+/// Removes from `folder` the temporary files (partial_suffix) left by killed runs of this machine
+/// whose process is gone, for the output named `output_name`, or for every output when it is
+/// empty. Files of other machines, and of live processes, are left alone.
+void remove_stale_partials(const std::string& folder, const std::string& output_name);
+
+/// Opens `path` for writing as a new regular file, never through a link: an entry already there
+/// under the name (a leftover, or a link planted to redirect the write) is removed first, then
+/// the file is made with O_EXCL | O_NOFOLLOW. Returns the descriptor, or -1 with errno set.
+int create_new_file(const std::string& path);
 
 /// Writes a results file as a study runs: rows are appended round by round (a RowSink, fed on
 /// the study's writer thread), then finish() adds the counts, closes the file and renames it into

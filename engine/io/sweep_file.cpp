@@ -61,10 +61,7 @@ SweepSummary write_sweep_file(const std::string& path, const std::string& sweep_
   const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   H5::Exception::dontPrint();
   const fs::path final_path(path);
-  const std::string temporary =
-      (final_path.parent_path() /
-       (final_path.filename().string() + ".partial-" + std::to_string(::getpid())))
-          .string();
+  const std::string temporary = temporary_path_of(path);
   // Summary columns, filled case by case.
   std::vector<std::string> names{"case"};
   for (const auto& k : axis_keys) names.push_back(k);
@@ -73,7 +70,9 @@ SweepSummary write_sweep_file(const std::string& path, const std::string& sweep_
   std::vector<std::vector<std::string>> texts;
   std::string csv, text;
   try {
-    H5::H5File file(temporary, H5F_ACC_TRUNC);
+    std::error_code ignored;
+    fs::remove(temporary, ignored);  // made new, never through a link under the name
+    H5::H5File file(temporary, H5F_ACC_EXCL);
     write_attribute(file, "format_version", kResultsFormatVersion);
     write_attribute(file, "kind", std::string("sweep"));
     write_attribute(file, "engine_version", std::string(kEngineVersion));

@@ -384,6 +384,16 @@ class Loader {
     if (b.name == "all")
       diagnostics_.add(t.key_path("name"), t.line_of("name"),
                        "\"all\" is reserved for the footprint of every body together");
+    // The sections' names start the names of their inputs ("release.altitude", "wind.bias_east",
+    // "medium.density_factor"): a body so named would make "<name>.<input>" ambiguous, and the
+    // sensitivities of each body, which take its inputs by that prefix, wrong.
+    for (const char* section :
+         {"release", "wind", "medium", "site", "study", "rules", "output", "correlation", "body"})
+      if (name && *name == section)
+        diagnostics_.add(t.key_path("name"), t.line_of("name"),
+                         "\"" + *name +
+                             "\" is the name of a section of the scenario, which starts the "
+                             "names of its inputs; choose another name for the body");
     if (scenario_.body_index(b.name) >= 0 && name)
       diagnostics_.add(t.key_path("name"), t.line_of("name"),
                        "duplicate body name \"" + b.name + "\": each [[body]] needs its own name");

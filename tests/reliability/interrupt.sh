@@ -7,7 +7,9 @@
 #    run's, bit for bit;
 #  - a final file never exists in an incomplete state;
 #  - with slow flights, a signal stops within about a second keeping every finished sample,
-#    SIGHUP acts as SIGTERM, and a second signal ends the run at once.
+#    SIGHUP acts as SIGTERM, a second signal ends the run at once, and the same signal again
+#    within a quarter of a second (one Ctrl-C reaching the process twice, through its terminal
+#    group and a launcher that forwards it) is taken as the first.
 # Usage: interrupt.sh STREWN_BINARY SOURCE_DIR
 set -uo pipefail
 source "$(dirname "$0")/../lib.sh" "$1" "$2"
@@ -75,7 +77,7 @@ slow_samples=120
 start=$(date +%s%N)
 "$strewn" run "$slow" -n $slow_samples -j 2 -o "$work/slow.h5" --quiet >/dev/null || fail "the slow study failed"
 slow_ms=$((($(date +%s%N) - start) / 1000000))
-for signal in INT HUP TWICE; do
+for signal in INT HUP TWICE REPEATED; do
   out="$work/slow-$signal.h5"
   "$strewn" run "$slow" -n $slow_samples -j 2 -o "$out" --quiet >/dev/null 2>"$work/err" &
   pid=$!
@@ -85,6 +87,11 @@ for signal in INT HUP TWICE; do
     # Two different signals: the kernel merges a signal sent again before it is handled.
     kill -INT "$pid"
     kill -TERM "$pid"
+  elif [[ $signal == REPEATED ]]; then
+    # The same signal twice, 20 ms apart (handled one by one, not merged by the kernel).
+    kill -INT "$pid"
+    sleep 0.02
+    kill -INT "$pid"
   else
     kill -"$signal" "$pid"
   fi

@@ -3,6 +3,7 @@
 // tight-tolerance integration of the same physics (Boost.Odeint, reference_flight.hpp).
 #include <gtest/gtest.h>
 #include <sys/stat.h>
+#include <sys/wait.h>
 #include <unistd.h>
 
 #include <filesystem>
@@ -12,6 +13,7 @@
 
 #include "app/commands.hpp"
 #include "command_line.hpp"
+#include "io/results_file.hpp"
 #include "reference_flight.hpp"
 #include "scenario/world.hpp"
 
@@ -365,6 +367,58 @@ TEST(CliPaths, UnsafeOutputsAreRefusedAndLeftAlone) {
   for (const char* n : {"18446744073709551615", "9223372036854775808", "2000000001"})
     EXPECT_EQ(run({"run", scenario, "-n", n}).status, 2) << n;
   EXPECT_EQ(run({"run", scenario, "-j", "2147483647"}).status, 2);
+  fs::remove_all(dir);
+}
+
+// Found in a code review: a link planted under the checkpoint's name, or under the name the
+// results are written under before they are complete, had the study write through it; and the
+// leftovers of killed runs were recognised by process id alone, so on a folder shared by several
+// machines one run removed another machine's live temporary file.
+TEST(CliPaths, PlantedLinksAreNotFollowedAndOtherMachinesFilesAreLeftAlone) {
+  namespace fs = std::filesystem;
+  const fs::path dir =
+      fs::temp_directory_path() / ("strewn-cli-planted-" + std::to_string(::getpid()));
+  fs::remove_all(dir);
+  fs::create_directories(dir);
+  const std::string scenario = (dir / "s.toml").string();
+  std::ofstream(scenario) << "[release]\naltitude = 300.0\n[[body]]\nmass = 1.0\n[body.drag]\n"
+                             "model = \"area\"\ncd = 1.0\narea = 0.05\n[study]\nsamples = 20\n";
+  const fs::path target = dir / "target";
+  std::ofstream(target) << "keep me";
+  const std::string out = (dir / "r.h5").string();
+  // A link under the checkpoint's name: refused, in words, before anything runs.
+  fs::create_symlink(target, out + ".checkpoint");
+  CommandResult r = run({"run", scenario, "-o", out, "--quiet"});
+  EXPECT_EQ(r.status, 2) << r.err;
+  EXPECT_NE(r.err.find("checkpoint"), std::string::npos) << r.err;
+  fs::remove(out + ".checkpoint");
+  // A link under this process's own temporary name: replaced by a new file, never followed.
+  fs::create_symlink(target, temporary_path_of(out));
+  r = run({"run", scenario, "-o", out, "--quiet"});
+  EXPECT_EQ(r.status, 0) << r.err;
+  EXPECT_EQ(test::slurp(target.string()), "keep me");
+  EXPECT_FALSE(fs::exists(fs::symlink_status(temporary_path_of(out))));
+  // Leftovers: this machine's of a process that is gone are removed; another machine's, and
+  // those of a live process (this one's parent), are left.
+  const pid_t child = ::fork();
+  if (child == 0) ::_exit(0);
+  ASSERT_GT(child, 0);
+  ::waitpid(child, nullptr, 0);
+  const std::string suffix = partial_suffix();
+  const std::string host_part = suffix.substr(0, suffix.rfind('-') + 1);  // ".partial-<host>-"
+  const std::string dead = out + host_part + std::to_string(child);
+  const std::string other_machine = out + ".partial-another-machine-" + std::to_string(child);
+  const std::string live = out + host_part + std::to_string(::getppid());
+  for (const auto& f : {dead, other_machine, live}) std::ofstream(f) << "left";
+  r = run({"run", scenario, "-o", out, "--quiet"});
+  EXPECT_EQ(r.status, 0) << r.err;
+  EXPECT_FALSE(fs::exists(dead));
+  EXPECT_TRUE(fs::exists(other_machine));
+  EXPECT_TRUE(fs::exists(live));
+  // A report is written new as well: a link under its temporary name is not followed.
+  fs::create_symlink(target, temporary_path_of((dir / "m.svg").string()));
+  EXPECT_EQ(run({"report", out, "--svg", (dir / "m.svg").string()}).status, 0);
+  EXPECT_EQ(test::slurp(target.string()), "keep me");
   fs::remove_all(dir);
 }
 

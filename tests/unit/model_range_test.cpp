@@ -54,6 +54,21 @@ TEST(ModelRange, StokesDropletReleasedFastIsFlaggedWithItsReynoldsNumber) {
   EXPECT_NE(warnings[0].find("consider the sphere model"), std::string::npos) << warnings[0];
 }
 
+// Found in a read of the code: with a wind stronger than the law's highest air speed the screen
+// was meant to judge every point, but a body at rest passed it. A droplet dropped from rest into
+// a 5 m/s wind meets its largest air speed, the wind's, at the release: Re = rho 5 D / mu.
+TEST(ModelRange, ABodyAtRestInAWindIsJudged) {
+  const Medium medium = Medium::us1976();
+  const WindProfile wind({{0.0, 5.0, 270.0}}, 0.0);
+  const Environment environment{&medium, {}, &wind, 0.0};
+  const Body droplet = test::round_body(DragModel::stokes, 100e-6, 1000.0);
+  const auto result = fly(droplet, environment, test::release_at(0, 0, 5000, 0, 0, 0));
+  ASSERT_TRUE(result.regime.flags & kReynoldsAboveLaw);
+  const PrintedAir air = printed_air_at_5000();
+  const double reynolds = air.density * 5.0 * 100e-6 / air.viscosity;
+  EXPECT_NEAR(result.regime.reynolds_beyond, reynolds, 2e-4 * reynolds);
+}
+
 TEST(ModelRange, MachBeyondTheTableAndWithoutOne) {
   const Calm calm;
   const PrintedAir air = printed_air_at_5000();

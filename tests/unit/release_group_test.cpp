@@ -58,6 +58,21 @@ TEST(ReleaseGroup, OneBodyGivesTheOrderStatisticsOfOneSample) {
   }
 }
 
+// Found in a code review: the mixture's quantile allowed 1e-12 of rounding in p where
+// quantile_rank allows 1e-9 in p n, so a level a hair above a whole p n (0.99 + 5e-12 of 100
+// samples) took the 100th distance for one body where the order statistic (Wilks 1941; the rank
+// ceil(p n)) is the 99th.
+TEST(ReleaseGroup, QuantileRoundsTheLevelAsTheOrderStatisticDoes) {
+  std::vector<double> values(100);
+  for (std::size_t i = 0; i < values.size(); ++i) values[i] = static_cast<double>(i + 1);
+  const MixtureColumn m({values}, {0}, {1.0});
+  for (double p : {0.99 + 5e-12, 0.5 + 5e-12, 0.5 - 5e-12, 0.25}) {
+    SCOPED_TRACE(p);
+    EXPECT_EQ(m.quantile(p, false), values[quantile_rank(values.size(), p) - 1]);
+  }
+  EXPECT_EQ(m.quantile(0.99 + 5e-12, false), 99.0);
+}
+
 TEST(ReleaseGroup, EstimatesEqualTheRowsRepeatedByTheirCounts) {
   // Two bodies with 1 and 3 objects per release: the weighted empirical distribution is that of
   // the rows with each of the second body's repeated three times.

@@ -224,6 +224,11 @@ TEST_F(Sweep, MalformedSweepsAreRefusedBeforeAnyCaseRuns) {
       // message: the axis's line is found all the same.
       {head + "[[axis]]\nkey = \"box.mass.sigma\"\nvalues = [-1.0]\n",
        ":3: axis[0].key: case 0 (box.mass.sigma = -1): body[0].mass.sigma:"},
+      // Found in a code review: keys each fine in the base scenario, but one under the number
+      // the other sets, ended the program (an empty std::function called).
+      {head + "[[axis]]\nkey = \"release.extra\"\nvalues = [1.0]\n"
+              "[[axis]]\nkey = \"release.extra.deeper\"\nvalues = [2.0]\n",
+       ":6: axis[1].key: release.extra.deeper cannot be set once the other axes are"},
   };
   for (std::size_t i = 0; i < cases.size(); ++i) {
     const auto path = write("bad" + std::to_string(i) + ".toml", cases[i].text);
