@@ -92,12 +92,17 @@ std::int64_t monotonic_ns() {  // clock_gettime is async-signal-safe (POSIX.1-20
 }
 
 extern "C" void request_stop(int signal_number) {
-  if (!stop_requested.exchange(true)) {
+  // The first signal is the one that claims first_signal. A signal sent to the process may run
+  // this handler on two threads at once: the other sees the claim before the time is set (0),
+  // and counts as within the quarter second.
+  int claimed = 0;
+  if (first_signal.compare_exchange_strong(claimed, signal_number)) {
     first_signal_ns = monotonic_ns();
-    first_signal = signal_number;
+    stop_requested = true;
     return;
   }
-  if (signal_number == first_signal && monotonic_ns() - first_signal_ns < 250'000'000) return;
+  const std::int64_t since = first_signal_ns;
+  if (signal_number == claimed && (since == 0 || monotonic_ns() - since < 250'000'000)) return;
   if (temporary_results_file_ready) ::unlink(temporary_results_file);
   static const char text[] =
       "\nstrewn: stopped at once by a second signal; the checkpoint keeps the samples written to "
@@ -112,6 +117,7 @@ class StopOnSignals {
   StopOnSignals() {
     stop_requested = false;
     first_signal = 0;
+    first_signal_ns = 0;
     temporary_results_file_ready = false;
     struct sigaction action {};
     action.sa_handler = request_stop;

@@ -659,7 +659,10 @@ GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettin
       for (double level : s.levels) {
         DispersionEllipse el;
         el.level = level;
-        el.scale = std::sqrt(-2.0 * std::log1p(-level));
+        // The same squared scale as a body's ellipse counts against (not scale * scale, which
+        // rounds differently).
+        const double scale2 = -2.0 * std::log1p(-level);
+        el.scale = std::sqrt(scale2);
         el.semi_major = el.scale * std::sqrt(axes.major);
         el.semi_minor = el.scale * std::sqrt(axes.minor);
         el.bearing = axes.bearing;
@@ -668,7 +671,7 @@ GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettin
           for (std::size_t k = 0; k < bodies.size(); ++k)
             for (std::uint32_t row : bodies[k].landed) {
               const double de = t.east[row] - f.mean.east, dn = t.north[row] - f.mean.north;
-              if ((c * de * de - 2.0 * b * de * dn + a * dn * dn) / det <= el.scale * el.scale)
+              if ((c * de * de - 2.0 * b * de * dn + a * dn * dn) / det <= scale2)
                 inside += row_weight[k];
             }
         el.counted = f.objects_per_release > 0.0 ? inside / f.objects_per_release : kNaN;

@@ -1,6 +1,7 @@
 #include "io/checkpoint.hpp"
 
 #include <fcntl.h>
+#include <sys/stat.h>
 #include <unistd.h>
 #include <zlib.h>
 
@@ -36,12 +37,13 @@ std::uint32_t crc_of(const std::vector<std::byte>& bytes) {
   return static_cast<std::uint32_t>(crc);
 }
 
-// Opens the checkpoint for writing, never through a link (O_NOFOLLOW): a link planted under its
-// name would have the study write elsewhere. Null with errno set on failure.
-std::FILE* open_for_writing(const std::string& path, int flags) {
-  const int fd = ::open(path.c_str(), O_WRONLY | O_NOFOLLOW | O_CLOEXEC | flags, 0644);
+// Opens a new, empty checkpoint, never through a link (O_NOFOLLOW): a link planted under its
+// name would have the study write elsewhere. 0666 less the umask, as any file a program makes.
+// Null with errno set on failure.
+std::FILE* open_empty(const std::string& path) {
+  const int fd = ::open(path.c_str(), O_WRONLY | O_CREAT | O_TRUNC | O_NOFOLLOW | O_CLOEXEC, 0666);
   if (fd < 0) return nullptr;
-  std::FILE* file = ::fdopen(fd, (flags & O_APPEND) != 0 ? "ab" : "wb");
+  std::FILE* file = ::fdopen(fd, "wb");
   if (!file) ::close(fd);
   return file;
 }
@@ -55,9 +57,19 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
   std::uint64_t good_bytes = 0;
   // The records read back, by first row.
   std::vector<std::pair<std::uint64_t, StudyColumns>> records;
-  if (resume && std::filesystem::exists(path_)) {
-    std::FILE* in = std::fopen(path_.c_str(), "rb");
-    if (!in) throw IoError(path_ + ": cannot read the checkpoint");
+  // On --resume, the checkpoint is opened once, never through a link, and read, cut and
+  // appended to through that one descriptor: a link put in its place meanwhile is not followed.
+  std::FILE* in = nullptr;
+  if (resume) {
+    const int fd = ::open(path_.c_str(), O_RDWR | O_NOFOLLOW | O_CLOEXEC);
+    if (fd < 0 && errno != ENOENT)
+      throw IoError(path_ + ": cannot read the checkpoint (" + std::strerror(errno) + ")");
+    if (fd >= 0 && !(in = ::fdopen(fd, "r+b"))) {
+      ::close(fd);
+      throw IoError(path_ + ": cannot read the checkpoint");
+    }
+  }
+  if (in) {
     std::string head(header.size(), '\0');
     const bool whole_header = std::fread(head.data(), 1, head.size(), in) == head.size();
     if (whole_header && head != header) {
@@ -69,13 +81,14 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
     }
     if (whole_header) {
       good_bytes = header.size();
-      std::error_code size_error;
-      const std::uint64_t file_bytes = std::filesystem::file_size(path_, size_error);
+      struct stat status {};
+      const bool size_known = ::fstat(::fileno(in), &status) == 0;
+      const auto file_bytes = static_cast<std::uint64_t>(status.st_size);
       while (true) {              // complete records only
         std::uint64_t fields[4];  // magic, first row, rows, payload bytes
         if (std::fread(fields, sizeof fields, 1, in) != 1 || fields[0] != kRecordMagic) break;
         // A damaged length is not believed: a whole record lies within the file.
-        if (size_error || fields[3] > file_bytes - good_bytes) break;
+        if (!size_known || fields[3] > file_bytes - good_bytes) break;
         std::vector<std::byte> payload(fields[3]);
         std::uint32_t crc = 0;
         if (std::fread(payload.data(), 1, payload.size(), in) != payload.size() ||
@@ -86,13 +99,14 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
         std::size_t at = 0;
         if (!take_row_bytes(payload, at, fields[2], rows) || at != payload.size()) break;
         // Whole samples only (a record always holds whole samples; be safe).
-        if (fields[1] % bodies_ != 0 || fields[2] % bodies_ != 0)
+        if (fields[1] % bodies_ != 0 || fields[2] % bodies_ != 0) {
+          std::fclose(in);
           throw IoError(path_ + ": the checkpoint holds a part of a sample");
+        }
         records.emplace_back(fields[1], std::move(rows));
         good_bytes += sizeof fields + payload.size() + sizeof crc;
       }
     }
-    std::fclose(in);
   }
   // Runs of consecutive samples in index order; a record overlapping one already taken (the
   // same samples flown again after a torn record) adds only what is new.
@@ -126,19 +140,26 @@ Checkpoint::Checkpoint(std::string path, Identity id, const std::vector<std::str
     }
   }
   for (auto& piece : pieces_) piece.rows.count_outcomes();
-  if (good_bytes > 0) {
-    // Cut off a torn end, and go on appending.
-    std::error_code ec;
-    std::filesystem::resize_file(path_, good_bytes, ec);
-    if (ec) throw IoError(path_ + ": cannot repair the checkpoint (" + ec.message() + ")");
-    file_ = open_for_writing(path_, O_APPEND);
+  if (in) {
+    // Cut off a torn end (all of it without a whole header), and go on writing after what is
+    // kept, through the descriptor read.
+    if (std::fflush(in) != 0 || ::ftruncate(::fileno(in), static_cast<off_t>(good_bytes)) != 0 ||
+        std::fseek(in, static_cast<long>(good_bytes), SEEK_SET) != 0) {
+      const int saved = errno;
+      std::fclose(in);
+      throw IoError(path_ + ": cannot repair the checkpoint (" + std::strerror(saved) + ")");
+    }
+    file_ = in;
   } else {
-    file_ = open_for_writing(path_, O_TRUNC | O_CREAT);
-    if (file_ && (std::fwrite(header.data(), 1, header.size(), file_) != header.size() ||
-                  std::fflush(file_) != 0))
-      throw IoError(path_ + ": cannot write the checkpoint");
+    file_ = open_empty(path_);
   }
   if (!file_) throw IoError(path_ + ": cannot write the checkpoint (" + std::strerror(errno) + ")");
+  if (good_bytes == 0 && (std::fwrite(header.data(), 1, header.size(), file_) != header.size() ||
+                          std::fflush(file_) != 0)) {
+    std::fclose(file_);  // a constructor that throws runs no destructor
+    file_ = nullptr;
+    throw IoError(path_ + ": cannot write the checkpoint");
+  }
 }
 
 Checkpoint::~Checkpoint() {

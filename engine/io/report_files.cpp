@@ -86,7 +86,8 @@ void write_report_file(const std::string& path, const std::string& text,
   std::error_code error;
   fs::rename(temporary, final_path, error);
   if (error) {
-    fs::remove(temporary, error);
+    std::error_code ignored;
+    fs::remove(temporary, ignored);
     throw IoError(path + ": cannot put the file in place (" + error.message() + ")");
   }
 }

@@ -4,6 +4,7 @@
 #include <fcntl.h>
 #include <openssl/evp.h>
 #include <signal.h>
+#include <sys/file.h>
 #include <unistd.h>
 
 #include <atomic>
@@ -142,16 +143,20 @@ void io_guard(const std::string& path, F&& action) {
 }  // namespace
 
 std::string partial_suffix() {
-  // The host name as it may stand in a file name: letters, digits, '-' and '.', the rest '_'.
-  char host[256] = {};
-  if (::gethostname(host, sizeof host - 1) != 0) host[0] = '\0';
-  std::string name;
-  for (const char* c = host; *c != '\0' && name.size() < 64; ++c) {
-    const auto u = static_cast<unsigned char>(*c);
-    name += (std::isalnum(u) || *c == '-' || *c == '.') ? *c : '_';
-  }
-  if (name.empty()) name = "host";
-  return ".partial-" + name + "-" + std::to_string(::getpid());
+  // Taken once: a host renamed during a run must not give its files two names.
+  static const std::string suffix = [] {
+    // The host name as it may stand in a file name: letters, digits, '-' and '.', the rest '_'.
+    char host[256] = {};
+    if (::gethostname(host, sizeof host - 1) != 0) host[0] = '\0';
+    std::string name;
+    for (const char* c = host; *c != '\0' && name.size() < 64; ++c) {
+      const auto u = static_cast<unsigned char>(*c);
+      name += (std::isalnum(u) || *c == '-' || *c == '.') ? *c : '_';
+    }
+    if (name.empty()) name = "host";
+    return ".partial-" + name + "-" + std::to_string(::getpid());
+  }();
+  return suffix;
 }
 
 std::string temporary_path_of(const std::string& path) {
@@ -175,15 +180,24 @@ void remove_stale_partials(const std::string& folder, const std::string& output_
         digits.find_first_not_of("0123456789") != std::string::npos)
       continue;
     const auto pid = static_cast<pid_t>(std::stol(digits));
-    std::error_code ignored;
-    if (::kill(pid, 0) != 0 && errno == ESRCH) fs::remove(entry.path(), ignored);
+    if (::kill(pid, 0) == 0 || errno != ESRCH) continue;  // its process lives
+    // A file someone holds locked is in use whatever its name says (HDF5 locks a file it
+    // writes; two machines may share a host name): removed only while this process holds it.
+    const int fd = ::open(entry.path().c_str(), O_RDONLY | O_NOFOLLOW | O_CLOEXEC | O_NONBLOCK);
+    if (fd < 0) continue;
+    if (::flock(fd, LOCK_EX | LOCK_NB) == 0) {
+      std::error_code ignored;
+      fs::remove(entry.path(), ignored);
+    }
+    ::close(fd);
   }
 }
 
 int create_new_file(const std::string& path) {
   std::error_code ignored;
   std::filesystem::remove(path, ignored);  // removes a link itself, never what it points to
-  return ::open(path.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0644);
+  // 0666 less the umask, as any file a program makes: a group sharing a folder shares it.
+  return ::open(path.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0666);
 }
 
 // Makes the folder of an output file (and its parents) when it is missing (with `make`; without,
@@ -193,10 +207,17 @@ int create_new_file(const std::string& path) {
 void refuse_unsafe_output(const std::string& path, const std::string& origin,
                           const std::vector<std::string>& inputs) {
   namespace fs = std::filesystem;
-  // Longer than Linux's PATH_MAX with the temporary suffix: no such file could be opened.
-  if (path.size() + partial_suffix().size() >= 4096)
+  // Longer than Linux's PATH_MAX, or a name longer than NAME_MAX (255), with the temporary
+  // suffix and the probe's ".probe": no such file could be made.
+  const std::size_t added = partial_suffix().size() + std::string_view(".probe").size();
+  if (path.size() + added >= 4096)
     throw UsageError(origin + path.substr(0, 60) + "...: the output's path is too long (" +
                      std::to_string(path.size()) + " characters)");
+  if (const std::string name = fs::path(path).filename().string(); name.size() + added > 255)
+    throw UsageError(origin + path + ": the file's name is too long (" +
+                     std::to_string(name.size()) + " characters; at most " +
+                     std::to_string(255 - added) + " on this machine, which adds " +
+                     std::to_string(added) + " to it while writing)");
   std::error_code ec;
   const fs::file_status status = fs::symlink_status(path, ec);
   if (fs::is_directory(status))
@@ -209,19 +230,19 @@ void refuse_unsafe_output(const std::string& path, const std::string& origin,
     if (fs::exists(status) && fs::equivalent(path, input, ec))
       throw UsageError(origin + path + ": is a file this command reads (" + input +
                        "); choose another name for the output");
-  const std::string checkpoint = path + ".checkpoint";
-  if (const fs::file_status beside = fs::symlink_status(checkpoint, ec);
-      fs::exists(beside) && !fs::is_regular_file(beside))
-    throw UsageError(origin + path + ": its checkpoint " + checkpoint +
-                     " is not a regular file (a folder, a device, a pipe or a link); remove it");
 }
 
 void prepare_output(const std::string& path, const std::string& origin, bool make,
                     const std::vector<std::string>& inputs) {
   namespace fs = std::filesystem;
   refuse_unsafe_output(path, origin, inputs);
-  fs::path folder = fs::path(path).parent_path();
   std::error_code ec;
+  const std::string checkpoint = path + ".checkpoint";
+  if (const fs::file_status beside = fs::symlink_status(checkpoint, ec);
+      fs::exists(beside) && !fs::is_regular_file(beside))
+    throw UsageError(origin + path + ": its checkpoint " + checkpoint +
+                     " is not a regular file (a folder, a device, a pipe or a link); remove it");
+  fs::path folder = fs::path(path).parent_path();
   if (folder.empty()) folder = ".";
   fs::path existing = folder;  // the folder, or the nearest of its parents that exists
   while (!fs::exists(existing, ec)) {

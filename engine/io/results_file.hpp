@@ -29,14 +29,15 @@ inline constexpr int kResultsFormatVersion = 3;
 
 /// Refuses (UsageError, status 2) an output path that strewn must not write: a folder, an existing
 /// entry that is not a regular file (a device such as /dev/null, a pipe, a link: writing a whole
-/// file under the name would replace it), or one of `inputs`, the files the command reads. The
-/// checkpoint beside it (`<path>.checkpoint`) must be a regular file too when it exists: a link
-/// planted there would have the study write through it. The message starts with `origin` (where
-/// the path came from, e.g. "file:line: output.file: ").
+/// file under the name would replace it), one of `inputs`, the files the command reads, or a path
+/// or name too long to be written. The message starts with `origin` (where the path came from,
+/// e.g. "file:line: output.file: ").
 void refuse_unsafe_output(const std::string& path, const std::string& origin,
                           const std::vector<std::string>& inputs = {});
 
-/// Refuses an unsafe output (refuse_unsafe_output), makes the folder of an output file (and its
+/// Refuses an unsafe output (refuse_unsafe_output) and a checkpoint beside it
+/// (`<path>.checkpoint`) that is not a regular file (a link planted there would have the study
+/// write through it), makes the folder of an output file (and its
 /// parents) when it is missing (with `make`; without, as `check` does, only finds that it could
 /// be made), and checks that a file can be made there by making and removing one. With `make`,
 /// also removes the temporary files that killed runs on this machine left under this name (their
@@ -56,7 +57,8 @@ std::string temporary_path_of(const std::string& path);
 
 /// Removes from `folder` the temporary files (partial_suffix) left by killed runs of this machine
 /// whose process is gone, for the output named `output_name`, or for every output when it is
-/// empty. Files of other machines, and of live processes, are left alone.
+/// empty. Files of other machines, of live processes, and any a process holds locked (HDF5
+/// locks a file it writes) are left alone.
 void remove_stale_partials(const std::string& folder, const std::string& output_name);
 
 /// Opens `path` for writing as a new regular file, never through a link: an entry already there

@@ -388,7 +388,7 @@ class Loader {
     // "medium.density_factor"): a body so named would make "<name>.<input>" ambiguous, and the
     // sensitivities of each body, which take its inputs by that prefix, wrong.
     for (const char* section :
-         {"release", "wind", "medium", "site", "study", "rules", "output", "correlation", "body"})
+         {"release", "wind", "medium", "site", "study", "rules", "output", "correlation"})
       if (name && *name == section)
         diagnostics_.add(t.key_path("name"), t.line_of("name"),
                          "\"" + *name +

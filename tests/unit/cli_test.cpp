@@ -1,7 +1,9 @@
 // The command line end to end (app/commands.cpp, the code behind the strewn binary): exit codes,
 // messages, and `trace --json` on every shipped and test scenario against an independent
 // tight-tolerance integration of the same physics (Boost.Odeint, reference_flight.hpp).
+#include <fcntl.h>
 #include <gtest/gtest.h>
+#include <sys/file.h>
 #include <sys/stat.h>
 #include <sys/wait.h>
 #include <unistd.h>
@@ -409,16 +411,39 @@ TEST(CliPaths, PlantedLinksAreNotFollowedAndOtherMachinesFilesAreLeftAlone) {
   const std::string dead = out + host_part + std::to_string(child);
   const std::string other_machine = out + ".partial-another-machine-" + std::to_string(child);
   const std::string live = out + host_part + std::to_string(::getppid());
-  for (const auto& f : {dead, other_machine, live}) std::ofstream(f) << "left";
+  // Named for a dead process of this machine, but held locked (as HDF5 locks a file it writes):
+  // another machine of the same name is writing it.
+  const std::string locked = out + host_part + std::to_string(child) + "0";
+  for (const auto& f : {dead, other_machine, live, locked}) std::ofstream(f) << "left";
+  const int lock = ::open(locked.c_str(), O_RDONLY);
+  ASSERT_EQ(::flock(lock, LOCK_EX | LOCK_NB), 0);
   r = run({"run", scenario, "-o", out, "--quiet"});
   EXPECT_EQ(r.status, 0) << r.err;
   EXPECT_FALSE(fs::exists(dead));
   EXPECT_TRUE(fs::exists(other_machine));
   EXPECT_TRUE(fs::exists(live));
+  EXPECT_TRUE(fs::exists(locked));
+  ::close(lock);
+  // Files are made as any program makes them, 0666 less the umask (a group sharing a folder
+  // shares them): the results file, and a report below (found in a read of the code: reports
+  // and checkpoints were 0644 whatever the umask).
+  const mode_t mask = ::umask(002);
+  ::umask(mask);
+  EXPECT_EQ(fs::status(out).permissions() & fs::perms::all, static_cast<fs::perms>(0666 & ~mask));
   // A report is written new as well: a link under its temporary name is not followed.
   fs::create_symlink(target, temporary_path_of((dir / "m.svg").string()));
   EXPECT_EQ(run({"report", out, "--svg", (dir / "m.svg").string()}).status, 0);
   EXPECT_EQ(test::slurp(target.string()), "keep me");
+  EXPECT_EQ(fs::status(dir / "m.svg").permissions() & fs::perms::all,
+            static_cast<fs::perms>(0666 & ~mask));
+  // A link beside a report named like a checkpoint is no business of the report's.
+  fs::create_symlink(target, (dir / "m.svg.checkpoint"));
+  EXPECT_EQ(run({"report", out, "--svg", (dir / "m.svg").string()}).status, 0);
+  // A name too long for the file system once strewn adds its temporary suffix: refused in words.
+  const std::string long_name = (dir / (std::string(240, 'n') + ".h5")).string();
+  r = run({"run", scenario, "-o", long_name, "--quiet"});
+  EXPECT_EQ(r.status, 2);
+  EXPECT_NE(r.err.find("the file's name is too long"), std::string::npos) << r.err;
   fs::remove_all(dir);
 }
 

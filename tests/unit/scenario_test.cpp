@@ -85,6 +85,16 @@ TEST(Scenario, GoodFileResolvesEveryInput) {
   EXPECT_NEAR(nominal.release.velocity.y(), 0.0, 1e-12);
 }
 
+// A body may not take a section's name, which starts the names of that section's inputs
+// ("wind.bias_east"), but "body", the name a lone body gets when it has none, is still its own
+// (found in a read of the change that first refused it).
+TEST(Scenario, BodyNamesOfSectionsAreRefusedButItsOwnDefaultIsNot) {
+  expect_problem(edit("name = \"bundle\"", "name = \"medium\""), "body[0].name", 11,
+                 "is the name of a section of the scenario");
+  const Scenario s = parse_scenario(edit("name = \"bundle\"", "name = \"body\""), "good.toml");
+  EXPECT_EQ(s.sampled_inputs[0].name, "body.mass");
+}
+
 TEST(Scenario, ReleaseErrorsMoveTheReleasePoint) {
   // Track 0 (north): along is north, crossrange (right of track) is east; a delay of 2 s at
   // 50 m/s is 100 m further along.

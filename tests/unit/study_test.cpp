@@ -1,6 +1,7 @@
 // The study engine: reproducibility for any thread count and block size, replay of a single
 // sample, the results file read back, failed flights counted, the per-sample random choices.
 #include <gtest/gtest.h>
+#include <sys/stat.h>
 
 #include <tbb/global_control.h>
 #include <algorithm>
@@ -10,6 +11,7 @@
 #include <filesystem>
 #include <fstream>
 
+#include "command_line.hpp"
 #include "core/errors.hpp"
 #include "io/checkpoint.hpp"
 #include "io/results_file.hpp"
@@ -315,12 +317,40 @@ TEST(Study, ADamagedRecordLengthIsCutOff) {
     const std::uint64_t huge = 0xffffffffffffULL;
     file.write(reinterpret_cast<const char*>(&huge), sizeof huge);
   }
-  Checkpoint back(path, id, rows.columns.input_names, rows.columns.choices, true);
-  const auto pieces = back.take_pieces();
-  ASSERT_EQ(pieces.size(), 1u);
-  EXPECT_EQ(pieces[0].first_sample, 0u);
-  EXPECT_EQ(pieces[0].rows.samples, 20u);
-  back.remove();
+  {
+    Checkpoint back(path, id, rows.columns.input_names, rows.columns.choices, true);
+    const auto pieces = back.take_pieces();
+    ASSERT_EQ(pieces.size(), 1u);
+    EXPECT_EQ(pieces[0].first_sample, 0u);
+    EXPECT_EQ(pieces[0].rows.samples, 20u);
+    // Appended after what was kept, through the descriptor it was read by: the damaged
+    // record is gone and the one written now is read back whole.
+    EXPECT_EQ(std::filesystem::file_size(path), first_record_end);
+    back.append(rows.columns, 40, 80);
+  }
+  {
+    Checkpoint again(path, id, rows.columns.input_names, rows.columns.choices, true);
+    const auto pieces = again.take_pieces();
+    ASSERT_EQ(pieces.size(), 1u);
+    EXPECT_EQ(pieces[0].rows.samples, 40u);
+  }
+  // Made as any program makes a file, 0666 less the umask, so that a group sharing the folder
+  // can resume (found in a read of the code: it was 0644 whatever the umask).
+  const mode_t mask = ::umask(002);
+  ::umask(mask);
+  EXPECT_EQ(std::filesystem::status(path).permissions() & std::filesystem::perms::all,
+            static_cast<std::filesystem::perms>(0666 & ~mask));
+  // A link put in the checkpoint's place is never read, cut or written through.
+  const std::string target = path + ".target";
+  std::ofstream(target) << "keep me";
+  std::filesystem::remove(path);
+  std::filesystem::create_symlink(target, path);
+  EXPECT_THROW(Checkpoint(path, id, rows.columns.input_names, rows.columns.choices, true), IoError);
+  EXPECT_THROW(Checkpoint(path, id, rows.columns.input_names, rows.columns.choices, false),
+               IoError);
+  EXPECT_EQ(test::slurp(target), "keep me");
+  std::filesystem::remove(path);
+  std::filesystem::remove(target);
 }
 
 TEST(Study, ResultsFileReadsBackWithEveryName) {
