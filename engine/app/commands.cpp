@@ -19,19 +19,19 @@
 #include <optional>
 #include <sstream>
 
-#include "cluster/distributed_study.hpp"
 #include "cluster/job.hpp"
+#include "cluster/rank_flights.hpp"
 #include "cluster/sweep.hpp"
 #include "core/errors.hpp"
 #include "core/version.hpp"
-#include "io/atmosphere_table.hpp"
-#include "io/footprint_report.hpp"
-#include "io/report_files.hpp"
-#include "io/results_file.hpp"
-#include "io/study_report.hpp"
-#include "io/trace_report.hpp"
+#include "report/atmosphere_table.hpp"
+#include "report/footprint_report.hpp"
+#include "report/report_files.hpp"
+#include "report/study_report.hpp"
+#include "report/trace_report.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/world.hpp"
+#include "store/results_file.hpp"
 
 namespace strewn {
 

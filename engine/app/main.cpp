@@ -4,7 +4,7 @@
 
 #include "app/commands.hpp"
 #include "cluster/job.hpp"
-#include "io/results_file.hpp"
+#include "store/results_file.hpp"
 
 namespace {
 int finish(int status) {

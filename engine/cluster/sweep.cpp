@@ -16,11 +16,11 @@
 #include <thread>
 
 #include "core/errors.hpp"
-#include "io/report_files.hpp"
-#include "io/results_file.hpp"
-#include "io/sweep_file.hpp"
+#include "report/report_files.hpp"
 #include "scenario/reader.hpp"
 #include "scenario/world.hpp"
+#include "store/results_file.hpp"
+#include "store/sweep_file.hpp"
 #include "study/sample_model.hpp"
 
 namespace strewn {

@@ -7,9 +7,9 @@
 #include <filesystem>
 
 #include "bench_study.hpp"
-#include "io/footprint_report.hpp"
-#include "io/report_files.hpp"
-#include "io/results_file.hpp"
+#include "report/footprint_report.hpp"
+#include "report/report_files.hpp"
+#include "store/results_file.hpp"
 #include "study/study.hpp"
 
 namespace strewn {

@@ -7,7 +7,7 @@
 #include <filesystem>
 
 #include "bench_study.hpp"
-#include "io/results_file.hpp"
+#include "store/results_file.hpp"
 #include "study/study.hpp"
 
 namespace strewn {

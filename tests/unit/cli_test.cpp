@@ -15,9 +15,9 @@
 
 #include "app/commands.hpp"
 #include "command_line.hpp"
-#include "io/results_file.hpp"
 #include "reference_flight.hpp"
 #include "scenario/world.hpp"
+#include "store/results_file.hpp"
 
 namespace strewn {
 namespace {

@@ -18,9 +18,9 @@
 #include "footprint/ranks.hpp"
 #include "impact_rows.hpp"
 
-#include "io/footprint_report.hpp"
-#include "io/results_file.hpp"
-#include "io/study_record.hpp"
+#include "pipeline/study_record.hpp"
+#include "report/footprint_report.hpp"
+#include "store/results_file.hpp"
 #include "study/study.hpp"
 
 namespace strewn {

@@ -16,7 +16,7 @@
 
 #include "app/commands.hpp"
 #include "command_line.hpp"
-#include "io/report_files.hpp"
+#include "report/report_files.hpp"
 
 namespace strewn {
 namespace {

@@ -13,7 +13,7 @@
 
 #include "app/commands.hpp"
 #include "command_line.hpp"
-#include "io/results_file.hpp"
+#include "store/results_file.hpp"
 
 namespace strewn {
 namespace {

@@ -13,8 +13,8 @@
 
 #include "command_line.hpp"
 #include "core/errors.hpp"
-#include "io/checkpoint.hpp"
-#include "io/results_file.hpp"
+#include "store/checkpoint.hpp"
+#include "store/results_file.hpp"
 #include "study/study.hpp"
 
 namespace strewn {

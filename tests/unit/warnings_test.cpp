@@ -7,7 +7,7 @@
 #include <nlohmann/json.hpp>
 
 #include "command_line.hpp"
-#include "io/results_file.hpp"
+#include "store/results_file.hpp"
 
 namespace strewn {
 namespace {

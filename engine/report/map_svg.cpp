@@ -1,0 +1,523 @@
+// The footprint map (SVG). Our own design: a square map panel in the site's east/north frame with
+// north up, latitude and longitude (or metre) ticks on its frame, and a column beside it for the
+// north arrow, the scale bar and the legend, so that nothing is drawn over the map but the map.
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <map>
+#include <numbers>
+#include <sstream>
+
+#include "core/text.hpp"
+#include "report/footprint_report.hpp"
+#include "report/report_files.hpp"
+#include "report/site_frame.hpp"
+
+namespace strewn {
+
+namespace {
+
+constexpr double kPanel = 640.0;                 // map panel side, px
+constexpr double kLeft = 92.0, kTop = 64.0;      // room for the latitude labels and the title
+constexpr double kSide = kLeft + kPanel + 28.0;  // the column of the legend
+constexpr double kWidth = 1000.0, kHeight = 790.0;
+
+// Line colours per containment level (our palette: slate, sage, rust, plum, then repeats).
+const char* level_colour(std::size_t k) {
+  static const char* colours[] = {"#3d5a80", "#4f8a5b", "#c0622b", "#7a2e5c", "#2f6f73", "#8a6d1f"};
+  return colours[k % 6];
+}
+constexpr const char* kInk = "#1f2933";
+constexpr const char* kZone = "#111111";
+
+// Density shading, on log10 scale: greys from near white to slate, so that no shade is mistaken
+// for a level's line colour and every line (over its white halo) reads on every shade.
+std::string density_colour(double t) {  // t in [0, 1], 1 the densest
+  static const double stops[4][3] = {
+      {236, 236, 230}, {196, 199, 197}, {140, 146, 150}, {74, 81, 90}};
+  t = std::clamp(t, 0.0, 1.0) * 3.0;
+  const int i = std::min(2, static_cast<int>(t));
+  const double f = t - i;
+  char text[8];
+  std::snprintf(text, sizeof text, "#%02x%02x%02x",
+                static_cast<int>(std::lround(stops[i][0] + f * (stops[i + 1][0] - stops[i][0]))),
+                static_cast<int>(std::lround(stops[i][1] + f * (stops[i + 1][1] - stops[i][1]))),
+                static_cast<int>(std::lround(stops[i][2] + f * (stops[i + 1][2] - stops[i][2]))));
+  return text;
+}
+
+std::string fmt(double v) {
+  return printf_text("%.1f", v);
+}
+
+std::string length_label(double metres) {
+  return metres >= 1000.0 ? printf_text("%g km", metres / 1000.0) : printf_text("%g m", metres);
+}
+
+// A round length (1, 2 or 5 times a power of ten) at most `about`.
+double round_length(double about) {
+  const double power = std::pow(10.0, std::floor(std::log10(about)));
+  for (double m : {5.0, 2.0, 1.0})
+    if (m * power <= about) return m * power;
+  return power;
+}
+
+struct View {
+  double centre_e, centre_n, half;  // m
+  [[nodiscard]] double scale() const { return kPanel / (2.0 * half); }
+  [[nodiscard]] double x(double e) const { return kLeft + (e - (centre_e - half)) * scale(); }
+  [[nodiscard]] double y(double n) const { return kTop + ((centre_n + half) - n) * scale(); }
+  [[nodiscard]] double west() const { return centre_e - half; }
+  [[nodiscard]] double east() const { return centre_e + half; }
+  [[nodiscard]] double south() const { return centre_n - half; }
+  [[nodiscard]] double north() const { return centre_n + half; }
+};
+
+std::string path_of(const View& v, const std::vector<PlanePoint>& ring) {
+  std::string d;
+  for (std::size_t k = 0; k < ring.size(); ++k) {
+    d += k ? 'L' : 'M';
+    d += fmt(v.x(ring[k].east));
+    d += ' ';
+    d += fmt(v.y(ring[k].north));
+    d += ' ';
+  }
+  d += 'Z';
+  return d;
+}
+
+// Text with a white halo (drawn under its letters), readable on any shading.
+void label(std::ostream& s, double x, double y, const std::string& text, const char* colour,
+           const char* anchor = "start", double size = 12.0, bool bold = false) {
+  s << "<text x=\"" << fmt(x) << "\" y=\"" << fmt(y) << "\" font-size=\"" << size
+    << (bold ? "\" font-weight=\"bold" : "") << "\" text-anchor=\"" << anchor << "\" fill=\""
+    << colour
+    << "\" stroke=\"#ffffff\" stroke-width=\"3.5\" stroke-linejoin=\"round\" "
+       "paint-order=\"stroke\">"
+    << escape_markup(text) << "</text>\n";
+}
+
+// A line drawn twice: a white halo under it, then the line, so that it reads on dark shading.
+std::string haloed(const std::string& shape, const std::string& attributes, const char* colour,
+                   double width, const char* dash = "") {
+  std::string dashing = dash[0] ? std::string(" stroke-dasharray=\"") + dash + "\"" : "";
+  return "<" + shape + " " + attributes +
+         " fill=\"none\" stroke=\"#ffffff\" stroke-opacity=\"0.85\"" + " stroke-width=\"" +
+         fmt(width + 2.6) + "\"" + dashing + "/>\n<" + shape + " " + attributes +
+         " fill=\"none\" stroke=\"" + colour + "\" stroke-width=\"" + fmt(width) + "\"" + dashing +
+         "/>\n";
+}
+
+// The rules that hold a zone about this group's centre: the group's own, or with one body, those
+// of "all" (the same rows).
+std::vector<const RuleCheck*> zone_rules(const Footprint& f, const GroupFootprint& g) {
+  std::vector<const RuleCheck*> out;
+  const bool single = f.groups.size() == 2;
+  for (const auto& k : f.rules)
+    if (k.rule == "zone_radius" && (k.group == g.name || (single && k.group == "all")))
+      out.push_back(&k);
+  return out;
+}
+
+class MapWriter {
+ public:
+  MapWriter(const StudyRecord& r, const GroupFootprint& g)
+      : r_(r), f_(r.footprint), g_(g), site_(r) {
+    view_ = fit();
+  }
+
+  std::string write() {
+    header();
+    if (std::isfinite(g_.centre.east) || std::isfinite(r_.release.east)) {
+      panel();
+      legend();
+    }
+    s_ << "<text x=\"" << kLeft << "\" y=\"" << kHeight - 14
+       << "\" font-size=\"11\" fill=\"#52606d\">Engineering estimate from the inputs given. "
+          "Exclusion zones are set by the responsible authority under local rules.</text>\n";
+    s_ << "</svg>\n";
+    return s_.str();
+  }
+
+ private:
+  // The view: centred on the centre, wide enough for every determined figure, every rule's zone,
+  // every impact cell (none is cut at the frame) and the release point.
+  View fit() const {
+    PlanePoint c = g_.centre;
+    if (!std::isfinite(c.east)) c = r_.release;
+    double half = 10.0;
+    auto reach = [&](double e, double n, double extra = 0.0) {
+      if (std::isfinite(e) && std::isfinite(n) && std::isfinite(extra))
+        half = std::max(half, std::max(std::abs(e - c.east), std::abs(n - c.north)) + extra);
+    };
+    for (const auto& k : g_.containment) {
+      reach(g_.centre.east, g_.centre.north, k.radius);
+      if (k.radius_upper) reach(g_.centre.east, g_.centre.north, *k.radius_upper);
+    }
+    for (const auto& p : g_.polygons)
+      for (const auto& q : p.ring) reach(q.east, q.north);
+    for (const RuleCheck* k : zone_rules(f_, g_))
+      reach(g_.centre.east, g_.centre.north, k->threshold);
+    const ImpactGrid& grid = g_.grid;
+    for (std::size_t k = 0; k < grid.count.size(); ++k) {
+      reach(static_cast<double>(grid.east_index[k]) * grid.cell,
+            static_cast<double>(grid.north_index[k]) * grid.cell);
+      reach(static_cast<double>(grid.east_index[k] + 1) * grid.cell,
+            static_cast<double>(grid.north_index[k] + 1) * grid.cell);
+    }
+    reach(r_.release.east, r_.release.north);
+    return View{c.east, c.north, half * 1.06};
+  }
+
+  void header() {
+    s_ << "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n";
+    s_ << "<svg xmlns=\"http://www.w3.org/2000/svg\" class=\"map\" id=\""
+       << (g_.name == "all" ? std::string("map") : "map-" + clip_id()) << "\" data-group=\""
+       << escape_markup(g_.name) << "\" viewBox=\"0 0 " << kWidth << " " << kHeight << "\" width=\""
+       << kWidth << "\" height=\"" << kHeight
+       << "\" font-family=\"Helvetica, Arial, sans-serif\" role=\"img\" aria-label=\"footprint map "
+          "of "
+       << escape_markup(group_title()) << "\">\n";
+    s_ << "<rect width=\"100%\" height=\"100%\" fill=\"#ffffff\"/>\n";
+    s_ << "<text x=\"" << kLeft << "\" y=\"26\" font-size=\"18\" font-weight=\"bold\" fill=\""
+       << kInk << "\">"
+       << escape_markup((r_.title.empty() ? std::string("strewn footprint") : r_.title) +
+                        (r_.case_label.empty() ? "" : ", " + r_.case_label))
+       << "</text>\n";
+    s_ << "<text x=\"" << kLeft << "\" y=\"46\" font-size=\"13\" fill=\"#52606d\">"
+       << escape_markup(group_title() + "; " + std::to_string(r_.samples) + " samples, " +
+                        std::to_string(g_.failed) + " failed flights; bounds at " +
+                        printf_text("%g", 100.0 * f_.confidence) + "% confidence; north up")
+       << "</text>\n";
+  }
+
+  [[nodiscard]] std::string group_title() const {
+    if (g_.name != "all") return "body " + g_.name;
+    if (f_.groups.size() == 2) return "body " + f_.groups[0].name;
+    return printf_text("all bodies, one release (%g objects)", g_.objects_per_release);
+  }
+
+  void panel() {
+    s_ << "<defs><clipPath id=\"panel-" << clip_id() << "\"><rect x=\"" << kLeft << "\" y=\""
+       << kTop << "\" width=\"" << kPanel << "\" height=\"" << kPanel << "\"/></clipPath>\n"
+       << "<marker id=\"arrow-" << clip_id()
+       << "\" viewBox=\"0 0 10 10\" refX=\"9\" refY=\"5\" markerWidth=\"7\" "
+          "markerHeight=\"7\" orient=\"auto-start-reverse\"><path d=\"M0 0 L10 5 L0 10 z\" "
+          "fill=\""
+       << kInk << "\"/></marker></defs>\n";
+    s_ << "<rect x=\"" << kLeft << "\" y=\"" << kTop << "\" width=\"" << kPanel << "\" height=\""
+       << kPanel << "\" fill=\"#f7f7f2\"/>\n";
+    s_ << "<g clip-path=\"url(#panel-" << clip_id() << ")\">\n";
+    density();
+    grid_lines();
+    figures();
+    zones();
+    markers();
+    s_ << "</g>\n";
+    s_ << "<rect x=\"" << kLeft << "\" y=\"" << kTop << "\" width=\"" << kPanel << "\" height=\""
+       << kPanel << "\" fill=\"none\" stroke=\"#9aa5b1\"/>\n";
+    ticks();
+  }
+
+  // An id for this map's clip path and marker, distinct per group on one page.
+  [[nodiscard]] std::string clip_id() const {
+    std::string id;
+    for (unsigned char ch : g_.name) id += printf_text("%02x", ch);
+    return id;
+  }
+
+  // Density shading of the group, aggregated to display cells of at most 1/160 of the view.
+  void density() {
+    const ImpactGrid& g = g_.grid;
+    const double cell = std::max(g.cell, 2.0 * view_.half / 160.0);
+    std::map<std::pair<std::int64_t, std::int64_t>, double> shown;  // objects per release
+    for (std::size_t k = 0; k < g.count.size(); ++k) {
+      const double e = (static_cast<double>(g.east_index[k]) + 0.5) * g.cell;
+      const double n = (static_cast<double>(g.north_index[k]) + 0.5) * g.cell;
+      shown[{static_cast<std::int64_t>(std::floor(e / cell)),
+             static_cast<std::int64_t>(std::floor(n / cell))}] += g.density[k] * g.cell * g.cell;
+    }
+    for (const auto& [key, objects] : shown) peak_ = std::max(peak_, objects / (cell * cell));
+    low_ = peak_ * 1e-4;
+    s_ << "<g class=\"density\" shape-rendering=\"crispEdges\">\n";
+    for (const auto& [key, objects] : shown) {
+      const double density = objects / (cell * cell);
+      const double t = std::log10(std::max(density, low_) / low_) / 4.0;
+      const double e0 = static_cast<double>(key.first) * cell;
+      const double n1 = static_cast<double>(key.second + 1) * cell;
+      s_ << "<rect x=\"" << fmt(view_.x(e0)) << "\" y=\"" << fmt(view_.y(n1)) << "\" width=\""
+         << fmt(cell * view_.scale() + 0.3) << "\" height=\"" << fmt(cell * view_.scale() + 0.3)
+         << "\" fill=\"" << density_colour(t) << "\"/>\n";
+    }
+    s_ << "</g>\n";
+  }
+
+  // Containment circles labelled with their level (the upper bound dashed over a white halo,
+  // the estimate thin beneath it) and hazard polygons (solid). The Gaussian ellipses are left to
+  // the tables and the GeoJSON: sixteen curves over four levels would hide the footprint.
+  void figures() {
+    const GroupFootprint& g = g_;
+    const double cx = view_.x(g.centre.east), cy = view_.y(g.centre.north);
+    for (std::size_t k = 0; k < g.containment.size(); ++k) {
+      const auto& ct = g.containment[k];
+      const bool bounded = ct.radius_upper && std::isfinite(*ct.radius_upper);
+      if (std::isfinite(ct.radius) && std::isfinite(cx))
+        s_ << "<circle class=\"containment\" cx=\"" << fmt(cx) << "\" cy=\"" << fmt(cy) << "\" r=\""
+           << fmt(ct.radius * view_.scale()) << "\" fill=\"none\" stroke=\"" << level_colour(k)
+           << "\" stroke-width=\"" << (bounded ? "0.8" : "1.4") << "\" stroke-opacity=\""
+           << (bounded ? "0.55" : "1") << "\"/>\n";
+      if (bounded && std::isfinite(cx))
+        s_ << haloed("circle",
+                     "class=\"containment-bound\" cx=\"" + fmt(cx) + "\" cy=\"" + fmt(cy) +
+                         "\" r=\"" + fmt(*ct.radius_upper * view_.scale()) + "\"",
+                     level_colour(k), 1.6, "8 4");
+      // The level beside its outer circle (the bound, or the estimate while the bound needs more
+      // samples), on a ray that differs per level so that the labels do not stack.
+      const double outer = bounded ? *ct.radius_upper : ct.radius;
+      if (std::isfinite(outer) && std::isfinite(cx)) {
+        const double radius = outer * view_.scale();
+        const double angle = (30.0 + 14.0 * static_cast<double>(k)) * std::numbers::pi / 180.0;
+        label(s_, cx + radius * std::cos(angle) + 4.0, cy - radius * std::sin(angle) - 3.0,
+              printf_text("%g %%", 100.0 * ct.level), level_colour(k), "start", 13.0, true);
+      }
+    }
+    for (std::size_t k = 0; k < g.polygons.size(); ++k) {
+      const auto& p = g.polygons[k];
+      if (!p.determined || p.ring.size() < 3) continue;
+      s_ << "<path class=\"hazard-polygon\" d=\"" << path_of(view_, p.ring) << "\" fill=\""
+         << level_colour(k)
+         << "\" fill-opacity=\"0.06\" stroke=\"#ffffff\" stroke-opacity=\"0.85\" "
+         << "stroke-width=\"4.6\" stroke-linejoin=\"round\"/>\n"
+         << "<path class=\"hazard-polygon\" d=\"" << path_of(view_, p.ring)
+         << "\" fill=\"none\" stroke=\"" << level_colour(k)
+         << "\" stroke-width=\"2.2\" stroke-linejoin=\"round\"/>\n";
+    }
+  }
+
+  // Each rule's zone: the planned radius about its centre, labelled with the radius and where
+  // the figures stand against it.
+  void zones() {
+    const double cx = view_.x(g_.centre.east), cy = view_.y(g_.centre.north);
+    if (!std::isfinite(cx)) return;
+    for (const RuleCheck* k : zone_rules(f_, g_)) {
+      const double radius = k->threshold * view_.scale();
+      s_ << haloed("circle",
+                   "class=\"rule-zone\" cx=\"" + fmt(cx) + "\" cy=\"" + fmt(cy) + "\" r=\"" +
+                       fmt(radius) + "\"",
+                   kZone, 2.4, "14 4 2 4");
+      // Inside the circle, under its top: above it, the label could leave the panel.
+      label(s_, cx, radius > 40.0 ? cy - radius + 18.0 : cy - radius - 6.0,
+            "zone " + length_label(k->threshold) + ": " + to_string(k->status) +
+                printf_text(" (accepted outside %g)", k->accepted),
+            kZone, "middle", 13.0, true);
+    }
+  }
+
+  // Centre and mean impact; release point and track drawn last, on top, and half transparent,
+  // so that a release point on the centre hides neither.
+  void markers() {
+    const double cx = view_.x(g_.centre.east), cy = view_.y(g_.centre.north);
+    if (std::isfinite(cx) && std::isfinite(cy))
+      s_ << "<path class=\"centre\" d=\"M" << fmt(cx - 7) << " " << fmt(cy) << " H" << fmt(cx + 7)
+         << " M" << fmt(cx) << " " << fmt(cy - 7) << " V" << fmt(cy + 7)
+         << "\" stroke=\"#ffffff\" stroke-width=\"4.5\"/><path class=\"centre\" d=\"M"
+         << fmt(cx - 7) << " " << fmt(cy) << " H" << fmt(cx + 7) << " M" << fmt(cx) << " "
+         << fmt(cy - 7) << " V" << fmt(cy + 7) << "\" stroke=\"" << kInk
+         << "\" stroke-width=\"2\"/>\n";
+    const double mx = view_.x(g_.mean.east), my = view_.y(g_.mean.north);
+    if (std::isfinite(mx) && std::isfinite(my))
+      s_ << "<circle class=\"mean-impact\" cx=\"" << fmt(mx) << "\" cy=\"" << fmt(my)
+         << "\" r=\"3\" fill=\"" << kInk << "\" stroke=\"#ffffff\" stroke-width=\"1\"/>\n";
+    const double x = view_.x(r_.release.east), y = view_.y(r_.release.north);
+    const double t = r_.release_track * std::numbers::pi / 180.0;
+    const double length = 0.14 * kPanel;
+    s_ << "<line class=\"release-track\" x1=\"" << fmt(x) << "\" y1=\"" << fmt(y) << "\" x2=\""
+       << fmt(x + length * std::sin(t)) << "\" y2=\"" << fmt(y - length * std::cos(t))
+       << "\" stroke=\"" << kInk << "\" stroke-width=\"1.6\" marker-end=\"url(#arrow-" << clip_id()
+       << ")\"/>\n";
+    s_ << "<path class=\"release-point\" d=\"M" << fmt(x) << " " << fmt(y - 10) << " L"
+       << fmt(x + 9) << " " << fmt(y + 6) << " L" << fmt(x - 9) << " " << fmt(y + 6)
+       << " Z\" fill=\"#ffffff\" fill-opacity=\"0.55\" stroke=\"" << kInk
+       << "\" stroke-width=\"1.8\"/>\n";
+  }
+
+  // Graticule: the positions (m, along the panel's east or north axis) of round latitudes or
+  // longitudes, or without coordinates of round eastings and northings, with their labels.
+  struct Tick {
+    double at;  // m
+    std::string text;
+  };
+  [[nodiscard]] std::vector<Tick> ticks_along(bool east_axis) const {
+    std::vector<Tick> out;
+    const double from = east_axis ? view_.west() : view_.south();
+    const double to = east_axis ? view_.east() : view_.north();
+    if (!site_.geographic()) {
+      const double step = round_length((to - from) / 4.0);
+      for (double v = std::ceil(from / step) * step; v <= to; v += step) {
+        const char* side = east_axis ? (v < 0 ? "W" : "E") : (v < 0 ? "S" : "N");
+        out.push_back({v, v == 0.0 ? "0" : length_label(std::abs(v)) + " " + side});
+      }
+      return out;
+    }
+    // Degrees at the panel's two ends, along its middle line.
+    const auto a = site_.locate(east_axis ? PlanePoint{from, view_.centre_n}
+                                          : PlanePoint{view_.centre_e, from});
+    const auto b =
+        site_.locate(east_axis ? PlanePoint{to, view_.centre_n} : PlanePoint{view_.centre_e, to});
+    if (!a || !b) return out;
+    const double d0 = east_axis ? a->longitude : a->latitude;
+    const double d1 = east_axis ? b->longitude : b->latitude;
+    // A round step giving at most five ticks whose labels (about 6.5 px a character at 11 px)
+    // do not run into each other.
+    double step = round_length(std::abs(d1 - d0) / 4.0);
+    int places = 0;
+    for (int tries = 0; tries < 8; ++tries) {
+      places = std::max(0, static_cast<int>(std::ceil(-std::log10(step) - 1e-9)));
+      const double width = 6.5 * (static_cast<double>(places) + 6.0);
+      const double spacing = step / std::abs(d1 - d0) * kPanel;
+      if (spacing >= width + 14.0) break;
+      step = round_length(step * 2.5) == step ? step * 2.0 : round_length(step * 2.5);
+    }
+    for (double v = std::ceil(std::min(d0, d1) / step) * step; v <= std::max(d0, d1) + 1e-12;
+         v += step) {
+      const GeoPoint at = east_axis ? GeoPoint{a->latitude, v} : GeoPoint{v, a->longitude};
+      const PlanePoint local = site_.local(at);
+      const char* side = east_axis ? (v < 0 ? "W" : "E") : (v < 0 ? "S" : "N");
+      out.push_back({east_axis ? local.east : local.north,
+                     printf_text("%.*f\u00b0%s", places, std::abs(v), side)});
+    }
+    return out;
+  }
+
+  void grid_lines() {
+    s_ << "<g class=\"graticule\" stroke=\"#52606d\" stroke-opacity=\"0.18\" stroke-width=\"1\">\n";
+    for (const Tick& t : ticks_along(true))
+      s_ << "<line x1=\"" << fmt(view_.x(t.at)) << "\" y1=\"" << kTop << "\" x2=\""
+         << fmt(view_.x(t.at)) << "\" y2=\"" << kTop + kPanel << "\"/>\n";
+    for (const Tick& t : ticks_along(false))
+      s_ << "<line x1=\"" << kLeft << "\" y1=\"" << fmt(view_.y(t.at)) << "\" x2=\""
+         << kLeft + kPanel << "\" y2=\"" << fmt(view_.y(t.at)) << "\"/>\n";
+    s_ << "</g>\n";
+  }
+
+  void ticks() {
+    s_ << "<g class=\"ticks\" font-size=\"11\" fill=\"#52606d\">\n";
+    for (const Tick& t : ticks_along(true)) {
+      const double x = view_.x(t.at);
+      s_ << "<line x1=\"" << fmt(x) << "\" y1=\"" << kTop + kPanel << "\" x2=\"" << fmt(x)
+         << "\" y2=\"" << kTop + kPanel + 6 << "\" stroke=\"#52606d\"/><line x1=\"" << fmt(x)
+         << "\" y1=\"" << kTop << "\" x2=\"" << fmt(x) << "\" y2=\"" << kTop - 6
+         << "\" stroke=\"#52606d\"/><text x=\"" << fmt(x) << "\" y=\"" << kTop + kPanel + 19
+         << "\" text-anchor=\"middle\">" << escape_markup(t.text) << "</text>\n";
+    }
+    for (const Tick& t : ticks_along(false)) {
+      const double y = view_.y(t.at);
+      s_ << "<line x1=\"" << kLeft - 6 << "\" y1=\"" << fmt(y) << "\" x2=\"" << kLeft << "\" y2=\""
+         << fmt(y) << "\" stroke=\"#52606d\"/><line x1=\"" << kLeft + kPanel << "\" y1=\"" << fmt(y)
+         << "\" x2=\"" << kLeft + kPanel + 6 << "\" y2=\"" << fmt(y)
+         << "\" stroke=\"#52606d\"/><text x=\"" << kLeft - 9 << "\" y=\"" << fmt(y + 4)
+         << "\" text-anchor=\"end\">" << escape_markup(t.text) << "</text>\n";
+    }
+    s_ << "</g>\n";
+  }
+
+  // North arrow, scale bar and legend, beside the panel.
+  void legend() {
+    const double x = kSide;
+    double y = kTop + 6;
+    s_ << "<g class=\"north-arrow\"><path d=\"M" << x + 10 << " " << y << " L" << x + 18 << " "
+       << y + 26 << " L" << x + 10 << " " << y + 20 << " L" << x + 2 << " " << y + 26
+       << " Z\" fill=\"" << kInk << "\"/><text x=\"" << x + 26 << "\" y=\"" << y + 20
+       << "\" font-size=\"13\" fill=\"" << kInk << "\">N (true north up)</text></g>\n";
+    y += 48;
+    const double metres = round_length(0.22 * 2.0 * view_.half);
+    const double px = metres * view_.scale();
+    s_ << "<g class=\"scale-bar\"><path d=\"M" << x << " " << y - 6 << " V" << y << " H"
+       << fmt(x + px) << " V" << y - 6 << "\" fill=\"none\" stroke=\"" << kInk
+       << "\" stroke-width=\"2\"/><text x=\"" << fmt(x + px / 2) << "\" y=\"" << y - 9
+       << "\" font-size=\"12\" text-anchor=\"middle\" fill=\"" << kInk << "\">"
+       << length_label(metres) << "</text></g>\n";
+    y += 34;
+    s_ << "<g class=\"legend\" font-size=\"12\" fill=\"" << kInk << "\">\n";
+    s_ << "<text x=\"" << x << "\" y=\"" << y << "\" font-weight=\"bold\">"
+       << escape_markup(g_.name == "all" && f_.groups.size() > 2 ? "All bodies" : group_title())
+       << "</text>\n";
+    y += 20;
+    for (std::size_t k = 0; k < g_.containment.size(); ++k) {
+      s_ << "<rect x=\"" << x << "\" y=\"" << y - 10 << "\" width=\"22\" height=\"12\" fill=\""
+         << level_colour(k) << "\"/><text x=\"" << x + 30 << "\" y=\"" << y << "\">level "
+         << printf_text("%g %%", 100.0 * g_.containment[k].level) << "</text>\n";
+      y += 18;
+    }
+    y += 6;
+    auto line_entry = [&](const char* dash, double width, const char* colour,
+                          const std::string& text) {
+      s_ << "<line x1=\"" << x << "\" y1=\"" << y - 4 << "\" x2=\"" << x + 22 << "\" y2=\"" << y - 4
+         << "\" stroke=\"" << colour << "\" stroke-width=\"" << width << "\""
+         << (dash[0] ? std::string(" stroke-dasharray=\"") + dash + "\"" : std::string())
+         << "/><text x=\"" << x + 30 << "\" y=\"" << y << "\">" << escape_markup(text)
+         << "</text>\n";
+      y += 18;
+    };
+    line_entry("", 2.2, kInk, "hazard polygon (counted)");
+    line_entry("", 1.0, kInk, "containment radius");
+    line_entry("8 4", 1.6, kInk, "its upper confidence bound");
+    if (!zone_rules(f_, g_).empty()) line_entry("14 4 2 4", 2.4, kZone, "zone of a rule ([rules])");
+    s_ << "<path d=\"M" << x + 11 << " " << y - 12 << " L" << x + 18 << " " << y + 1 << " L"
+       << x + 4 << " " << y + 1 << " Z\" fill=\"#ffffff\" stroke=\"" << kInk << "\"/><text x=\""
+       << x + 30 << "\" y=\"" << y << "\">release point, track</text>\n";
+    y += 18;
+    s_ << "<path d=\"M" << x + 4 << " " << y - 4 << " H" << x + 18 << " M" << x + 11 << " "
+       << y - 11 << " V" << y + 3 << "\" stroke=\"" << kInk << "\" stroke-width=\"2\"/><text x=\""
+       << x + 30 << "\" y=\"" << y << "\">centre (" << escape_markup(f_.centre) << ")</text>\n";
+    y += 18;
+    s_ << "<circle cx=\"" << x + 11 << "\" cy=\"" << y - 4 << "\" r=\"3\" fill=\"" << kInk
+       << "\"/><text x=\"" << x + 30 << "\" y=\"" << y << "\">mean impact</text>\n";
+    y += 30;
+    s_ << "<text x=\"" << x << "\" y=\"" << y << "\" font-weight=\"bold\">Impact density</text>\n";
+    y += 8;
+    for (int k = 0; k < 40; ++k)
+      s_ << "<rect x=\"" << x + k * 4.5 << "\" y=\"" << y
+         << "\" width=\"4.6\" height=\"14\" fill=\"" << density_colour(k / 39.0) << "\"/>\n";
+    s_ << "<text x=\"" << x << "\" y=\"" << y + 28 << "\" font-size=\"11\">"
+       << printf_text("%.1e", low_) << "</text><text x=\"" << x + 180 << "\" y=\"" << y + 28
+       << "\" font-size=\"11\" text-anchor=\"end\">" << printf_text("%.1e", peak_) << "</text>\n";
+    s_ << "<text x=\"" << x << "\" y=\"" << y + 44
+       << "\" font-size=\"11\">objects per m\u00b2 per release (log scale)</text>\n";
+    s_ << "</g>\n";
+  }
+
+  const StudyRecord& r_;
+  const Footprint& f_;
+  const GroupFootprint& g_;
+  const SiteFrame site_;
+  View view_{};
+  double peak_ = 0.0, low_ = 0.0;
+  std::ostringstream s_;
+};
+
+const GroupFootprint* group_named(const Footprint& f, const std::string& name) {
+  for (const auto& g : f.groups)
+    if (g.name == name) return &g;
+  return nullptr;
+}
+
+}  // namespace
+
+std::string map_svg(const StudyRecord& r, const std::string& group) {
+  const GroupFootprint* g = group_named(r.footprint, group);
+  if (!g && !r.footprint.groups.empty()) g = &r.footprint.groups.back();
+  if (!g) {
+    GroupFootprint empty;
+    empty.name = "all";
+    empty.centre = {std::nan(""), std::nan("")};
+    return MapWriter(r, empty).write();
+  }
+  return MapWriter(r, *g).write();
+}
+
+std::string map_svg(const StudyRecord& r) {
+  return map_svg(r, "all");
+}
+
+}  // namespace strewn

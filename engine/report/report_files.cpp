@@ -1,0 +1,322 @@
+#include "report/report_files.hpp"
+
+#include <fcntl.h>
+#include <unistd.h>
+
+#include <GeographicLib/LocalCartesian.hpp>
+#include <cerrno>
+#include <cmath>
+#include <cstdio>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <numbers>
+
+#include "core/errors.hpp"
+#include "core/text.hpp"
+#include "report/cautions.hpp"
+#include "report/footprint_report.hpp"
+#include "store/results_file.hpp"
+
+namespace strewn {
+
+std::string escape_markup(const std::string& text) {
+  std::string out;
+  out.reserve(text.size());
+  for (char c : text) {
+    switch (c) {
+      case '&':
+        out += "&amp;";
+        break;
+      case '<':
+        out += "&lt;";
+        break;
+      case '>':
+        out += "&gt;";
+        break;
+      case '"':
+        out += "&quot;";
+        break;
+      case '\'':
+        out += "&#39;";
+        break;
+      default:
+        // XML 1.0 admits no C0 control character but tab, line feed and carriage return: any
+        // other would make the map a parse error, so it is shown as the replacement character.
+        if ((static_cast<unsigned char>(c) < 0x20 && c != '\t' && c != '\n' && c != '\r'))
+          out += "\xEF\xBF\xBD";
+        else
+          out += c;
+    }
+  }
+  return out;
+}
+
+void write_report_file(const std::string& path, const std::string& text,
+                       const std::vector<std::string>& reads) {
+  namespace fs = std::filesystem;
+  refuse_unsafe_output(path, "", reads);
+  const fs::path final_path(path);
+  // A missing folder is made, as for a study's results file.
+  if (const fs::path folder = final_path.parent_path(); !folder.empty()) {
+    std::error_code ec;
+    fs::create_directories(folder, ec);
+  }
+  const std::string temporary = temporary_path_of(path);
+  {
+    const int fd = create_new_file(temporary);
+    if (fd < 0) throw IoError(path + ": cannot write the file (" + std::strerror(errno) + ")");
+    std::size_t written = 0;
+    while (written < text.size()) {
+      const ssize_t n = ::write(fd, text.data() + written, text.size() - written);
+      if (n < 0 && errno == EINTR) continue;
+      if (n <= 0) break;
+      written += static_cast<std::size_t>(n);
+    }
+    const bool complete = written == text.size();
+    const int saved = errno;
+    if (::close(fd) != 0 || !complete) {
+      std::error_code ignored;
+      fs::remove(temporary, ignored);
+      throw IoError(path + ": writing failed (" +
+                    (complete ? std::string("cannot close the file") : std::strerror(saved)) + ")");
+    }
+  }
+  std::error_code error;
+  fs::rename(temporary, final_path, error);
+  if (error) {
+    std::error_code ignored;
+    fs::remove(temporary, ignored);
+    throw IoError(path + ": cannot put the file in place (" + error.message() + ")");
+  }
+}
+
+namespace {
+
+constexpr int kCircleVertices = 128;
+
+// A closed counter-clockwise ring approximating a circle (east/north, m).
+std::vector<PlanePoint> circle_ring(PlanePoint c, double r) {
+  std::vector<PlanePoint> ring;
+  for (int k = 0; k < kCircleVertices; ++k) {
+    const double t = 2.0 * std::numbers::pi * k / kCircleVertices;
+    ring.push_back({c.east + r * std::cos(t), c.north + r * std::sin(t)});
+  }
+  return ring;
+}
+
+// A counter-clockwise ring for an ellipse with its major axis along `bearing` (degrees from north).
+std::vector<PlanePoint> ellipse_ring(PlanePoint c, double a, double b, double bearing) {
+  const double beta = bearing * std::numbers::pi / 180.0;
+  const double ue = std::sin(beta), un = std::cos(beta);  // major axis
+  const double we = -un, wn = ue;                         // rotated a quarter turn anticlockwise
+  std::vector<PlanePoint> ring;
+  for (int k = 0; k < kCircleVertices; ++k) {
+    const double t = 2.0 * std::numbers::pi * k / kCircleVertices;
+    const double x = a * std::cos(t), y = b * std::sin(t);
+    ring.push_back({c.east + x * ue + y * we, c.north + x * un + y * wn});
+  }
+  return ring;
+}
+
+struct GeoFrame {
+  GeographicLib::LocalCartesian frame;
+  nlohmann::json point(PlanePoint p) const {
+    double lat = 0.0, lon = 0.0, h = 0.0;
+    frame.Reverse(p.east, p.north, 0.0, lat, lon, h);
+    // 1e-7 degrees is about a centimetre: enough, and RFC 7946 (11.2) advises no more.
+    return {std::round(lon * 1e7) / 1e7, std::round(lat * 1e7) / 1e7};
+  }
+  nlohmann::json ring(const std::vector<PlanePoint>& ccw) const {
+    nlohmann::json r = nlohmann::json::array();
+    for (const auto& p : ccw) r.push_back(point(p));
+    r.push_back(point(ccw.front()));  // closed
+    return r;
+  }
+};
+
+nlohmann::json feature(nlohmann::json geometry, nlohmann::json properties) {
+  return {{"type", "Feature"},
+          {"geometry", std::move(geometry)},
+          {"properties", std::move(properties)}};
+}
+
+}  // namespace
+
+std::string geojson_text(const StudyRecord& r, const StudyColumns* impacts) {
+  if (!r.latitude || !r.longitude)
+    throw UsageError(
+        "GeoJSON needs the site's coordinates: the scenario gives no site.latitude and "
+        "site.longitude (the local east/north figures are in the JSON, CSV and SVG outputs)");
+  const GeoFrame geo{GeographicLib::LocalCartesian(*r.latitude, *r.longitude, r.ground)};
+  nlohmann::json features = nlohmann::json::array();
+  for (const auto& g : r.footprint.groups) {
+    for (const auto& p : g.polygons)
+      if (p.determined && p.ring.size() >= 3)
+        features.push_back(feature({{"type", "Polygon"}, {"coordinates", {geo.ring(p.ring)}}},
+                                   {{"group", g.name},
+                                    {"kind", "hazard_polygon"},
+                                    {"level", p.level},
+                                    {"coverage", p.coverage},
+                                    {"area_m2", p.area}}));
+    for (const auto& c : g.containment) {
+      if (std::isfinite(c.radius) && c.radius > 0.0)
+        features.push_back(feature(
+            {{"type", "Polygon"}, {"coordinates", {geo.ring(circle_ring(g.centre, c.radius))}}},
+            {{"group", g.name},
+             {"kind", "containment_circle"},
+             {"level", c.level},
+             {"radius_m", c.radius}}));
+      if (c.radius_upper && std::isfinite(*c.radius_upper) && *c.radius_upper > 0.0)
+        features.push_back(
+            feature({{"type", "Polygon"},
+                     {"coordinates", {geo.ring(circle_ring(g.centre, *c.radius_upper))}}},
+                    {{"group", g.name},
+                     {"kind", "containment_upper_bound_circle"},
+                     {"level", c.level},
+                     {"radius_m", *c.radius_upper},
+                     {"confidence", c.confidence}}));
+    }
+    for (const auto& e : g.ellipses)
+      if (std::isfinite(e.semi_major) && e.semi_major > 0.0 && e.semi_minor > 0.0)
+        features.push_back(
+            feature({{"type", "Polygon"},
+                     {"coordinates",
+                      {geo.ring(ellipse_ring(g.mean, e.semi_major, e.semi_minor, e.bearing))}}},
+                    {{"group", g.name},
+                     {"kind", "dispersion_ellipse"},
+                     {"approximation", "gaussian"},
+                     {"level", e.level},
+                     {"semi_major_m", e.semi_major},
+                     {"semi_minor_m", e.semi_minor},
+                     {"bearing_deg", e.bearing},
+                     {"counted", json_number(e.counted)}}));
+    if (std::isfinite(g.centre.east))
+      features.push_back(
+          feature({{"type", "Point"}, {"coordinates", geo.point(g.centre)}},
+                  {{"group", g.name}, {"kind", "centre"}, {"rule", r.footprint.centre}}));
+    if (std::isfinite(g.mean.east))
+      features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(g.mean)}},
+                                 {{"group", g.name}, {"kind", "mean_impact"}}));
+  }
+  // The zone of each zone rule: the planned radius about its group's centre, with its status.
+  for (const auto& k : r.footprint.rules) {
+    if (k.rule != "zone_radius") continue;
+    for (const auto& g : r.footprint.groups)
+      if (g.name == k.group && std::isfinite(g.centre.east))
+        features.push_back(feature(
+            {{"type", "Polygon"}, {"coordinates", {geo.ring(circle_ring(g.centre, k.threshold))}}},
+            {{"group", g.name},
+             {"kind", "rule_zone"},
+             {"radius_m", k.threshold},
+             {"accepted_outside", k.accepted},
+             {"status", to_string(k.status)},
+             {"estimate_outside", json_number(k.value)}}));
+  }
+  features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(r.release)}},
+                             {{"kind", "release_point"},
+                              {"altitude_m", r.release_altitude},
+                              {"track_deg", r.release_track}}));
+  if (impacts) {
+    for (std::size_t b = 0; b < r.body_names.size(); ++b) {
+      nlohmann::json points = nlohmann::json::array();
+      for (std::size_t i = 0; i < impacts->rows(); ++i)
+        if (impacts->body[i] == b && impacts->status[i] == 0)
+          points.push_back(geo.point({impacts->east[i], impacts->north[i]}));
+      features.push_back(feature({{"type", "MultiPoint"}, {"coordinates", points}},
+                                 {{"group", r.body_names[b]}, {"kind", "impacts"}}));
+    }
+  }
+  nlohmann::json collection{{"type", "FeatureCollection"}, {"features", features}};
+  collection["properties"] = {{"title", r.title},
+                              {"samples", r.samples},
+                              {"confidence", r.footprint.confidence},
+                              {"cautions", cautions()}};
+  return collection.dump() + "\n";
+}
+
+std::string figures_csv(const StudyRecord& r) {
+  std::string out =
+      "group,figure,level,estimate,interval_lower,interval_upper,bound_upper,confidence,unit,"
+      "note\n";
+  const auto number = csv_number;
+  auto row = [&](const std::string& group, const std::string& figure, double level, double estimate,
+                 double lower, double upper, double bound, const char* unit,
+                 const std::string& note) {
+    auto quoted = [](const std::string& text) {
+      std::string q = "\"";
+      for (char c : text) q += c == '"' ? std::string("\"\"") : std::string(1, c);
+      return q + "\"";
+    };
+    // The confidence belongs to a figure that has bounds; a mean or a CEP has none.
+    const bool bounded = !(std::isnan(lower) && std::isnan(upper) && std::isnan(bound));
+    out += quoted(group) + "," + figure + "," + number(level) + "," + number(estimate) + "," +
+           number(lower) + "," + number(upper) + "," + number(bound) + "," +
+           (bounded ? number(r.footprint.confidence) : std::string()) + "," + unit + "," +
+           quoted(note) + "\n";
+  };
+  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+  for (const auto& g : r.footprint.groups) {
+    row(g.name, "mean_east", kNaN, g.mean.east, kNaN, kNaN, kNaN, "m", "");
+    row(g.name, "mean_north", kNaN, g.mean.north, kNaN, kNaN, kNaN, "m", "");
+    row(g.name, "centre_east", kNaN, g.centre.east, kNaN, kNaN, kNaN, "m", r.footprint.centre);
+    row(g.name, "centre_north", kNaN, g.centre.north, kNaN, kNaN, kNaN, "m", r.footprint.centre);
+    row(g.name, "cep", 0.5, g.cep, kNaN, kNaN, kNaN, "m", "counted; about the mean");
+    row(g.name, "cep_gaussian", 0.5, g.cep_gaussian, kNaN, kNaN, kNaN, "m",
+        "Gaussian approximation");
+    for (const auto& c : g.containment)
+      row(g.name, "containment_radius", c.level, c.radius, c.interval_lower, c.interval_upper,
+          c.radius_upper ? *c.radius_upper : kNaN, "m",
+          c.radius_upper ? "" : "bound needs " + std::to_string(c.samples_needed) + " samples");
+    for (const auto& p : g.polygons)
+      row(g.name, "hazard_polygon_area", p.level, p.determined ? p.area : kNaN, kNaN, kNaN, kNaN,
+          "m2", p.determined ? "counted coverage " + number(p.coverage) : p.reason);
+    for (const auto& e : g.ellipses) {
+      row(g.name, "ellipse_semi_major", e.level, e.semi_major, kNaN, kNaN, kNaN, "m",
+          "Gaussian approximation; bearing " + number(e.bearing) + " deg");
+      row(g.name, "ellipse_semi_minor", e.level, e.semi_minor, kNaN, kNaN, kNaN, "m",
+          "Gaussian approximation; counted " + number(e.counted));
+    }
+    for (const auto& q : g.downrange)
+      row(g.name, "downrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
+          "along " + number(r.footprint.downrange_bearing) + " deg");
+    for (const auto& q : g.crossrange)
+      row(g.name, "crossrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
+          "to the right");
+    for (const auto& c : g.speed)
+      row(g.name, "impact_speed", c.level, c.radius, c.interval_lower, c.interval_upper,
+          c.radius_upper ? *c.radius_upper : kNaN, "m/s", "");
+    for (const auto& c : g.energy)
+      row(g.name, "impact_energy", c.level, c.radius, c.interval_lower, c.interval_upper,
+          c.radius_upper ? *c.radius_upper : kNaN, "J", "");
+    const auto& x = g.energy_exceedance;
+    row(g.name, "energy_exceedance", kNaN, x.share, x.lower, kNaN, x.upper, "",
+        "above " + number(x.threshold) + " J; Clopper-Pearson");
+    for (const auto& q : g.time)
+      row(g.name, "time_of_flight", q.probability, q.value, q.lower, q.upper, kNaN, "s", "");
+    for (const auto& s : g.sensitivity) {
+      row(g.name, "spearman_downrange", kNaN, s.downrange, kNaN, kNaN, kNaN, "", s.input);
+      row(g.name, "spearman_crossrange", kNaN, s.crossrange, kNaN, kNaN, kNaN, "", s.input);
+      row(g.name, "spearman_distance", kNaN, s.distance, kNaN, kNaN, kNaN, "", s.input);
+      row(g.name, "spearman_energy", kNaN, s.energy, kNaN, kNaN, kNaN, "", s.input);
+    }
+  }
+  // A rule's row holds the probability of its event (no level, no unit): the estimate, its lower
+  // bound and its upper bound; the note says the threshold, the accepted probability and the
+  // status.
+  for (const auto& k : r.footprint.rules)
+    row(k.group, "rule_" + k.rule, kNaN, k.value, k.lower, kNaN, k.upper, "",
+        std::string(to_string(k.status)) + " against the accepted probability " +
+            number(k.accepted) + " of " +
+            (k.rule == "zone_radius" ? "landing outside " + number(k.threshold) + " m"
+                                     : "an impact energy above " + number(k.threshold) + " J") +
+            " (reported, not decided)");
+  for (const auto& w : r.range_warnings)
+    row(w.group, "model_range_" + w.kind, kNaN,
+        w.rows ? static_cast<double>(w.count) / static_cast<double>(w.rows) : kNaN, kNaN, kNaN,
+        kNaN, "", w.text);
+  return out;
+}
+
+}  // namespace strewn

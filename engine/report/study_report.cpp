@@ -1,0 +1,177 @@
+#include "report/study_report.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <limits>
+
+namespace strewn {
+
+namespace {
+nlohmann::json number_or_null(double v) {
+  return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr);
+}
+}  // namespace
+
+namespace {
+nlohmann::json uncertain_json(const Uncertain& u) {
+  switch (u.kind()) {
+    case DistributionKind::fixed:
+      return u.p1();
+    case DistributionKind::normal: {
+      nlohmann::json j{{"dist", "normal"}, {"mean", u.p1()}, {"sd", u.p2()}};
+      if (std::isfinite(u.lower())) j["min"] = u.lower();
+      if (std::isfinite(u.upper())) j["max"] = u.upper();
+      return j;
+    }
+    case DistributionKind::lognormal: {
+      nlohmann::json j{{"dist", "lognormal"}, {"median", u.p1()}, {"sigma", u.p2()}};
+      if (u.lower() > 0.0) j["min"] = u.lower();
+      if (std::isfinite(u.upper())) j["max"] = u.upper();
+      return j;
+    }
+    case DistributionKind::uniform:
+      return {{"dist", "uniform"}, {"min", u.p1()}, {"max", u.p2()}};
+    case DistributionKind::triangular:
+      return {{"dist", "triangular"}, {"min", u.p1()}, {"mode", u.p2()}, {"max", u.p3()}};
+    case DistributionKind::choice: {
+      nlohmann::json j{{"dist", "choice"}, {"values", u.values()}};
+      if (!u.weights().empty()) j["weights"] = u.weights();
+      return j;
+    }
+  }
+  return nullptr;
+}
+// A file named in the scenario as it will be read: relative to the scenario's folder.
+std::string as_read(const Scenario& s, const std::string& file) {
+  const std::filesystem::path p(file);
+  return p.is_relative()
+             ? (std::filesystem::path(s.path).parent_path() / p).lexically_normal().string()
+             : file;
+}
+const char* medium_name(Medium::Kind k) {
+  return k == Medium::Kind::us1976 ? "us1976" : k == Medium::Kind::profile ? "profile" : "uniform";
+}
+}  // namespace
+
+nlohmann::json scenario_json(const Scenario& s) {
+  nlohmann::json j;
+  j["title"] = s.title;
+  j["site"] = {{"ground", s.site.ground}};
+  if (s.site.latitude) j["site"]["latitude"] = *s.site.latitude;
+  if (s.site.longitude) j["site"]["longitude"] = *s.site.longitude;
+  auto& m = j["medium"];
+  m = {{"model", medium_name(s.medium.model)},
+       {"density_factor", uncertain_json(s.medium.density_factor)}};
+  if (s.medium.model != Medium::Kind::uniform)
+    m["temperature_offset"] = uncertain_json(s.medium.temperature_offset);
+  if (s.medium.model == Medium::Kind::profile) m["profile"] = as_read(s, s.medium.profile_file);
+  if (s.medium.model == Medium::Kind::uniform) {
+    m["density"] = s.medium.density;
+    m["viscosity"] = s.medium.viscosity;
+    m["sound_speed"] = number_or_null(s.medium.sound_speed);
+  }
+  nlohmann::json layers = nlohmann::json::array();
+  for (const auto& l : s.wind.layers)
+    layers.push_back({{"altitude", l.altitude}, {"speed", l.speed}, {"from", l.from}});
+  j["wind"] = {{"layers", layers}, {"uncertainty", {{"model", to_string(s.wind.uncertainty)}}}};
+  if (!s.wind.file.empty()) j["wind"]["file"] = as_read(s, s.wind.file);
+  auto& wu = j["wind"]["uncertainty"];
+  if (s.wind.uncertainty == WindUncertaintyModel::bias ||
+      s.wind.uncertainty == WindUncertaintyModel::layered)
+    wu["speed_sd"] = s.wind.speed_sd;
+  if (s.wind.uncertainty == WindUncertaintyModel::layered)
+    wu["correlation_length"] = s.wind.correlation_length;
+  if (s.wind.uncertainty == WindUncertaintyModel::ensemble) {
+    wu["members"] = nlohmann::json::array();
+    for (const auto& member : s.wind.members) wu["members"].push_back(as_read(s, member));
+  }
+  const auto& r = s.release;
+  j["release"] = {{"altitude", uncertain_json(r.altitude)},
+                  {"east", uncertain_json(r.east)},
+                  {"north", uncertain_json(r.north)},
+                  {"speed", uncertain_json(r.speed)},
+                  {"track", uncertain_json(r.track)},
+                  {"climb", uncertain_json(r.climb)},
+                  {"along_error", uncertain_json(r.along_error)},
+                  {"cross_error", uncertain_json(r.cross_error)},
+                  {"delay", uncertain_json(r.delay)}};
+  if (r.has_burst) j["release"]["burst"] = {{"speed", uncertain_json(r.burst_speed)}};
+  for (const auto& b : s.bodies) {
+    nlohmann::json body{{"name", b.name}, {"count", b.count}, {"mass", uncertain_json(b.mass)}};
+    nlohmann::json drag{{"model", to_string(b.drag_model)}};
+    if (b.drag_model == DragModel::area) {
+      drag["cd"] = uncertain_json(b.cd);
+      drag["area"] = uncertain_json(b.area);
+      if (!(b.volume.is_fixed() && b.volume.p1() == 0.0)) drag["volume"] = uncertain_json(b.volume);
+    } else {
+      drag["diameter"] = uncertain_json(b.diameter);
+      if (b.drag_model == DragModel::shape) drag["sphericity"] = uncertain_json(b.sphericity);
+    }
+    if (b.mach_table) {
+      nlohmann::json table = nlohmann::json::array();
+      for (std::size_t i = 0; i < b.mach_table->mach().size(); ++i)
+        table.push_back({b.mach_table->mach()[i], b.mach_table->factor()[i]});
+      drag["mach_table"] = table;
+    }
+    body["drag"] = drag;
+    if (b.parachute) {
+      const auto& p = *b.parachute;
+      nlohmann::json chute{{"fill_time", uncertain_json(p.fill_time)},
+                           {"drag_area", uncertain_json(p.drag_area)},
+                           {"partial_probability", p.partial_probability},
+                           {"failure_probability", p.failure_probability}};
+      if (p.trigger == Canopy::Trigger::time)
+        chute["deploy_after"] = uncertain_json(p.deploy_after);
+      else
+        chute["deploy_height"] = uncertain_json(p.deploy_height);
+      if (p.partial_probability > 0.0)
+        chute["partial_drag_area"] = uncertain_json(p.partial_drag_area);
+      body["parachute"] = chute;
+    }
+    j["body"].push_back(body);
+  }
+  for (const auto& c : s.correlations)
+    j["correlation"].push_back({{"between", {c.first, c.second}}, {"rho", c.rho}});
+  const auto& st = s.study;
+  j["study"] = {{"samples", st.samples},
+                {"seed", st.seed},
+                {"sampling", to_string(st.sampling)},
+                {"levels", st.levels},
+                {"confidence", st.confidence},
+                {"tolerance", st.tolerance},
+                {"energy_threshold", st.energy_threshold},
+                {"grid", st.grid},
+                {"max_samples", st.max_samples},
+                {"max_failed", st.max_failed}};
+  if (st.centre == "point")
+    j["study"]["centre"] = {{"east", st.centre_east}, {"north", st.centre_north}};
+  else
+    j["study"]["centre"] = st.centre;
+  if (st.target_width) j["study"]["target_width"] = *st.target_width;
+  nlohmann::json rules = nlohmann::json::object();
+  if (s.rules.zone_radius) rules["zone_radius"] = *s.rules.zone_radius;
+  if (s.rules.max_outside) rules["max_outside"] = *s.rules.max_outside;
+  if (s.rules.energy_limit) rules["energy_limit"] = *s.rules.energy_limit;
+  if (s.rules.max_exceed) rules["max_exceed"] = *s.rules.max_exceed;
+  j["rules"] = rules;
+  j["output"] = {
+      {"file", s.output.file}, {"samples", s.output.samples}, {"compress", s.output.compress}};
+  nlohmann::json inputs = nlohmann::json::array();
+  for (const auto& in : s.sampled_inputs)
+    inputs.push_back({{"name", in.name},
+                      {"distribution", uncertain_json(in.distribution)},
+                      {"nominal", in.distribution.nominal()}});
+  j["sampled_inputs"] = inputs;
+  return j;
+}
+
+void write_scenario_text(std::ostream& out, const Scenario& s) {
+  out << "# " << s.path << " resolved: every key with its value or default\n"
+      << scenario_json(s).dump(2) << "\n\nsampled inputs (" << s.sampled_inputs.size() << "):\n";
+  for (const auto& in : s.sampled_inputs)
+    out << "  " << in.name << "  " << uncertain_json(in.distribution).dump() << "  nominal "
+        << in.distribution.nominal() << "\n";
+}
+
+}  // namespace strewn

@@ -1,0 +1,152 @@
+#include "store/output_file.hpp"
+
+#include <fcntl.h>
+#include <signal.h>
+#include <sys/file.h>
+#include <unistd.h>
+
+#include <cctype>
+#include <cerrno>
+#include <cstring>
+#include <filesystem>
+#include <string_view>
+
+#include "core/errors.hpp"
+
+namespace strewn {
+
+std::string partial_suffix() {
+  // Taken once: a host renamed during a run must not give its files two names.
+  static const std::string suffix = [] {
+    // The host name as it may stand in a file name: letters, digits, '-' and '.', the rest '_'.
+    char host[256] = {};
+    if (::gethostname(host, sizeof host - 1) != 0) host[0] = '\0';
+    std::string name;
+    for (const char* c = host; *c != '\0' && name.size() < 64; ++c) {
+      const auto u = static_cast<unsigned char>(*c);
+      name += (std::isalnum(u) || *c == '-' || *c == '.') ? *c : '_';
+    }
+    if (name.empty()) name = "host";
+    return ".partial-" + name + "-" + std::to_string(::getpid());
+  }();
+  return suffix;
+}
+
+std::string temporary_path_of(const std::string& path) {
+  const std::filesystem::path final_path(path);
+  return (final_path.parent_path() / (final_path.filename().string() + partial_suffix())).string();
+}
+
+void remove_stale_partials(const std::string& folder, const std::string& output_name) {
+  namespace fs = std::filesystem;
+  const std::string suffix = partial_suffix();
+  // ".partial-<host>-": what this machine's runs add, whatever their process id.
+  const std::string ours = suffix.substr(0, suffix.rfind('-') + 1);
+  std::error_code ec;
+  for (const auto& entry : fs::directory_iterator(folder, ec)) {
+    const std::string name = entry.path().filename().string();
+    const std::size_t at = name.rfind(ours);
+    if (at == std::string::npos || (!output_name.empty() && name != output_name + name.substr(at)))
+      continue;
+    const std::string digits = name.substr(at + ours.size());
+    if (digits.empty() || digits.size() > 9 ||
+        digits.find_first_not_of("0123456789") != std::string::npos)
+      continue;
+    const auto pid = static_cast<pid_t>(std::stol(digits));
+    if (::kill(pid, 0) == 0 || errno != ESRCH) continue;  // its process lives
+    // A file someone holds locked is in use whatever its name says (HDF5 locks a file it
+    // writes; two machines may share a host name): removed only while this process holds it.
+    const int fd = ::open(entry.path().c_str(), O_RDONLY | O_NOFOLLOW | O_CLOEXEC | O_NONBLOCK);
+    if (fd < 0) continue;
+    if (::flock(fd, LOCK_EX | LOCK_NB) == 0) {
+      std::error_code ignored;
+      fs::remove(entry.path(), ignored);
+    }
+    ::close(fd);
+  }
+}
+
+int create_new_file(const std::string& path) {
+  std::error_code ignored;
+  std::filesystem::remove(path, ignored);  // removes a link itself, never what it points to
+  // 0666 less the umask, as any file a program makes: a group sharing a folder shares it.
+  return ::open(path.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0666);
+}
+
+// Makes the folder of an output file (and its parents) when it is missing (with `make`; without,
+// as `check` does, only finds that it could be made), and checks that a file can be made there,
+// before any flight: a destination that cannot be written is refused with status 2, nothing
+// having run. `origin` says where the path came from.
+void refuse_unsafe_output(const std::string& path, const std::string& origin,
+                          const std::vector<std::string>& inputs) {
+  namespace fs = std::filesystem;
+  // Longer than Linux's PATH_MAX, or a name longer than NAME_MAX (255), with the temporary
+  // suffix and the probe's ".probe": no such file could be made.
+  const std::size_t added = partial_suffix().size() + std::string_view(".probe").size();
+  if (path.size() + added >= 4096)
+    throw UsageError(origin + path.substr(0, 60) + "...: the output's path is too long (" +
+                     std::to_string(path.size()) + " characters)");
+  if (const std::string name = fs::path(path).filename().string(); name.size() + added > 255)
+    throw UsageError(origin + path + ": the file's name is too long (" +
+                     std::to_string(name.size()) + " characters; at most " +
+                     std::to_string(255 - added) + " on this machine, which adds " +
+                     std::to_string(added) + " to it while writing)");
+  std::error_code ec;
+  const fs::file_status status = fs::symlink_status(path, ec);
+  if (fs::is_directory(status))
+    throw UsageError(origin + path + ": is a folder; name the output file itself");
+  if (fs::exists(status) && !fs::is_regular_file(status))
+    throw UsageError(origin + path +
+                     ": is not a regular file (a device, a pipe or a link); strewn writes its "
+                     "outputs only as regular files, which it replaces whole");
+  for (const auto& input : inputs)
+    if (fs::exists(status) && fs::equivalent(path, input, ec))
+      throw UsageError(origin + path + ": is a file this command reads (" + input +
+                       "); choose another name for the output");
+}
+
+void prepare_output(const std::string& path, const std::string& origin, bool make,
+                    const std::vector<std::string>& inputs) {
+  namespace fs = std::filesystem;
+  refuse_unsafe_output(path, origin, inputs);
+  std::error_code ec;
+  const std::string checkpoint = path + ".checkpoint";
+  if (const fs::file_status beside = fs::symlink_status(checkpoint, ec);
+      fs::exists(beside) && !fs::is_regular_file(beside))
+    throw UsageError(origin + path + ": its checkpoint " + checkpoint +
+                     " is not a regular file (a folder, a device, a pipe or a link); remove it");
+  fs::path folder = fs::path(path).parent_path();
+  if (folder.empty()) folder = ".";
+  fs::path existing = folder;  // the folder, or the nearest of its parents that exists
+  while (!fs::exists(existing, ec)) {
+    if (!existing.has_parent_path() || existing.parent_path() == existing) {
+      existing = ".";  // a relative path's first part: the working directory holds it
+      break;
+    }
+    existing = existing.parent_path();
+  }
+  if (!fs::is_directory(existing, ec))
+    throw UsageError(origin + path + ": cannot make the folder " + folder.string() + " (" +
+                     existing.string() + " is a file, not a folder)");
+  if (make && existing != folder) {
+    fs::create_directories(folder, ec);
+    if (ec || !fs::is_directory(folder))
+      throw UsageError(origin + path + ": cannot make the folder " + folder.string() + " (" +
+                       (ec ? ec.message() : std::string("a file is in the way")) + ")");
+    existing = folder;
+  }
+  // A file made and removed again: the one sure test that the folder takes new files.
+  const std::string probe =
+      (existing / (fs::path(temporary_path_of(path)).filename().string() + ".probe")).string();
+  const int fd = ::open(probe.c_str(), O_WRONLY | O_CREAT | O_EXCL, 0644);
+  if (fd < 0)
+    throw UsageError(origin + path + ": cannot write in " + existing.string() + " (" +
+                     std::strerror(errno) + ")");
+  ::close(fd);
+  ::unlink(probe.c_str());
+  if (!make) return;
+  // Temporary files of runs that were killed (their process is gone): strewn's own leftovers.
+  remove_stale_partials(existing.string(), fs::path(path).filename().string());
+}
+
+}  // namespace strewn

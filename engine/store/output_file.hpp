@@ -1,0 +1,49 @@
+#pragma once
+// Output files written safely: a path strewn must not write is refused before anything runs, a
+// file is made new (never through a link) under a temporary name beside the final one and renamed
+// into place when whole, and the temporary files of killed runs are cleared away.
+#include <string>
+#include <vector>
+
+namespace strewn {
+
+/// Refuses (UsageError, status 2) an output path that strewn must not write: a folder, an existing
+/// entry that is not a regular file (a device such as /dev/null, a pipe, a link: writing a whole
+/// file under the name would replace it), one of `inputs`, the files the command reads, or a path
+/// or name too long to be written. The message starts with `origin` (where the path came from,
+/// e.g. "file:line: output.file: ").
+void refuse_unsafe_output(const std::string& path, const std::string& origin,
+                          const std::vector<std::string>& inputs = {});
+
+/// Refuses an unsafe output (refuse_unsafe_output) and a checkpoint beside it
+/// (`<path>.checkpoint`) that is not a regular file (a link planted there would have the study
+/// write through it), makes the folder of an output file (and its
+/// parents) when it is missing (with `make`; without, as `check` does, only finds that it could
+/// be made), and checks that a file can be made there by making and removing one. With `make`,
+/// also removes the temporary files that killed runs on this machine left under this name (their
+/// process is gone; remove_stale_partials). Throws UsageError (status 2: refused before anything
+/// runs).
+void prepare_output(const std::string& path, const std::string& origin, bool make,
+                    const std::vector<std::string>& inputs = {});
+
+/// What strewn adds to an output's name while it writes it: ".partial-<host>-<process id>". The
+/// host name keeps two machines sharing a folder (a cluster's shared file system) from taking
+/// each other's process ids for their own.
+std::string partial_suffix();
+
+/// The temporary name a results file is written under until it is complete: beside it, with
+/// partial_suffix() added.
+std::string temporary_path_of(const std::string& path);
+
+/// Removes from `folder` the temporary files (partial_suffix) left by killed runs of this machine
+/// whose process is gone, for the output named `output_name`, or for every output when it is
+/// empty. Files of other machines, of live processes, and any a process holds locked (HDF5
+/// locks a file it writes) are left alone.
+void remove_stale_partials(const std::string& folder, const std::string& output_name);
+
+/// Opens `path` for writing as a new regular file, never through a link: an entry already there
+/// under the name (a leftover, or a link planted to redirect the write) is removed first, then
+/// the file is made with O_EXCL | O_NOFOLLOW. Returns the descriptor, or -1 with errno set.
+int create_new_file(const std::string& path);
+
+}  // namespace strewn
