@@ -27,7 +27,7 @@
 #include "report/atmosphere_table.hpp"
 #include "report/footprint_report.hpp"
 #include "report/report_files.hpp"
-#include "report/study_report.hpp"
+#include "report/scenario_report.hpp"
 #include "report/trace_report.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/world.hpp"
@@ -392,6 +392,38 @@ int run_report(const ReportArguments& a, std::ostream& out) {
 
 // A whole number from `least` to `most`, refused in plain words (CLI11's own range checks print
 // the largest double, 309 digits).
+// Runs a sweep and says what it does: a line per finished case (unless quiet), and on rank 0
+// where the results are. A case failing on one rank of several ends the whole job.
+int run_sweep_command(const Job& job, const SweepPlan& plan, const SweepOptions& options,
+                      bool quiet, std::ostream& out, std::ostream& err, std::ostream& rank_err) {
+  SweepEvents events;
+  if (!quiet) {
+    events.resumed = [&](std::size_t finished, std::size_t cases, const std::string& folder) {
+      err << "sweep: " << finished << " of " << cases << " cases already finished in " << folder
+          << "; running the other " << cases - finished << "\n";
+    };
+    events.case_done = [&](std::size_t index, const std::string& label) {
+      err << "sweep: case " << index << " done (" << label << ")\n";
+    };
+  }
+  events.failed_on_rank = [&](const std::exception& e) {
+    if (job.leader())
+      err << "error: " << e.what() << "\n";
+    else
+      rank_err << "error (rank " << job.rank() << "): " << e.what() << "\n";
+    err.flush();
+    rank_err.flush();
+    job.abort(kExitFailure);
+  };
+  const std::optional<SweepOutcome> done = run_sweep(job, plan, options, events);
+  if (!done) return kExitDone;  // another rank: rank 0 tells the results
+  out << "strewn sweep: " << done->cases << " cases of " << plan.base_path << "\n\n"
+      << done->summary_text << "\nresults   " << done->output << " (strewn report " << done->output
+      << " --case N shows case N in full)\nsummary   " << done->summary_csv
+      << " (every figure of every case)\n";
+  return kExitDone;
+}
+
 CLI::Validator whole_number(std::uint64_t least, std::uint64_t most) {
   return CLI::Validator(
       [least, most](std::string& text) -> std::string {
@@ -467,6 +499,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
   std::string sweep_file;
   std::uint64_t sweep_samples = 0;
   SweepOptions sweep;
+  bool sweep_quiet = false;
   auto* sweep_cmd = app.add_subcommand(
       "sweep", "Run every case of a parameter sweep (a complete study each) into one results file");
   sweep_cmd->add_option("SWEEP", sweep_file, "Sweep file (TOML)")->required();
@@ -479,7 +512,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
   sweep_cmd->add_flag(
       "--fresh", sweep.fresh,
       "Run every case again (default: a stopped sweep resumes, skipping finished cases)");
-  sweep_cmd->add_flag("--quiet", sweep.quiet, "No line per finished case");
+  sweep_cmd->add_flag("--quiet", sweep_quiet, "No line per finished case");
 
   ReportArguments report;
   auto* report_cmd = app.add_subcommand(
@@ -534,7 +567,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       if (sweep.threads > 0)
         limit.emplace(tbb::global_control::max_allowed_parallelism,
                       static_cast<std::size_t>(sweep.threads));
-      return run_sweep(job, plan, sweep, out, err);
+      return run_sweep_command(job, plan, sweep, sweep_quiet, out, err, err_stream);
     }
     if (!job.leader()) return kExitDone;  // the other commands run on rank 0 only
     if (*report_cmd) return run_report(report, out);

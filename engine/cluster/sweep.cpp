@@ -10,7 +10,6 @@
 #include <fstream>
 #include <functional>
 #include <iomanip>
-#include <iostream>
 #include <mutex>
 #include <sstream>
 #include <thread>
@@ -445,8 +444,8 @@ constexpr int kRequestTag = 21, kAnswerTag = 22;
 
 }  // namespace
 
-int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options, std::ostream& out,
-              std::ostream& err) {
+std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
+                                      const SweepOptions& options, const SweepEvents& events) {
   const std::string output = options.output.empty() ? plan.output : options.output;
   const std::string folder = output + ".cases";
   std::vector<std::size_t> pending;
@@ -466,15 +465,18 @@ int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options
     for (std::size_t i = 0; i < plan.cases.size(); ++i)
       if (!finished(case_file(folder, i), plan.cases[i].text)) pending.push_back(i);
     const std::size_t skipped = plan.cases.size() - pending.size();
-    if (!options.quiet && skipped > 0)
-      err << "sweep: " << skipped << " of " << plan.cases.size() << " cases already finished in "
-          << folder << "; running the other " << pending.size() << "\n";
+    if (events.resumed && skipped > 0) events.resumed(skipped, plan.cases.size(), folder);
   }
-  std::mutex print;
+  std::mutex told;
   auto report_done = [&](std::size_t index) {
-    if (options.quiet) return;
-    std::lock_guard<std::mutex> lock(print);
-    err << "sweep: case " << index << " done (" << case_label(plan, index) << ")\n";
+    if (!events.case_done) return;
+    const std::lock_guard<std::mutex> lock(told);
+    events.case_done(index, case_label(plan, index));
+  };
+  // A case failed on a rank of several: the others may be waiting for it, so the job ends.
+  auto fail_on_rank = [&](const std::exception& e) {
+    if (events.failed_on_rank) events.failed_on_rank(e);
+    job.abort(3);  // kept in case the handler returned: no rank may be left waiting
   };
   std::atomic<std::size_t> next{0};
   auto take = [&]() -> std::int64_t {
@@ -513,8 +515,7 @@ int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options
         report_done(static_cast<std::size_t>(index));
       }
     } catch (const std::exception& e) {
-      err << "error: " << e.what() << "\n";
-      job.abort(3);
+      fail_on_rank(e);
     }
     manager.join();
   } else {
@@ -530,12 +531,11 @@ int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options
                  case_file(folder, static_cast<std::size_t>(index)), threads);
       }
     } catch (const std::exception& e) {
-      std::cerr << "error (rank " << job.rank() << "): " << e.what() << "\n";
-      job.abort(3);
+      fail_on_rank(e);
     }
   }
   job.barrier();
-  if (!job.leader()) return 0;
+  if (!job.leader()) return std::nullopt;
 
   // Rank 0 gathers the cases, in index order, into the sweep's file and its CSV summary.
   std::vector<SweepCaseSource> sources;
@@ -553,11 +553,7 @@ int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options
   write_report_file(csv_path, summary.csv, plan.files_read);
   std::error_code ec;
   fs::remove_all(folder, ec);
-  out << "strewn sweep: " << plan.cases.size() << " cases of " << plan.base_path << "\n\n"
-      << summary.text << "\nresults   " << output << " (strewn report " << output
-      << " --case N shows case N in full)\nsummary   " << csv_path
-      << " (every figure of every case)\n";
-  return 0;
+  return SweepOutcome{plan.cases.size(), output, csv_path, summary.text};
 }
 
 }  // namespace strewn

@@ -9,7 +9,11 @@
 // on one machine. Each finished case is a results file of its own (written whole, then renamed)
 // in a folder beside the sweep's output, so a stopped sweep resumes where it stopped; rank 0 then
 // gathers them into one file. The results do not depend on who ran which case.
+#include <cstddef>
 #include <cstdint>
+#include <exception>
+#include <functional>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -47,13 +51,33 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override = 0
 struct SweepOptions {
   int threads = 0;     ///< threads per rank (0: all)
   bool fresh = false;  ///< ignore finished cases of an earlier, stopped run
-  bool quiet = false;
   std::string output;  ///< overrides the plan's output
 };
 
-/// Runs the sweep on every rank of the job; rank 0 writes the sweep file and its CSV summary and
-/// prints where they are. Returns the exit status.
-int run_sweep(const Job& job, const SweepPlan& plan, const SweepOptions& options, std::ostream& out,
-              std::ostream& err);
+/// What a sweep tells as it runs; `app` prints it. Empty functions are skipped.
+struct SweepEvents {
+  /// On rank 0, before any case runs: `finished` of `cases` are already done in `folder` (by an
+  /// earlier, stopped run) and are skipped.
+  std::function<void(std::size_t finished, std::size_t cases, const std::string& folder)> resumed;
+  /// On the rank that ran it: case `index` (its axis values in words: `label`) is done.
+  std::function<void(std::size_t index, const std::string& label)> case_done;
+  /// On a rank of a job of several whose case failed, while the other ranks may be waiting for
+  /// it: says so and ends the whole job (Job::abort). Should it return, the job is ended anyway.
+  std::function<void(const std::exception& error)> failed_on_rank;
+};
+
+/// Where a finished sweep's results are.
+struct SweepOutcome {
+  std::size_t cases = 0;
+  std::string output;        ///< the sweep's results file
+  std::string summary_csv;   ///< every figure of every case
+  std::string summary_text;  ///< a line per case, for a terminal
+};
+
+/// Runs the sweep on every rank of the job; rank 0 writes the sweep's file and its CSV summary
+/// and returns where they are, the other ranks return nothing. Errors are thrown; on a job of
+/// several ranks, a case that fails calls events.failed_on_rank instead (the others would wait).
+std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
+                                      const SweepOptions& options, const SweepEvents& events = {});
 
 }  // namespace strewn

@@ -1,4 +1,4 @@
-#include "report/study_report.hpp"
+#include "report/scenario_report.hpp"
 
 #include <cmath>
 #include <cstdio>
