@@ -18,6 +18,7 @@
 #include "reference_flight.hpp"
 #include "scenario/world.hpp"
 #include "store/results_file.hpp"
+#include "support.hpp"
 
 namespace strewn {
 namespace {
@@ -82,8 +83,7 @@ TEST(Cli, TraceFormats) {
 }
 
 TEST(Cli, BadInputExitsWithStatusTwoAndNamesKeyAndLine) {
-  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-test";
-  std::filesystem::create_directories(dir);
+  const test::ScratchFolder dir("cli-test");
   const auto file = (dir / "negative-mass.toml").string();
   std::ofstream(file) << "[release]\naltitude = 100.0\n[[body]]\nmass = -2.0\n[body.drag]\n"
                          "model = \"area\"\ncd = 1.0\narea = 0.1\n";
@@ -96,7 +96,6 @@ TEST(Cli, BadInputExitsWithStatusTwoAndNamesKeyAndLine) {
             2);
   EXPECT_EQ(run({}).status, 2);
   EXPECT_EQ(run({"fly"}).status, 2);
-  std::filesystem::remove_all(dir);
 }
 
 TEST(Cli, VersionAndAtmosphere) {
@@ -123,8 +122,7 @@ namespace strewn {
 namespace {
 
 TEST(CliRun, WritesTheResultsFileAndTheSummary) {
-  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-run";
-  std::filesystem::create_directories(dir);
+  const test::ScratchFolder dir("cli-run");
   const auto file = (dir / "box.h5").string();
   const CommandResult r = run({"run", STREWN_SOURCE_DIR "/tests/data/canopy-by-height.toml", "-n",
                                "300", "-o", file, "--quiet", "--json", "-j", "2"});
@@ -144,14 +142,13 @@ TEST(CliRun, WritesTheResultsFileAndTheSummary) {
   EXPECT_TRUE(json["footprint"]["all"]["containment"][3]["radius_upper"].is_null());
   EXPECT_EQ(json["footprint"]["all"]["containment"][3]["samples_needed"], 2995);
   EXPECT_TRUE(std::filesystem::exists(file));
-  for (const auto& entry : std::filesystem::directory_iterator(dir))
+  for (const auto& entry : std::filesystem::directory_iterator(dir.path()))
     EXPECT_EQ(entry.path().string().find(".partial"), std::string::npos);  // nothing half-written
   // The same seed again gives the same summary.
   EXPECT_EQ(run({"run", STREWN_SOURCE_DIR "/tests/data/canopy-by-height.toml", "-n", "300", "-o",
                  file, "--quiet", "--json", "-j", "1"})
                 .out,
             r.out);
-  std::filesystem::remove_all(dir);
 }
 
 TEST(CliRun, ReplayCheckAndRefusals) {
@@ -169,8 +166,7 @@ TEST(CliRun, ReplayCheckAndRefusals) {
   EXPECT_NE(check.out.find("wind.bias_east"), std::string::npos);
 
   // Correlations that cannot hold together: status 2 with file, line and key path, nothing written.
-  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-correlation";
-  std::filesystem::create_directories(dir);
+  const test::ScratchFolder dir("cli-correlation");
   const auto bad = (dir / "bad.toml").string();
   std::ofstream(bad)
       << "[release]\naltitude = 500.0\n[[body]]\nmass = { dist = \"normal\", mean = 5.0, sd = 0.5 "
@@ -188,7 +184,6 @@ TEST(CliRun, ReplayCheckAndRefusals) {
       << refused.err;
   EXPECT_FALSE(std::filesystem::exists(dir / "out.h5"));
   EXPECT_EQ(run({"check", bad}).status, 2);
-  std::filesystem::remove_all(dir);
 
   // An output folder that cannot be made (under a regular file): status 2 before any flight,
   // nothing written. A folder that is merely missing is made (see OutputFoldersAreMade).
@@ -218,8 +213,7 @@ namespace {
 // against the working directory; a missing output folder is made.
 TEST(CliPaths, ScenarioPathsFromItsFolderCommandLinePathsFromTheWorkingDirectory) {
   namespace fs = std::filesystem;
-  const fs::path root = fs::temp_directory_path() / "strewn-cli-paths";
-  fs::remove_all(root);
+  const test::ScratchFolder root("cli-paths");
   const fs::path here = root / "study", elsewhere = root / "elsewhere";
   fs::create_directories(here);
   fs::create_directories(elsewhere);
@@ -251,7 +245,6 @@ TEST(CliPaths, ScenarioPathsFromItsFolderCommandLinePathsFromTheWorkingDirectory
   EXPECT_EQ(run({"report", "out/deep/crate.h5", "--html", "pages/crate.html"}).status, 0);
   EXPECT_TRUE(fs::exists(elsewhere / "pages" / "crate.html"));
   fs::current_path(before);
-  fs::remove_all(root);
 }
 
 // Small defects a first user met.
@@ -273,8 +266,7 @@ TEST(CliDefects, TraceOfAFloatingBodyHasNoImpactAndListsTheValuesFlown) {
 
 TEST(CliDefects, CrossrangeSaysWhichSideOfTheTrack) {
   // A crate released flying north into a wind from the east drifts west: left of its track.
-  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-side";
-  std::filesystem::create_directories(dir);
+  const test::ScratchFolder dir("cli-side");
   const auto file = (dir / "side.toml").string();
   std::ofstream(file) << "[wind]\nlayers = [{ altitude = 0.0, speed = 8.0, from = 90.0 }]\n"
                          "[release]\naltitude = 500.0\nspeed = 10.0\ntrack = 0.0\n[[body]]\n"
@@ -285,12 +277,10 @@ TEST(CliDefects, CrossrangeSaysWhichSideOfTheTrack) {
   EXPECT_EQ(r.out.find("right of track"), std::string::npos) << r.out;
   const auto j = nlohmann::json::parse(run({"trace", file, "--json"}).out);
   EXPECT_LT(j["impact"]["crossrange"].get<double>(), 0.0);  // negative: left
-  std::filesystem::remove_all(dir);
 }
 
 TEST(CliDefects, CsvRuleRowsHoldProbabilitiesNotMetres) {
-  const auto dir = std::filesystem::temp_directory_path() / "strewn-cli-csv";
-  std::filesystem::create_directories(dir);
+  const test::ScratchFolder dir("cli-csv");
   const auto h5 = (dir / "ridge.h5").string(), csv = (dir / "figures.csv").string();
   ASSERT_EQ(
       run({"run", STREWN_SOURCE_DIR "/inputs/ridge-drop.toml", "-n", "300", "-o", h5, "--quiet"})
@@ -323,7 +313,6 @@ TEST(CliDefects, CsvRuleRowsHoldProbabilitiesNotMetres) {
   ASSERT_NE(mean, std::string::npos);
   const std::string mean_row = all_rows.substr(mean, all_rows.find('\n', mean) - mean);
   EXPECT_NE(mean_row.find(",,,,,m,"), std::string::npos) << mean_row;
-  std::filesystem::remove_all(dir);
 }
 
 }  // namespace
@@ -337,10 +326,7 @@ namespace {
 // Each is refused with status 2 before anything runs, and left as it was.
 TEST(CliPaths, UnsafeOutputsAreRefusedAndLeftAlone) {
   namespace fs = std::filesystem;
-  const fs::path dir =
-      fs::temp_directory_path() / ("strewn-cli-unsafe-" + std::to_string(::getpid()));
-  fs::remove_all(dir);
-  fs::create_directories(dir);
+  const test::ScratchFolder dir("cli-unsafe");
   const std::string scenario = (dir / "s.toml").string();
   std::ofstream(scenario) << "[release]\naltitude = 300.0\n[[body]]\nmass = 1.0\n[body.drag]\n"
                              "model = \"area\"\ncd = 1.0\narea = 0.05\n[study]\nsamples = 20\n";
@@ -369,7 +355,6 @@ TEST(CliPaths, UnsafeOutputsAreRefusedAndLeftAlone) {
   for (const char* n : {"18446744073709551615", "9223372036854775808", "2000000001"})
     EXPECT_EQ(run({"run", scenario, "-n", n}).status, 2) << n;
   EXPECT_EQ(run({"run", scenario, "-j", "2147483647"}).status, 2);
-  fs::remove_all(dir);
 }
 
 // Found in a code review: a link planted under the checkpoint's name, or under the name the
@@ -378,10 +363,7 @@ TEST(CliPaths, UnsafeOutputsAreRefusedAndLeftAlone) {
 // machines one run removed another machine's live temporary file.
 TEST(CliPaths, PlantedLinksAreNotFollowedAndOtherMachinesFilesAreLeftAlone) {
   namespace fs = std::filesystem;
-  const fs::path dir =
-      fs::temp_directory_path() / ("strewn-cli-planted-" + std::to_string(::getpid()));
-  fs::remove_all(dir);
-  fs::create_directories(dir);
+  const test::ScratchFolder dir("cli-planted");
   const std::string scenario = (dir / "s.toml").string();
   std::ofstream(scenario) << "[release]\naltitude = 300.0\n[[body]]\nmass = 1.0\n[body.drag]\n"
                              "model = \"area\"\ncd = 1.0\narea = 0.05\n[study]\nsamples = 20\n";
@@ -444,7 +426,6 @@ TEST(CliPaths, PlantedLinksAreNotFollowedAndOtherMachinesFilesAreLeftAlone) {
   r = run({"run", scenario, "-o", long_name, "--quiet"});
   EXPECT_EQ(r.status, 2);
   EXPECT_NE(r.err.find("the file's name is too long"), std::string::npos) << r.err;
-  fs::remove_all(dir);
 }
 
 // Found by a tester: a replayed sample of a floating body gave an all-zero impact.

@@ -3,9 +3,11 @@
 // scenario contract, and the integrator's convergence order by step halving.
 #include <gtest/gtest.h>
 
+#include <cmath>
 #include <cstdio>
 #include <cstdlib>
 #include <random>
+#include <vector>
 
 #include "flight/dormand_prince.hpp"
 #include "flight/flight.hpp"
@@ -157,6 +159,59 @@ TEST(Integrator, StepSizeArithmeticIsAccurateEnough) {
     EXPECT_EQ(Stepper::step_log2(std::ldexp(1.0, k)), k);
     EXPECT_EQ(Stepper::step_exp2(k), std::ldexp(1.0, k));
   }
+}
+
+}  // namespace
+}  // namespace strewn
+
+namespace strewn {
+namespace {
+
+// A canopy set to open at a height above the ground opens before the body lands, however close to
+// the ground that height is: the deployment height is crossed first. A step that ends a sliver
+// above the ground may land on its own dense output carried a little past its end, but not while
+// a deployment height is watched: that landing would skip the deployment lying in the sliver.
+// Steps end a sliver above the ground when a wind layer's altitude lies there (a step is cut to
+// end on each layer altitude) or by chance; both are flown here, over a spread of release heights
+// and masses, with deployment heights of 1 mm to 10 cm.
+// Each flight deploys, the last stretch from the deployment height to the ground takes that
+// height over the impact's sink rate, and the deployment comes at the time the independent
+// reference integration (Boost.Odeint, reference_flight.hpp) finds.
+TEST(FlightReference, ACanopyOpeningJustAboveTheGroundOpensBeforeTheLanding) {
+  const Medium air = Medium::us1976();
+  int flights = 0;
+  for (const double layer : {0.0, 0.01, 0.05, 0.2}) {  // 0: calm air, no layer at all
+    const WindProfile wind = layer > 0.0
+                                 ? WindProfile({{layer, 5.0, 270.0}, {3000.0, 15.0, 250.0}}, 0.0)
+                                 : WindProfile();
+    const Environment environment{&air, {}, &wind, 0.0};
+    for (const double height : {0.001, 0.005, 0.02, 0.1}) {
+      for (const double mass : {2.0, 20.0, 100.0}) {
+        Body body = test::area_body(mass, 0.8, 0.05);
+        body.has_canopy = true;
+        body.canopy.trigger = Canopy::Trigger::height;
+        body.canopy.deploy_height = height;
+        body.canopy.fill_time = 1.0;
+        body.canopy.drag_area = mass;  // about 4 m/s under the open canopy (not reached here)
+        for (int i = 0; i < 40; ++i) {
+          const ReleaseState release = test::release_at(0, 0, 100.0 + 97.3 * i, 20.0, 0, 0);
+          SCOPED_TRACE("layer " + std::to_string(layer) + " m, deployment at " +
+                       std::to_string(height) + " m, mass " + std::to_string(mass) +
+                       " kg, released at " + std::to_string(release.position.z()) + " m");
+          const FlightResult r = fly(body, environment, release);
+          ASSERT_EQ(r.status, FlightStatus::landed);
+          ++flights;
+          ASSERT_TRUE(std::isfinite(r.deploy_time)) << "landed without deploying";
+          EXPECT_LT(r.deploy_time, r.time);
+          EXPECT_NEAR((r.time - r.deploy_time) * -r.velocity.z(), height, 2e-3 * height);
+          const auto reference = test::reference_fly(body, environment, release);
+          ASSERT_TRUE(reference.landed);
+          EXPECT_NEAR(r.deploy_time, reference.deploy_time, 1e-3);
+        }
+      }
+    }
+  }
+  EXPECT_EQ(flights, 4 * 4 * 3 * 40);
 }
 
 }  // namespace

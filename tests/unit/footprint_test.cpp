@@ -22,6 +22,7 @@
 #include "report/footprint_report.hpp"
 #include "store/results_file.hpp"
 #include "study/study.hpp"
+#include "support.hpp"
 
 namespace strewn {
 namespace {
@@ -533,12 +534,12 @@ TEST(Footprint, ResultsFileRoundTrip) {
   const Scenario scenario = parse_scenario(scenario_text, "rt.toml");
   StudyResult result;
   result.samples = 300;
-  const auto path = (std::filesystem::temp_directory_path() / "strewn-footprint-rt.h5").string();
+  const test::ScratchFolder dir("footprint-rt");
+  const auto path = (dir / "rt.h5").string();
   write_results(path, scenario, result, record, false);
   const ResultsFile back = read_results(path);
   EXPECT_FALSE(back.has_samples);
   EXPECT_EQ(record_json(back.record, false), record_json(record, false));
-  std::filesystem::remove(path);
 }
 
 }  // namespace

@@ -8,6 +8,7 @@
 #include <boost/math/tools/toms748_solve.hpp>
 #include <boost/numeric/odeint.hpp>
 #include <cmath>
+#include <limits>
 
 #include "flight/flight.hpp"
 
@@ -21,6 +22,7 @@ struct ReferenceImpact {
   Vec3 velocity = Vec3::Zero();
   bool landed = false;
   long steps = 0;
+  double deploy_time = std::numeric_limits<double>::quiet_NaN();  ///< s, NaN: no deployment
 };
 
 /// What the flat, non-rotating frame of strewn leaves out, put back for the reference:
@@ -87,7 +89,9 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
   }
   DragStage stage = DragStage::body;
   double fill_end = std::numeric_limits<double>::infinity();
+  ReferenceImpact impact;
   auto deploy = [&](double when) {
+    impact.deploy_time = when;
     if (canopy.fill_time > 0.0) {
       stage = DragStage::filling;
       fill_end = when + canopy.fill_time;
@@ -99,7 +103,6 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
   };
   forces.set_stage(DragStage::body);
   if (deploy_time == 0.0) deploy(0.0);
-  ReferenceImpact impact;
   stepper.initialize(x, 0.0, 1e-4);
   // The time in [a, b] where the altitude crosses `level`, on Odeint's dense output.
   auto bisect = [&](double a, double b, double level) {

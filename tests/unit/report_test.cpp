@@ -11,12 +11,14 @@
 #include <GeographicLib/Geodesic.hpp>
 #include <filesystem>
 #include <fstream>
+#include <memory>
 #include <nlohmann/json.hpp>
 #include <sstream>
 
 #include "app/commands.hpp"
 #include "command_line.hpp"
 #include "report/report_files.hpp"
+#include "support.hpp"
 
 namespace strewn {
 namespace {
@@ -29,18 +31,17 @@ using test::slurp;
 class Report : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
-    // One folder per process: ctest runs each test of this suite in its own process, in parallel.
-    dir_ = std::filesystem::temp_directory_path() /
-           ("strewn-report-test-" + std::to_string(::getpid()));
-    std::filesystem::remove_all(dir_);
-    std::filesystem::create_directories(dir_);
+    // A folder of its own: ctest runs each test of this suite in its own process, in parallel.
+    folder_ = std::make_unique<test::ScratchFolder>("report-test");
+    dir_ = folder_->path();
     file_ = (dir_ / "ridge.h5").string();
     const CommandResult r = run({"run", STREWN_SOURCE_DIR "/inputs/ridge-drop.toml", "-n", "3000",
                                  "-o", file_, "--quiet", "--json"});
     ASSERT_EQ(r.status, 0) << r.err;
     run_json_ = nlohmann::json::parse(r.out);
   }
-  static void TearDownTestSuite() { std::filesystem::remove_all(dir_); }
+  static void TearDownTestSuite() { folder_.reset(); }
+  static inline std::unique_ptr<test::ScratchFolder> folder_;
   static inline std::filesystem::path dir_;
   static inline std::string file_;
   static inline nlohmann::json run_json_;
@@ -202,8 +203,7 @@ TEST_F(Report, RefusesBadResultsFilesWithStatusTwo) {
 // the target; the rows continue the sample indices, so the result is the straight run of the
 // same number of samples.
 TEST(ReportConvergence, GrownStudyEqualsAStraightRun) {
-  const auto dir = std::filesystem::temp_directory_path() / "strewn-grow-test";
-  std::filesystem::create_directories(dir);
+  const test::ScratchFolder dir("grow-test");
   std::string text = slurp(STREWN_SOURCE_DIR "/tests/data/canopy-by-height.toml");
   const auto grown = (dir / "grown.toml").string(), straight = (dir / "straight.toml").string();
   std::ofstream(straight) << text;
@@ -226,7 +226,6 @@ TEST(ReportConvergence, GrownStudyEqualsAStraightRun) {
   ASSERT_EQ(s.status, 0) << s.err;
   const auto sj = nlohmann::json::parse(s.out);
   EXPECT_EQ(gj["footprint"], sj["footprint"]);
-  std::filesystem::remove_all(dir);
 }
 
 }  // namespace
@@ -255,9 +254,7 @@ std::vector<double> attribute_values(const std::string& svg, const std::string& 
 // north arrow and scale bar beside it), no impact cell cut by the frame, a map per body beside
 // the map of all, every warning on the page, the centres in words with their coordinates.
 TEST(ReportMaps, AnswerHowBigAndCentredWhere) {
-  const auto dir =
-      std::filesystem::temp_directory_path() / ("strewn-report-maps-" + std::to_string(::getpid()));
-  std::filesystem::create_directories(dir);
+  const test::ScratchFolder dir("report-maps");
   const auto h5 = (dir / "debris.h5").string();
   ASSERT_EQ(run({"run", STREWN_SOURCE_DIR "/inputs/test-range-debris.toml", "-n", "2000", "-o", h5,
                  "--quiet"})
@@ -333,13 +330,10 @@ TEST(ReportMaps, AnswerHowBigAndCentredWhere) {
     EXPECT_NE(page.find(w.get<std::string>().substr(0, 40)), std::string::npos) << w;
   EXPECT_NE(page.find("about the mean impact of one object of the release"), std::string::npos);
   EXPECT_NE(page.find(" S, "), std::string::npos);  // a latitude in words
-  std::filesystem::remove_all(dir);
 }
 
 TEST(ReportMaps, OneBodyIsNotRepeatedAsAll) {
-  const auto dir =
-      std::filesystem::temp_directory_path() / ("strewn-report-one-" + std::to_string(::getpid()));
-  std::filesystem::create_directories(dir);
+  const test::ScratchFolder dir("report-one");
   const auto h5 = (dir / "ridge.h5").string(), html = (dir / "ridge.html").string();
   ASSERT_EQ(
       run({"run", STREWN_SOURCE_DIR "/inputs/ridge-drop.toml", "-n", "500", "-o", h5, "--quiet"})
@@ -351,7 +345,6 @@ TEST(ReportMaps, OneBodyIsNotRepeatedAsAll) {
   EXPECT_NE(page.find("<td class=\"name\">bundle</td>"), std::string::npos);
   const CommandResult text = run({"report", h5});
   EXPECT_EQ(text.out.find("\nall"), std::string::npos) << text.out;
-  std::filesystem::remove_all(dir);
 }
 
 }  // namespace

@@ -16,6 +16,7 @@
 #include "store/checkpoint.hpp"
 #include "store/results_file.hpp"
 #include "study/study.hpp"
+#include "support.hpp"
 
 namespace strewn {
 namespace {
@@ -263,9 +264,7 @@ TEST(Study, AStopAfterTheLastFlightKeepsEverythingAndResumes) {
   const Scenario s = parse_scenario(kStudy, "study.toml");
   const World world = build_world(s);
   const SampleModel model(s, world, 300);
-  const auto dir = std::filesystem::temp_directory_path() / "strewn-study-late-stop";
-  std::filesystem::remove_all(dir);
-  std::filesystem::create_directories(dir);
+  const test::ScratchFolder dir("study-late-stop");
   const std::string straight = (dir / "straight.h5").string(), late = (dir / "late.h5").string();
   StudyOptions options;
   options.samples = 300;
@@ -289,7 +288,6 @@ TEST(Study, AStopAfterTheLastFlightKeepsEverythingAndResumes) {
   EXPECT_EQ(resumed.resumed, 300u);  // nothing flown again
   EXPECT_TRUE(same_columns(resumed.result.columns, whole.result.columns));
   EXPECT_FALSE(std::filesystem::exists(late + ".checkpoint"));
-  std::filesystem::remove_all(dir);
 }
 
 // Found by a tester: a checkpoint whose record length was damaged made --resume fail for want of
@@ -300,7 +298,8 @@ TEST(Study, ADamagedRecordLengthIsCutOff) {
   const World world = build_world(s);
   const SampleModel model(s, world, 40);
   const StudyResult rows = run_with(model, 40, 1, 8);
-  const auto path = (std::filesystem::temp_directory_path() / "strewn-damaged.checkpoint").string();
+  const test::ScratchFolder dir("study-damaged");
+  const auto path = (dir / "damaged.checkpoint").string();
   const Checkpoint::Identity id{sha256_hex(s.text), s.study.seed, 40, 2,
                                 rows.columns.input_names.size()};
   std::uintmax_t first_record_end = 0;
@@ -349,8 +348,6 @@ TEST(Study, ADamagedRecordLengthIsCutOff) {
   EXPECT_THROW(Checkpoint(path, id, rows.columns.input_names, rows.columns.choices, false),
                IoError);
   EXPECT_EQ(test::slurp(target), "keep me");
-  std::filesystem::remove(path);
-  std::filesystem::remove(target);
 }
 
 TEST(Study, ResultsFileReadsBackWithEveryName) {
@@ -358,7 +355,8 @@ TEST(Study, ResultsFileReadsBackWithEveryName) {
   const World world = build_world(s);
   const SampleModel model(s, world, 300);
   const StudyResult result = run_with(model, 300, 2, 64);
-  const auto path = (std::filesystem::temp_directory_path() / "strewn-study-test.h5").string();
+  const test::ScratchFolder dir("study-test");
+  const auto path = (dir / "study-test.h5").string();
   const Footprint footprint =
       compute_footprint(impact_table(result.columns), footprint_settings(s, world, result.samples));
   write_results(path, s, result, make_record(s, world, result, footprint, s.study.seed, 2));
@@ -378,19 +376,16 @@ TEST(Study, ResultsFileReadsBackWithEveryName) {
               file.columns.input_names.end())
         << name;
   // No temporary file is left beside it.
-  for (const auto& entry :
-       std::filesystem::directory_iterator(std::filesystem::temp_directory_path()))
-    EXPECT_EQ(entry.path().filename().string().find("strewn-study-test.h5.partial"),
-              std::string::npos);
-  std::filesystem::remove(path);
+  for (const auto& entry : std::filesystem::directory_iterator(dir.path()))
+    EXPECT_EQ(entry.path().filename().string().find("study-test.h5.partial"), std::string::npos);
 }
 
 TEST(Study, RefusesFilesThatAreNotResults) {
   EXPECT_THROW(read_results("/nonexistent/strewn.h5"), InputFileError);
-  const auto path = (std::filesystem::temp_directory_path() / "strewn-not-hdf5.h5").string();
+  const test::ScratchFolder dir("study-not-hdf5");
+  const auto path = (dir / "not-hdf5.h5").string();
   std::ofstream(path) << "not an HDF5 file";
   EXPECT_THROW(read_results(path), InputFileError);
-  std::filesystem::remove(path);
   EXPECT_THROW(write_results("/nonexistent/folder/out.h5", parse_scenario(kStudy, "s.toml"),
                              StudyResult{}, StudyRecord{}),
                IoError);

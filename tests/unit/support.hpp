@@ -1,9 +1,15 @@
 #pragma once
-// Helpers shared by the unit tests: reading the published reference tables and building flights.
+// Helpers shared by the unit tests: reading the published reference tables, building flights,
+// and scratch folders in the temporary directory.
+#include <stdlib.h>
+
+#include <cerrno>
+#include <filesystem>
 #include <fstream>
 #include <map>
 #include <sstream>
 #include <string>
+#include <system_error>
 #include <vector>
 
 #include "flight/flight.hpp"
@@ -62,5 +68,36 @@ inline ReleaseState release_at(double east, double north, double up, double ve, 
   r.velocity = Vec3(ve, vn, vu);
   return r;
 }
+
+/// A folder of the test's own under the temporary directory, named strewn-<what>-XXXXXX with the
+/// X's made unique by mkdtemp(3) (so that tests run at once, by ctest in parallel or by another
+/// build, never share one), and removed with everything in it when it goes out of scope: also
+/// when a failed assertion returns from the test early.
+class ScratchFolder {
+ public:
+  explicit ScratchFolder(const std::string& what) {
+    std::string name =
+        (std::filesystem::temp_directory_path() / ("strewn-" + what + "-XXXXXX")).string();
+    if (::mkdtemp(name.data()) == nullptr)
+      throw std::system_error(errno, std::generic_category(), "mkdtemp " + name);
+    path_ = name;
+  }
+  ~ScratchFolder() {
+    std::error_code ignored;  // a destructor does not throw; what cannot be removed is left
+    std::filesystem::remove_all(path_, ignored);
+  }
+  ScratchFolder(const ScratchFolder&) = delete;
+  ScratchFolder& operator=(const ScratchFolder&) = delete;
+
+  [[nodiscard]] const std::filesystem::path& path() const { return path_; }
+  /// A path inside the folder.
+  [[nodiscard]] std::filesystem::path operator/(const std::filesystem::path& name) const {
+    return path_ / name;
+  }
+  [[nodiscard]] std::string string() const { return path_.string(); }
+
+ private:
+  std::filesystem::path path_;
+};
 
 }  // namespace strewn::test

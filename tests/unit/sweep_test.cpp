@@ -13,6 +13,7 @@
 #include "command_line.hpp"
 #include "core/errors.hpp"
 #include "scenario/scenario.hpp"
+#include "support.hpp"
 
 namespace strewn {
 namespace {
@@ -22,21 +23,14 @@ using test::run;
 
 class Sweep : public ::testing::Test {
  protected:
-  void SetUp() override {
-    dir_ =
-        std::filesystem::temp_directory_path() /
-        ("strewn-sweep-test-" + std::to_string(::testing::UnitTest::GetInstance()->random_seed()) +
-         "-" + ::testing::UnitTest::GetInstance()->current_test_info()->name());
-    std::filesystem::create_directories(dir_);
-  }
-  void TearDown() override { std::filesystem::remove_all(dir_); }
   std::string write(const std::string& name, const std::string& text) {
     const auto path = (dir_ / name).string();
     std::ofstream(path) << text;
     return path;
   }
   std::string base() const { return STREWN_SOURCE_DIR "/tests/data/canopy-by-height.toml"; }
-  std::filesystem::path dir_;
+  const test::ScratchFolder folder_{"sweep-test"};  // one per test, removed after it
+  const std::filesystem::path dir_ = folder_.path();
 };
 
 TEST_F(Sweep, GridAndZipCases) {

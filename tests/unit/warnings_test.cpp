@@ -8,6 +8,7 @@
 
 #include "command_line.hpp"
 #include "store/results_file.hpp"
+#include "support.hpp"
 
 namespace strewn {
 namespace {
@@ -18,14 +19,8 @@ using test::slurp;
 
 class Warnings : public ::testing::Test {
  protected:
-  void SetUp() override {
-    dir_ = std::filesystem::temp_directory_path() /
-           ("strewn-warnings-" +
-            std::string(::testing::UnitTest::GetInstance()->current_test_info()->name()));
-    std::filesystem::create_directories(dir_);
-  }
-  void TearDown() override { std::filesystem::remove_all(dir_); }
-  std::filesystem::path dir_;
+  const test::ScratchFolder folder_{"warnings"};  // one per test, removed after it
+  const std::filesystem::path dir_ = folder_.path();
 };
 
 TEST_F(Warnings, StokesDropletsBeyondReOneAreCountedEverywhere) {
