@@ -34,7 +34,7 @@ namespace strewn {
 enum class FlightStatus : std::uint8_t {
   landed = 0,          ///< reached the ground
   step_limit = 1,      ///< more steps than FlightOptions::max_steps
-  time_limit = 2,      ///< still airborne after FlightOptions::max_time (e.g. a floating body)
+  time_limit = 2,      ///< still airborne after FlightOptions::max_time (e.g. a slow droplet)
   step_too_small = 3,  ///< the integrator could not meet the tolerance
   non_finite = 4,      ///< NaN or infinity in the state or forces
   floats = 5,          ///< lighter than the medium at the ground: it can never land
