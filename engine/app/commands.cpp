@@ -573,7 +573,8 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
     if (*report_cmd) return run_report(report, out);
     if (*check_cmd) {
       const Scenario scenario = load_scenario(check_scenario);
-      const SampleModel model(scenario, build_world(scenario), 1);  // correlations hold together
+      const World world = build_world(scenario);
+      const SampleModel model(scenario, world, 1);  // correlations hold together
       check_memory(scenario, model);
       // The results file `run` would write: its folder must be one that can be made and written.
       RunArguments as_run;

@@ -368,7 +368,8 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
   for (std::size_t index = 0; index < plan.cases.size(); ++index) {
     try {
       const Scenario s = parse_scenario(plan.cases[index].text, plan.base_path);
-      (void)SampleModel(s, build_world(s), 1);  // correlations hold together
+      const World world = build_world(s);
+      (void)SampleModel(s, world, 1);  // correlations hold together
       if (index == 0) {
         plan.samples = static_cast<std::uint64_t>(s.study.samples);
         plan.files_read = s.files_read;

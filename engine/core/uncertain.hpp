@@ -3,6 +3,7 @@
 // The distributions are the interface's: normal (mean, sd), lognormal (median, sigma of the log),
 // uniform (min, max), triangular (min, mode, max), choice (values, optional weights); `min`/`max`
 // truncate normal and lognormal. Quantiles come from Boost.Math's distributions.
+#include <cstddef>
 #include <limits>
 #include <string>
 #include <utility>
@@ -49,6 +50,12 @@ class Uncertain {
   [[nodiscard]] double lowest() const;
   [[nodiscard]] double highest() const;
 
+  /// The handle of a sampled input: its place among the scenario's sampled inputs, given by the
+  /// scenario loader to every distribution it reads (-1: not sampled, a fixed number). Sampling
+  /// writes values by this place and flights read them by it, never by name.
+  [[nodiscard]] int sampled_index() const { return sampled_index_; }
+  void mark_sampled(std::size_t index) { sampled_index_ = static_cast<int>(index); }
+
   /// Parameters, for printing the resolved scenario.
   [[nodiscard]] double p1() const { return p1_; }
   [[nodiscard]] double p2() const { return p2_; }
@@ -67,6 +74,7 @@ class Uncertain {
   // choice: the values sorted and their cumulative weights (normalised to end at 1), built once
   // so that drawing allocates nothing.
   std::vector<double> sorted_values_, cumulative_;
+  int sampled_index_ = -1;
 };
 
 }  // namespace strewn

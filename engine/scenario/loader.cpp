@@ -103,9 +103,13 @@ class Loader {
   }
 
  private:
-  // A sampled input is registered under its name (body inputs by the body's name).
+  // A sampled input is registered under its name (body inputs by the body's name) and given its
+  // handle, its place among the sampled inputs.
   Uncertain sampled(const std::string& name, Uncertain u) {
-    if (!u.is_fixed()) scenario_.sampled_inputs.push_back({name, u});
+    if (!u.is_fixed()) {
+      u.mark_sampled(scenario_.sampled_inputs.size());
+      scenario_.sampled_inputs.push_back({name, u});
+    }
     return u;
   }
 
@@ -286,8 +290,8 @@ class Loader {
     // A bias is one Gaussian vector per sample: two sampled inputs, so that sampling plans and
     // rank correlations apply to it like to any other input.
     if (w.uncertainty == WindUncertaintyModel::bias && w.speed_sd > 0.0) {
-      sampled("wind.bias_east", Uncertain::normal(0.0, w.speed_sd));
-      sampled("wind.bias_north", Uncertain::normal(0.0, w.speed_sd));
+      w.bias_east = sampled("wind.bias_east", Uncertain::normal(0.0, w.speed_sd));
+      w.bias_north = sampled("wind.bias_north", Uncertain::normal(0.0, w.speed_sd));
     }
     if (w.uncertainty == WindUncertaintyModel::layered)
       w.correlation_length = u.number("correlation_length", kPositive, true).value_or(1.0);

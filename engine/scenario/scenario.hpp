@@ -1,7 +1,9 @@
 #pragma once
 // The scenario: everything a study or a trace needs, parsed and validated once into an immutable
 // model (see docs/scenario.md for every key, unit, default and range). Uncertain inputs are kept
-// as `Uncertain` values; `sampled_inputs` names every one that is a distribution by its key path.
+// as `Uncertain` values; `sampled_inputs` names every one that is a distribution by its key path,
+// and each such value carries its place in that list (Uncertain::sampled_index), the handle by
+// which samples give it a value.
 #include <cstdint>
 #include <memory>
 #include <optional>
@@ -40,9 +42,10 @@ struct WindSpec {
   std::vector<WindLayer> layers;
   std::string file;  ///< when the layers came from a CSV file
   WindUncertaintyModel uncertainty = WindUncertaintyModel::none;
-  double speed_sd = 0.0;             ///< m/s, per horizontal component
-  double correlation_length = 0.0;   ///< m, "layered"
-  std::vector<std::string> members;  ///< "ensemble": profile files, as written
+  double speed_sd = 0.0;                        ///< m/s, per horizontal component
+  Uncertain bias_east = 0.0, bias_north = 0.0;  ///< "bias": the wind's offset, m/s (sampled)
+  double correlation_length = 0.0;              ///< m, "layered"
+  std::vector<std::string> members;             ///< "ensemble": profile files, as written
   std::vector<std::vector<WindLayer>> member_layers;
 };
 

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 
+#include "core/constants.hpp"
 #include "medium/us1976.hpp"
 
 namespace strewn {
@@ -33,19 +34,20 @@ ReleaseState release_state(double altitude, double east, double north, double sp
   return state;
 }
 
-FlightInputs nominal_flight(const Scenario& s, std::size_t body_index) {
+FlightInputs build_flight(const Scenario& s, std::size_t body_index, const InputValues& value,
+                          CanopyState canopy) {
   const BodySpec& spec = s.bodies.at(body_index);
   FlightInputs in;
   Body& body = in.body;
-  body.mass = spec.mass.nominal();
+  body.mass = value(spec.mass);
   body.drag.model = spec.drag_model;
-  body.drag.cd = spec.cd.nominal();
-  body.drag.area = spec.area.nominal();
-  body.drag.diameter = spec.diameter.nominal();
-  body.drag.sphericity = spec.sphericity.nominal();
+  body.drag.cd = value(spec.cd);
+  body.drag.area = value(spec.area);
+  body.drag.diameter = value(spec.diameter);
+  body.drag.sphericity = value(spec.sphericity);
   body.drag.mach_table = spec.mach_table.get();
   if (spec.drag_model == DragModel::area) {
-    body.volume = spec.volume.nominal();
+    body.volume = value(spec.volume);
   } else {
     const double d = body.drag.diameter;
     body.volume = constants::pi * d * d * d / 6.0;  // volume-equivalent sphere
@@ -54,19 +56,24 @@ FlightInputs nominal_flight(const Scenario& s, std::size_t body_index) {
     const auto& p = *spec.parachute;
     body.has_canopy = true;
     body.canopy.trigger = p.trigger;
-    body.canopy.deploy_after = p.deploy_after.nominal();
-    body.canopy.deploy_height = p.deploy_height.nominal();
-    body.canopy.fill_time = p.fill_time.nominal();
-    body.canopy.drag_area = p.drag_area.nominal();
-    body.canopy.state = CanopyState::full;
+    body.canopy.deploy_after = value(p.deploy_after);
+    body.canopy.deploy_height = value(p.deploy_height);
+    body.canopy.fill_time = value(p.fill_time);
+    body.canopy.state = canopy;
+    if (canopy == CanopyState::full) body.canopy.drag_area = value(p.drag_area);
+    if (canopy == CanopyState::partial) body.canopy.drag_area = value(p.partial_drag_area);
   }
-  in.conditions.temperature_offset = s.medium.temperature_offset.nominal();
-  in.conditions.density_factor = s.medium.density_factor.nominal();
+  in.conditions.temperature_offset = value(s.medium.temperature_offset);
+  in.conditions.density_factor = value(s.medium.density_factor);
   const auto& r = s.release;
-  in.release = release_state(r.altitude.nominal(), r.east.nominal(), r.north.nominal(),
-                             r.speed.nominal(), r.track.nominal(), r.climb.nominal(),
-                             r.along_error.nominal(), r.cross_error.nominal(), r.delay.nominal());
+  in.release = release_state(value(r.altitude), value(r.east), value(r.north), value(r.speed),
+                             value(r.track), value(r.climb), value(r.along_error),
+                             value(r.cross_error), value(r.delay));
   return in;
+}
+
+FlightInputs nominal_flight(const Scenario& s, std::size_t body_index) {
+  return build_flight(s, body_index, InputValues::nominal());
 }
 
 }  // namespace strewn

@@ -1,6 +1,9 @@
 #pragma once
 // The immutable objects a scenario's flights share (the tabulated medium and the wind profile),
 // and the nominal flight of each body: every uncertain input at its median.
+#include <cstddef>
+#include <span>
+
 #include "flight/flight.hpp"
 #include "scenario/scenario.hpp"
 
@@ -20,6 +23,33 @@ struct FlightInputs {
   MediumConditions conditions;
   ReleaseState release;
 };
+
+/// Where a flight's inputs take their values: every input at its median (nominal), or a sample's
+/// values of the sampled inputs, read by their handles (Uncertain::sampled_index), the others at
+/// their fixed numbers.
+class InputValues {
+ public:
+  /// Every input at its median.
+  static InputValues nominal() { return InputValues({}); }
+  /// A sample's values, in the order of Scenario::sampled_inputs.
+  static InputValues of_sample(std::span<const double> values) { return InputValues(values); }
+  [[nodiscard]] double operator()(const Uncertain& input) const {
+    const int index = input.sampled_index();
+    return index >= 0 && !values_.empty() ? values_[static_cast<std::size_t>(index)]
+                                          : input.nominal();
+  }
+
+ private:
+  explicit InputValues(std::span<const double> values) : values_(values) {}
+  std::span<const double> values_;
+};
+
+/// The one builder of a flight's inputs (nominal, sampled and replayed flights alike): body
+/// `body_index` with every input's value from `values`, its canopy (if any) in `canopy` state
+/// (the full or partial drag area; none when failed). The burst velocity, a sample's random
+/// choice, is the caller's.
+FlightInputs build_flight(const Scenario& scenario, std::size_t body_index,
+                          const InputValues& values, CanopyState canopy = CanopyState::full);
 
 /// The nominal flight of body `body_index`: every input at its median, the canopy fully opened,
 /// no burst velocity (its direction is random; `trace` says so).

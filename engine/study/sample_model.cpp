@@ -16,52 +16,8 @@ std::uint32_t body_purpose(std::uint32_t base, std::size_t body) {
 }
 }  // namespace
 
-SampleModel::Parameter SampleModel::parameter(const std::string& name, const Uncertain& u) const {
-  Parameter p;
-  p.fixed = u.nominal();
-  const auto& inputs = sampler_.inputs();
-  for (std::size_t i = 0; i < inputs.size(); ++i)
-    if (inputs[i].name == name) p.index = static_cast<int>(i);
-  return p;
-}
-
 SampleModel::SampleModel(const Scenario& s, const World& world, std::uint64_t samples)
     : scenario_(s), world_(world), sampler_(s, samples) {
-  for (const auto& b : s.bodies) {
-    const std::string n = b.name + ".", d = n + "drag.", c = n + "parachute.";
-    BodyParameters p;
-    p.mass = parameter(n + "mass", b.mass);
-    p.cd = parameter(d + "cd", b.cd);
-    p.area = parameter(d + "area", b.area);
-    p.diameter = parameter(d + "diameter", b.diameter);
-    p.sphericity = parameter(d + "sphericity", b.sphericity);
-    p.volume = parameter(d + "volume", b.volume);
-    if (b.parachute) {
-      const auto& q = *b.parachute;
-      p.deploy_after = parameter(c + "deploy_after", q.deploy_after);
-      p.deploy_height = parameter(c + "deploy_height", q.deploy_height);
-      p.fill_time = parameter(c + "fill_time", q.fill_time);
-      p.drag_area = parameter(c + "drag_area", q.drag_area);
-      p.partial_drag_area = parameter(c + "partial_drag_area", q.partial_drag_area);
-    }
-    bodies_.push_back(p);
-  }
-  const auto& r = s.release;
-  altitude_ = parameter("release.altitude", r.altitude);
-  east_ = parameter("release.east", r.east);
-  north_ = parameter("release.north", r.north);
-  speed_ = parameter("release.speed", r.speed);
-  track_ = parameter("release.track", r.track);
-  climb_ = parameter("release.climb", r.climb);
-  along_ = parameter("release.along_error", r.along_error);
-  cross_ = parameter("release.cross_error", r.cross_error);
-  delay_ = parameter("release.delay", r.delay);
-  burst_ = parameter("release.burst.speed", r.burst_speed);
-  temperature_offset_ = parameter("medium.temperature_offset", s.medium.temperature_offset);
-  density_factor_ = parameter("medium.density_factor", s.medium.density_factor);
-  bias_east_ = parameter("wind.bias_east", Uncertain(0.0));
-  bias_north_ = parameter("wind.bias_north", Uncertain(0.0));
-
   // Perturbations need layers to act on: calm air becomes one calm layer at the ground.
   base_wind_ = world.wind;
   if (base_wind_.calm() && (s.wind.uncertainty == WindUncertaintyModel::bias ||
@@ -112,7 +68,8 @@ void SampleModel::prepare(std::uint64_t sample, Workspace& w) const {
       w.wind_ = &world_.wind;
       return;
     case WindUncertaintyModel::bias: {
-      const double de = bias_east_.get(w.values_), dn = bias_north_.get(w.values_);
+      const InputValues value = InputValues::of_sample(w.values_);
+      const double de = value(scenario_.wind.bias_east), dn = value(scenario_.wind.bias_north);
       std::fill(w.add_east_.begin(), w.add_east_.end(), de);
       std::fill(w.add_north_.begin(), w.add_north_.end(), dn);
       break;
@@ -150,49 +107,20 @@ void SampleModel::prepare(std::uint64_t sample, Workspace& w) const {
 
 FlightInputs SampleModel::flight(std::uint64_t sample, std::size_t b, const Workspace& w,
                                  std::span<double> choices) const {
-  const auto v = std::span<const double>(w.values_);
+  const InputValues value = InputValues::of_sample(w.values_);
   const BodySpec& spec = scenario_.bodies[b];
-  const BodyParameters& p = bodies_[b];
-  FlightInputs in;
-  Body& body = in.body;
-  body.mass = p.mass.get(v);
-  body.drag.model = spec.drag_model;
-  body.drag.cd = p.cd.get(v);
-  body.drag.area = p.area.get(v);
-  body.drag.diameter = p.diameter.get(v);
-  body.drag.sphericity = p.sphericity.get(v);
-  body.drag.mach_table = spec.mach_table.get();
-  if (spec.drag_model == DragModel::area) {
-    body.volume = p.volume.get(v);
-  } else {
-    const double d = body.drag.diameter;
-    body.volume = constants::pi * d * d * d / 6.0;
-  }
+  // Failure, partial opening or full opening, from the sample's own canopy stream.
+  CanopyState canopy = CanopyState::full;
   if (spec.parachute) {
     const auto& q = *spec.parachute;
-    body.has_canopy = true;
-    body.canopy.trigger = q.trigger;
-    body.canopy.deploy_after = p.deploy_after.get(v);
-    body.canopy.deploy_height = p.deploy_height.get(v);
-    body.canopy.fill_time = p.fill_time.get(v);
-    // Failure, partial opening or full opening, from the sample's own canopy stream.
     const double u =
         RandomStream(scenario_.study.seed, sample, body_purpose(purpose::canopy, b)).uniform();
-    if (u < q.failure_probability) {
-      body.canopy.state = CanopyState::failed;
-    } else if (u < q.failure_probability + q.partial_probability) {
-      body.canopy.state = CanopyState::partial;
-      body.canopy.drag_area = p.partial_drag_area.get(v);
-    } else {
-      body.canopy.state = CanopyState::full;
-      body.canopy.drag_area = p.drag_area.get(v);
-    }
+    if (u < q.failure_probability)
+      canopy = CanopyState::failed;
+    else if (u < q.failure_probability + q.partial_probability)
+      canopy = CanopyState::partial;
   }
-  in.conditions.temperature_offset = temperature_offset_.get(v);
-  in.conditions.density_factor = density_factor_.get(v);
-  in.release =
-      release_state(altitude_.get(v), east_.get(v), north_.get(v), speed_.get(v), track_.get(v),
-                    climb_.get(v), along_.get(v), cross_.get(v), delay_.get(v));
+  FlightInputs in = build_flight(scenario_, b, value, canopy);
   if (scenario_.release.has_burst) {
     // An isotropic direction: uniform height on [-1, 1] and uniform azimuth give uniform points
     // on the sphere (Archimedes' hat-box theorem, common practice).
@@ -200,7 +128,8 @@ FlightInputs SampleModel::flight(std::uint64_t sample, std::size_t b, const Work
     const double z = 2.0 * stream.uniform() - 1.0;
     const double phi = 2.0 * constants::pi * stream.uniform();
     const double r = std::sqrt(std::max(0.0, 1.0 - z * z));
-    const Vec3 burst = burst_.get(v) * Vec3(r * std::cos(phi), r * std::sin(phi), z);
+    const Vec3 burst =
+        value(scenario_.release.burst_speed) * Vec3(r * std::cos(phi), r * std::sin(phi), z);
     in.release.velocity += burst;
     if (!choices.empty()) std::copy(burst.data(), burst.data() + 3, choices.end() - 3);
   }

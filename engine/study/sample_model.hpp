@@ -16,12 +16,15 @@ namespace strewn {
 class SampleModel {
  public:
   /// Throws ScenarioError for correlations that cannot hold together.
+  /// The model refers to `scenario` and `world`, which must outlive it (temporaries are refused).
   SampleModel(const Scenario& scenario, const World& world, std::uint64_t samples);
+  SampleModel(const Scenario&, World&&, std::uint64_t) = delete;
+  SampleModel(Scenario&&, const World&, std::uint64_t) = delete;
 
   [[nodiscard]] const Scenario& scenario() const { return scenario_; }
   [[nodiscard]] const World& world() const { return world_; }
   [[nodiscard]] const InputSampler& sampler() const { return sampler_; }
-  [[nodiscard]] std::size_t bodies() const { return bodies_.size(); }
+  [[nodiscard]] std::size_t bodies() const { return scenario_.bodies.size(); }
 
   /// The sample's own random choices that flight() records (besides the canopy state, a column of
   /// its own), by name: "wind.member" (the ensemble member drawn, counted from 0),
@@ -57,26 +60,9 @@ class SampleModel {
                                     std::span<double> choices = {}) const;
 
  private:
-  // A flight parameter: a fixed number, or the value of sampled input `index`.
-  struct Parameter {
-    double fixed = 0.0;
-    int index = -1;
-    [[nodiscard]] double get(std::span<const double> values) const {
-      return index < 0 ? fixed : values[static_cast<std::size_t>(index)];
-    }
-  };
-  Parameter parameter(const std::string& name, const Uncertain& u) const;
-  struct BodyParameters {
-    Parameter mass, cd, area, diameter, sphericity, volume;
-    Parameter deploy_after, deploy_height, fill_time, drag_area, partial_drag_area;
-  };
-
   const Scenario& scenario_;
   const World& world_;
   InputSampler sampler_;
-  std::vector<BodyParameters> bodies_;
-  Parameter altitude_, east_, north_, speed_, track_, climb_, along_, cross_, delay_, burst_;
-  Parameter temperature_offset_, density_factor_, bias_east_, bias_north_;
   WindProfile base_wind_;             // the profile perturbations apply to
   std::vector<WindProfile> members_;  // ensemble
   Eigen::MatrixXd layer_factor_;      // layered: Cholesky factor of exp(-|dz|/L)

@@ -4,6 +4,7 @@
 
 #include <limits>
 #include <string>
+#include <vector>
 
 #include "core/errors.hpp"
 #include "core/text.hpp"
@@ -214,6 +215,112 @@ TEST(Text, NumbersAndPrintfText) {
   EXPECT_EQ(printf_text("%.2f m", 3.14159), "3.14 m");
   EXPECT_EQ(printf_text("%s", std::string(300, 'x').c_str()).size(), 300u);
   EXPECT_EQ(closest_match("seeed", {"seed", "samples"}), "seed");
+}
+
+// Every uncertain input is read by its handle, never by its name: each distribution the loader
+// reads carries its place among the sampled inputs, and the one flight builder puts each sampled
+// value where it belongs (a value in the wrong place, or one left at its nominal, fails here).
+TEST(Scenario, EveryInputIsReadByItsHandle) {
+  const std::string text = R"(title = "every input uncertain"
+[site]
+ground = 100.0
+[medium]
+temperature_offset = { dist = "normal", mean = 0.0, sd = 3.0 }
+density_factor = { dist = "uniform", min = 0.95, max = 1.05 }
+[wind]
+layers = [ { altitude = 100.0, speed = 3.0, from = 240.0 }, { altitude = 900.0, speed = 6.0, from = 250.0 } ]
+[wind.uncertainty]
+model = "bias"
+speed_sd = 1.5
+[release]
+altitude = { dist = "normal", mean = 800.0, sd = 5.0 }
+east = { dist = "normal", mean = 0.0, sd = 2.0 }
+north = { dist = "normal", mean = 0.0, sd = 2.0 }
+speed = { dist = "uniform", min = 40.0, max = 45.0 }
+track = { dist = "normal", mean = 90.0, sd = 2.0 }
+climb = { dist = "normal", mean = 0.0, sd = 0.5 }
+along_error = { dist = "normal", mean = 0.0, sd = 20.0 }
+cross_error = { dist = "normal", mean = 0.0, sd = 8.0 }
+delay = { dist = "uniform", min = 0.0, max = 0.4 }
+[release.burst]
+speed = { dist = "uniform", min = 0.0, max = 3.0 }
+[[body]]
+name = "crate"
+mass = { dist = "normal", mean = 60.0, sd = 2.0 }
+[body.drag]
+model = "area"
+cd = { dist = "uniform", min = 0.9, max = 1.1 }
+area = { dist = "uniform", min = 0.4, max = 0.5 }
+volume = { dist = "uniform", min = 0.10, max = 0.12 }
+[body.parachute]
+deploy_after = { dist = "uniform", min = 2.0, max = 3.0 }
+fill_time = { dist = "uniform", min = 1.0, max = 2.0 }
+drag_area = { dist = "uniform", min = 30.0, max = 35.0 }
+partial_probability = 0.1
+partial_drag_area = { dist = "uniform", min = 5.0, max = 6.0 }
+[[body]]
+name = "ball"
+mass = { dist = "uniform", min = 1.0, max = 1.2 }
+[body.drag]
+model = "shape"
+diameter = { dist = "uniform", min = 0.10, max = 0.12 }
+sphericity = { dist = "uniform", min = 0.8, max = 0.9 }
+[body.parachute]
+deploy_height = { dist = "uniform", min = 200.0, max = 300.0 }
+fill_time = 1.0
+drag_area = 2.0
+)";
+  const Scenario s = parse_scenario(text, "handles.toml");
+  // 4 medium and wind, 10 release, 8 crate and 4 ball inputs, every one a distribution.
+  ASSERT_EQ(s.sampled_inputs.size(), 26u);
+  std::vector<double> values;
+  for (std::size_t i = 0; i < s.sampled_inputs.size(); ++i) {
+    EXPECT_EQ(s.sampled_inputs[i].distribution.sampled_index(), static_cast<int>(i))
+        << s.sampled_inputs[i].name;
+    values.push_back(1000.0 + static_cast<double>(i));  // a value that names its input
+  }
+  auto value_of = [&](const std::string& name) {
+    for (std::size_t i = 0; i < s.sampled_inputs.size(); ++i)
+      if (s.sampled_inputs[i].name == name) return values[i];
+    ADD_FAILURE() << "no sampled input " << name;
+    return 0.0;
+  };
+  const InputValues sample = InputValues::of_sample(values);
+  EXPECT_EQ(sample(s.wind.bias_east), value_of("wind.bias_east"));
+  EXPECT_EQ(sample(s.wind.bias_north), value_of("wind.bias_north"));
+  EXPECT_EQ(sample(s.release.burst_speed), value_of("release.burst.speed"));
+
+  const FlightInputs crate = build_flight(s, 0, sample, CanopyState::full);
+  EXPECT_EQ(crate.body.mass, value_of("crate.mass"));
+  EXPECT_EQ(crate.body.drag.cd, value_of("crate.drag.cd"));
+  EXPECT_EQ(crate.body.drag.area, value_of("crate.drag.area"));
+  EXPECT_EQ(crate.body.volume, value_of("crate.drag.volume"));
+  EXPECT_EQ(crate.body.canopy.deploy_after, value_of("crate.parachute.deploy_after"));
+  EXPECT_EQ(crate.body.canopy.fill_time, value_of("crate.parachute.fill_time"));
+  EXPECT_EQ(crate.body.canopy.drag_area, value_of("crate.parachute.drag_area"));
+  EXPECT_EQ(crate.conditions.temperature_offset, value_of("medium.temperature_offset"));
+  EXPECT_EQ(crate.conditions.density_factor, value_of("medium.density_factor"));
+  const ReleaseState expected = release_state(
+      value_of("release.altitude"), value_of("release.east"), value_of("release.north"),
+      value_of("release.speed"), value_of("release.track"), value_of("release.climb"),
+      value_of("release.along_error"), value_of("release.cross_error"), value_of("release.delay"));
+  EXPECT_EQ(crate.release.position, expected.position);
+  EXPECT_EQ(crate.release.velocity, expected.velocity);
+  EXPECT_EQ(build_flight(s, 0, sample, CanopyState::partial).body.canopy.drag_area,
+            value_of("crate.parachute.partial_drag_area"));
+  EXPECT_EQ(build_flight(s, 0, sample, CanopyState::failed).body.canopy.state, CanopyState::failed);
+
+  const FlightInputs ball = build_flight(s, 1, sample);
+  EXPECT_EQ(ball.body.mass, value_of("ball.mass"));
+  EXPECT_EQ(ball.body.drag.diameter, value_of("ball.drag.diameter"));
+  EXPECT_EQ(ball.body.drag.sphericity, value_of("ball.drag.sphericity"));
+  EXPECT_EQ(ball.body.canopy.deploy_height, value_of("ball.parachute.deploy_height"));
+
+  // The nominal flight: every input at its median, through the same builder.
+  const FlightInputs nominal = nominal_flight(s, 0);
+  EXPECT_EQ(nominal.body.mass, s.bodies[0].mass.nominal());
+  EXPECT_DOUBLE_EQ(nominal.body.drag.cd, 1.0);  // the median of uniform(0.9, 1.1)
+  EXPECT_EQ(nominal.body.canopy.drag_area, s.bodies[0].parachute->drag_area.nominal());
 }
 
 }  // namespace
