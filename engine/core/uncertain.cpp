@@ -10,24 +10,6 @@
 
 namespace strewn {
 
-const char* to_string(DistributionKind kind) {
-  switch (kind) {
-    case DistributionKind::fixed:
-      return "fixed";
-    case DistributionKind::normal:
-      return "normal";
-    case DistributionKind::lognormal:
-      return "lognormal";
-    case DistributionKind::uniform:
-      return "uniform";
-    case DistributionKind::triangular:
-      return "triangular";
-    case DistributionKind::choice:
-      return "choice";
-  }
-  return "?";
-}
-
 Uncertain Uncertain::normal(double mean, double sd, double lower, double upper) {
   Uncertain u;
   u.kind_ = DistributionKind::normal;

@@ -3,18 +3,32 @@
 // The distributions are the interface's: normal (mean, sd), lognormal (median, sigma of the log),
 // uniform (min, max), triangular (min, mode, max), choice (values, optional weights); `min`/`max`
 // truncate normal and lognormal. Quantiles come from Boost.Math's distributions.
+#include <array>
 #include <cstddef>
 #include <limits>
 #include <string>
 #include <utility>
 #include <vector>
 
+#include "core/enum_names.hpp"
+
 namespace strewn {
 
 enum class DistributionKind { fixed, normal, lognormal, uniform, triangular, choice };
 
 /// Name used in scenario files ("normal", ...); "fixed" for a plain number.
-const char* to_string(DistributionKind kind);
+template <>
+struct EnumNames<DistributionKind> {
+  static constexpr std::array names{std::pair{DistributionKind::fixed, "fixed"},
+                                    std::pair{DistributionKind::normal, "normal"},
+                                    std::pair{DistributionKind::lognormal, "lognormal"},
+                                    std::pair{DistributionKind::uniform, "uniform"},
+                                    std::pair{DistributionKind::triangular, "triangular"},
+                                    std::pair{DistributionKind::choice, "choice"}};
+};
+inline const char* to_string(DistributionKind kind) {
+  return name_of(kind);
+}
 
 class Uncertain {
  public:

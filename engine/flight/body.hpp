@@ -1,9 +1,12 @@
 #pragma once
 // What one flight carries: the body's numbers (already sampled or nominal), its parachute stage,
 // where and how it is released, and the medium it falls through.
+#include <array>
 #include <cstdint>
 #include <limits>
+#include <utility>
 
+#include "core/enum_names.hpp"
 #include "core/geometry.hpp"
 #include "flight/drag.hpp"
 #include "medium/medium.hpp"
@@ -18,7 +21,15 @@ enum class CanopyState : std::uint8_t {
   partial = 2,  ///< opened only partly (the partial drag area)
   failed = 3,   ///< never opened
 };
-const char* to_string(CanopyState state);
+template <>
+struct EnumNames<CanopyState> {
+  static constexpr std::array names{
+      std::pair{CanopyState::none, "none"}, std::pair{CanopyState::full, "full"},
+      std::pair{CanopyState::partial, "partial"}, std::pair{CanopyState::failed, "failed"}};
+};
+inline const char* to_string(CanopyState state) {
+  return name_of(state);
+}
 
 /// A parachute stage. Deployment by time after release or by height above the ground; then the
 /// drag area ramps linearly in time from the body's own Cd A to the canopy's Cd S over fill_time.

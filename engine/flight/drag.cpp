@@ -8,20 +8,6 @@
 
 namespace strewn {
 
-const char* to_string(DragModel model) {
-  switch (model) {
-    case DragModel::sphere:
-      return "sphere";
-    case DragModel::shape:
-      return "shape";
-    case DragModel::area:
-      return "area";
-    case DragModel::stokes:
-      return "stokes";
-  }
-  return "?";
-}
-
 MachTable::MachTable(std::vector<double> mach, std::vector<double> factor)
     : mach_(std::move(mach)), factor_(std::move(factor)) {
   if (mach_.size() != factor_.size() || mach_.empty())

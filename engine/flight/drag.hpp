@@ -10,15 +10,26 @@
 // - area:   constant drag coefficient on a reference area (Newton regime, Re > ~1e3).
 // - stokes: linear drag only, F = -3 pi mu D u (Stokes 1851), valid Re < ~1 (common practice).
 // An optional Mach table multiplies Cd (not for stokes).
+#include <array>
 #include <string>
+#include <utility>
 #include <vector>
 
+#include "core/enum_names.hpp"
 #include "medium/medium.hpp"
 
 namespace strewn {
 
 enum class DragModel { sphere, shape, area, stokes };
-const char* to_string(DragModel model);
+template <>
+struct EnumNames<DragModel> {
+  static constexpr std::array names{
+      std::pair{DragModel::sphere, "sphere"}, std::pair{DragModel::shape, "shape"},
+      std::pair{DragModel::area, "area"}, std::pair{DragModel::stokes, "stokes"}};
+};
+inline const char* to_string(DragModel model) {
+  return name_of(model);
+}
 
 /// A piecewise-linear multiplier of Cd against Mach number, held constant beyond its ends.
 class MachTable {

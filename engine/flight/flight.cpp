@@ -9,38 +9,6 @@
 
 namespace strewn {
 
-const char* to_string(FlightStatus status) {
-  switch (status) {
-    case FlightStatus::landed:
-      return "landed";
-    case FlightStatus::step_limit:
-      return "step_limit";
-    case FlightStatus::time_limit:
-      return "time_limit";
-    case FlightStatus::step_too_small:
-      return "step_too_small";
-    case FlightStatus::non_finite:
-      return "non_finite";
-    case FlightStatus::floats:
-      return "floats";
-  }
-  return "?";
-}
-
-const char* to_string(CanopyState state) {
-  switch (state) {
-    case CanopyState::none:
-      return "none";
-    case CanopyState::full:
-      return "full";
-    case CanopyState::partial:
-      return "partial";
-    case CanopyState::failed:
-      return "failed";
-  }
-  return "?";
-}
-
 namespace {
 
 // The time in [a, b] at which the altitude of the dense-output polynomial reaches `level`, given

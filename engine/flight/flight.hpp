@@ -22,9 +22,12 @@
 // and the rest of the fall uses the quasi-steady form. Not used during parachute stages.
 //
 // Every flight ends: a step cap, a flight-time cap, and a status per flight.
+#include <array>
 #include <cstdint>
 #include <limits>
+#include <utility>
 
+#include "core/enum_names.hpp"
 #include "flight/body.hpp"
 #include "flight/forces.hpp"
 #include "flight/model_range.hpp"
@@ -39,7 +42,18 @@ enum class FlightStatus : std::uint8_t {
   non_finite = 4,      ///< NaN or infinity in the state or forces
   floats = 5,          ///< lighter than the medium at the ground: it can never land
 };
-const char* to_string(FlightStatus status);
+template <>
+struct EnumNames<FlightStatus> {
+  static constexpr std::array names{std::pair{FlightStatus::landed, "landed"},
+                                    std::pair{FlightStatus::step_limit, "step_limit"},
+                                    std::pair{FlightStatus::time_limit, "time_limit"},
+                                    std::pair{FlightStatus::step_too_small, "step_too_small"},
+                                    std::pair{FlightStatus::non_finite, "non_finite"},
+                                    std::pair{FlightStatus::floats, "floats"}};
+};
+inline const char* to_string(FlightStatus status) {
+  return name_of(status);
+}
 
 struct FlightOptions {
   double tolerance = 0.05;  ///< m, target accuracy of the impact point

@@ -7,28 +7,6 @@
 
 namespace strewn {
 
-const char* to_string(ModelRangeFlag flag) {
-  switch (flag) {
-    case kReynoldsAboveLaw:
-      return "reynolds_above_law";
-    case kReynoldsBelowLaw:
-      return "reynolds_below_law";
-    case kMachBeyondTable:
-      return "mach_beyond_table";
-    case kMachWithoutTable:
-      return "mach_without_table";
-    case kAboveMedium:
-      return "above_medium";
-    case kAboveWind:
-      return "above_wind";
-    case kLongFlight:
-      return "long_flight";
-    case kFrameOffset:
-      return "frame_offset";
-  }
-  return "?";
-}
-
 ModelLimits model_limits(const Body& body, const Environment& environment) {
   ModelLimits l;
   l.drag_model = body.drag.model;

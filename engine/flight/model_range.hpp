@@ -27,11 +27,14 @@
 //   impact speed over g, an upper value), a ballistic one drifts by Omega |v| T^2 = Omega L T.
 //   L is taken as the horizontal range plus the height fallen plus twice any climb above the
 //   release. An order-of-magnitude estimate meant to say when the frame matters, not a correction.
+#include <array>
 #include <cstdint>
 #include <limits>
 #include <string>
+#include <utility>
 #include <vector>
 
+#include "core/enum_names.hpp"
 #include "flight/body.hpp"
 
 namespace strewn {
@@ -56,7 +59,20 @@ inline constexpr int kModelRangeFlagCount = 8;
 inline constexpr double kLongFlightTime = 3600.0;
 
 /// A flag's name in files ("reynolds_above_law", ...).
-const char* to_string(ModelRangeFlag flag);
+template <>
+struct EnumNames<ModelRangeFlag> {
+  static constexpr std::array names{std::pair{kReynoldsAboveLaw, "reynolds_above_law"},
+                                    std::pair{kReynoldsBelowLaw, "reynolds_below_law"},
+                                    std::pair{kMachBeyondTable, "mach_beyond_table"},
+                                    std::pair{kMachWithoutTable, "mach_without_table"},
+                                    std::pair{kAboveMedium, "above_medium"},
+                                    std::pair{kAboveWind, "above_wind"},
+                                    std::pair{kLongFlight, "long_flight"},
+                                    std::pair{kFrameOffset, "frame_offset"}};
+};
+inline const char* to_string(ModelRangeFlag flag) {
+  return name_of(flag);
+}
 
 /// The limits a flight is held against (from its body and environment).
 struct ModelLimits {

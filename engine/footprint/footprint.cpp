@@ -758,16 +758,6 @@ double InputSensitivity::strength() const {
   return most;
 }
 
-const char* to_string(CentreRule rule) {
-  return rule == CentreRule::mean ? "mean" : rule == CentreRule::nominal ? "nominal" : "point";
-}
-
-const char* to_string(RuleStatus status) {
-  return status == RuleStatus::within    ? "within"
-         : status == RuleStatus::exceeds ? "exceeds"
-                                         : "undetermined";
-}
-
 double Footprint::widest_relative_width() const {
   double widest = 0.0;
   for (const auto& g : groups)

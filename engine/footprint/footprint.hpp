@@ -15,8 +15,10 @@
 #include <optional>
 #include <span>
 #include <string>
+#include <utility>
 #include <vector>
 
+#include "core/enum_names.hpp"
 #include "footprint/containment.hpp"
 #include "footprint/planar.hpp"
 
@@ -44,7 +46,15 @@ struct ImpactTable {
 };
 
 enum class CentreRule { mean, nominal, point };
-const char* to_string(CentreRule rule);
+template <>
+struct EnumNames<CentreRule> {
+  static constexpr std::array names{std::pair{CentreRule::mean, "mean"},
+                                    std::pair{CentreRule::nominal, "nominal"},
+                                    std::pair{CentreRule::point, "point"}};
+};
+inline const char* to_string(CentreRule rule) {
+  return name_of(rule);
+}
 
 /// The user's local acceptance criteria ([rules]); strewn reports against them, never decides.
 struct RuleLimits {
@@ -162,7 +172,15 @@ struct GroupFootprint {
 };
 
 enum class RuleStatus { within, exceeds, undetermined };
-const char* to_string(RuleStatus status);
+template <>
+struct EnumNames<RuleStatus> {
+  static constexpr std::array names{std::pair{RuleStatus::within, "within"},
+                                    std::pair{RuleStatus::exceeds, "exceeds"},
+                                    std::pair{RuleStatus::undetermined, "undetermined"}};
+};
+inline const char* to_string(RuleStatus status) {
+  return name_of(status);
+}
 
 /// One of the user's criteria held against the study: `within` when the upper confidence bound of
 /// the probability is at or below the accepted probability, `exceeds` when the lower bound is

@@ -15,6 +15,7 @@
 // remains is the linear interpolation of the exponential pressure and density, a relative error
 // below 3e-6 (bounded by tests/unit/medium_test.cpp).
 #include <algorithm>
+#include <array>
 #include <bit>
 #include <cstdint>
 #include <limits>
@@ -23,6 +24,7 @@
 #include <vector>
 
 #include "core/constants.hpp"
+#include "core/enum_names.hpp"
 
 namespace strewn {
 
@@ -147,6 +149,13 @@ class Medium {
   double highest_temperature_ = std::numeric_limits<double>::quiet_NaN();
   double uniform_density_ = 0.0, uniform_viscosity_ = 0.0;
   double uniform_sound_speed_ = std::numeric_limits<double>::infinity();
+};
+
+template <>
+struct EnumNames<Medium::Kind> {
+  static constexpr std::array names{std::pair{Medium::Kind::us1976, "us1976"},
+                                    std::pair{Medium::Kind::profile, "profile"},
+                                    std::pair{Medium::Kind::uniform, "uniform"}};
 };
 
 }  // namespace strewn

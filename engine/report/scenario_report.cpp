@@ -49,9 +49,6 @@ std::string as_read(const Scenario& s, const std::string& file) {
              ? (std::filesystem::path(s.path).parent_path() / p).lexically_normal().string()
              : file;
 }
-const char* medium_name(Medium::Kind k) {
-  return k == Medium::Kind::us1976 ? "us1976" : k == Medium::Kind::profile ? "profile" : "uniform";
-}
 }  // namespace
 
 nlohmann::json scenario_json(const Scenario& s) {
@@ -61,7 +58,7 @@ nlohmann::json scenario_json(const Scenario& s) {
   if (s.site.latitude) j["site"]["latitude"] = *s.site.latitude;
   if (s.site.longitude) j["site"]["longitude"] = *s.site.longitude;
   auto& m = j["medium"];
-  m = {{"model", medium_name(s.medium.model)},
+  m = {{"model", name_of(s.medium.model)},
        {"density_factor", uncertain_json(s.medium.density_factor)}};
   if (s.medium.model != Medium::Kind::uniform)
     m["temperature_offset"] = uncertain_json(s.medium.temperature_offset);

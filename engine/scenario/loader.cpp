@@ -16,32 +16,6 @@ namespace strewn {
 
 using namespace scenario_detail;
 
-const char* to_string(WindUncertaintyModel model) {
-  switch (model) {
-    case WindUncertaintyModel::none:
-      return "none";
-    case WindUncertaintyModel::bias:
-      return "bias";
-    case WindUncertaintyModel::layered:
-      return "layered";
-    case WindUncertaintyModel::ensemble:
-      return "ensemble";
-  }
-  return "?";
-}
-
-const char* to_string(SamplingPlan plan) {
-  switch (plan) {
-    case SamplingPlan::random:
-      return "random";
-    case SamplingPlan::latin:
-      return "latin";
-    case SamplingPlan::sobol:
-      return "sobol";
-  }
-  return "?";
-}
-
 int Scenario::body_index(const std::string& name) const {
   for (std::size_t i = 0; i < bodies.size(); ++i)
     if (bodies[i].name == name) return static_cast<int>(i);
@@ -137,10 +111,8 @@ class Loader {
 
   void read_medium(Table medium) {
     auto& m = scenario_.medium;
-    const auto model = medium.text("model", {"us1976", "profile", "uniform"});
-    m.model = model == "profile"   ? Medium::Kind::profile
-              : model == "uniform" ? Medium::Kind::uniform
-                                   : Medium::Kind::us1976;
+    const auto model = medium.text("model", enum_names<Medium::Kind>());
+    m.model = enum_from_name<Medium::Kind>(model.value_or("")).value_or(Medium::Kind::us1976);
     m.density_factor =
         sampled("medium.density_factor", medium.uncertain("density_factor", 1.0, kPositive));
     const bool gas = m.model != Medium::Kind::uniform;
@@ -279,11 +251,9 @@ class Loader {
       w.layers = read_wind_file(read_from(*file), wind.key_path("file"), wind.line_of("file"));
     }
     Table u = wind.table("uncertainty");
-    const auto model = u.text("model", {"none", "bias", "layered", "ensemble"});
-    w.uncertainty = model == "bias"       ? WindUncertaintyModel::bias
-                    : model == "layered"  ? WindUncertaintyModel::layered
-                    : model == "ensemble" ? WindUncertaintyModel::ensemble
-                                          : WindUncertaintyModel::none;
+    const auto model = u.text("model", enum_names<WindUncertaintyModel>());
+    w.uncertainty = enum_from_name<WindUncertaintyModel>(model.value_or(""))
+                        .value_or(WindUncertaintyModel::none);
     const bool spread = w.uncertainty == WindUncertaintyModel::bias ||
                         w.uncertainty == WindUncertaintyModel::layered;
     if (spread) w.speed_sd = u.number("speed_sd", kNonNegative, true).value_or(0.0);
@@ -408,13 +378,9 @@ class Loader {
     Table drag = t.table("drag");
     if (!drag.present())
       diagnostics_.add(t.key_path("drag"), t.line(), "is required ([body.drag] with a model)");
-    const auto model = drag.present()
-                           ? drag.text("model", {"sphere", "shape", "area", "stokes"}, true)
-                           : std::nullopt;
-    b.drag_model = model == "sphere"   ? DragModel::sphere
-                   : model == "shape"  ? DragModel::shape
-                   : model == "stokes" ? DragModel::stokes
-                                       : DragModel::area;
+    const auto model =
+        drag.present() ? drag.text("model", enum_names<DragModel>(), true) : std::nullopt;
+    b.drag_model = enum_from_name<DragModel>(model.value_or("")).value_or(DragModel::area);
     const std::string dp = prefix + "drag.";
     if (model == "area") {
       if (auto cd = drag.uncertain("cd", kPositive, true)) b.cd = sampled(dp + "cd", *cd);
@@ -556,10 +522,8 @@ class Loader {
       else
         st.seed = static_cast<std::uint64_t>(i->get());
     }
-    const auto plan = s.text("sampling", {"random", "latin", "sobol"});
-    st.sampling = plan == "latin"   ? SamplingPlan::latin
-                  : plan == "sobol" ? SamplingPlan::sobol
-                                    : SamplingPlan::random;
+    const auto plan = s.text("sampling", enum_names<SamplingPlan>());
+    st.sampling = enum_from_name<SamplingPlan>(plan.value_or("")).value_or(SamplingPlan::random);
     if (auto levels = s.numbers("levels", kOpenUnit)) {
       if (levels->empty())
         diagnostics_.add(s.key_path("levels"), s.line_of("levels"), "lists no level");

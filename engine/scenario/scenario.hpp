@@ -4,12 +4,15 @@
 // as `Uncertain` values; `sampled_inputs` names every one that is a distribution by its key path,
 // and each such value carries its place in that list (Uncertain::sampled_index), the handle by
 // which samples give it a value.
+#include <array>
 #include <cstdint>
 #include <memory>
 #include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
+#include "core/enum_names.hpp"
 #include "core/uncertain.hpp"
 #include "flight/body.hpp"
 #include "flight/drag.hpp"
@@ -36,7 +39,16 @@ struct MediumSpec {
 };
 
 enum class WindUncertaintyModel { none, bias, layered, ensemble };
-const char* to_string(WindUncertaintyModel model);
+template <>
+struct EnumNames<WindUncertaintyModel> {
+  static constexpr std::array names{std::pair{WindUncertaintyModel::none, "none"},
+                                    std::pair{WindUncertaintyModel::bias, "bias"},
+                                    std::pair{WindUncertaintyModel::layered, "layered"},
+                                    std::pair{WindUncertaintyModel::ensemble, "ensemble"}};
+};
+inline const char* to_string(WindUncertaintyModel model) {
+  return name_of(model);
+}
 
 struct WindSpec {
   std::vector<WindLayer> layers;
@@ -94,7 +106,15 @@ struct CorrelationSpec {
 };
 
 enum class SamplingPlan { random, latin, sobol };
-const char* to_string(SamplingPlan plan);
+template <>
+struct EnumNames<SamplingPlan> {
+  static constexpr std::array names{std::pair{SamplingPlan::random, "random"},
+                                    std::pair{SamplingPlan::latin, "latin"},
+                                    std::pair{SamplingPlan::sobol, "sobol"}};
+};
+inline const char* to_string(SamplingPlan plan) {
+  return name_of(plan);
+}
 
 struct StudySpec {
   long samples = 10000;

@@ -8,6 +8,7 @@
 
 #include "core/errors.hpp"
 #include "core/text.hpp"
+#include "flight/model_range.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/world.hpp"
 
@@ -321,6 +322,35 @@ drag_area = 2.0
   EXPECT_EQ(nominal.body.mass, s.bodies[0].mass.nominal());
   EXPECT_DOUBLE_EQ(nominal.body.drag.cd, 1.0);  // the median of uniform(0.9, 1.1)
   EXPECT_EQ(nominal.body.canopy.drag_area, s.bodies[0].parachute->drag_area.nominal());
+}
+
+// Each enum's names come from its one table: every name reads back as its value, no two values
+// share a name, and a word outside the table is no value.
+template <class E>
+void expect_names_round_trip() {
+  const auto names = enum_names<E>();
+  ASSERT_FALSE(names.empty());
+  for (std::size_t i = 0; i < names.size(); ++i) {
+    const auto value = enum_from_name<E>(names[i]);
+    ASSERT_TRUE(value.has_value()) << names[i];
+    EXPECT_EQ(std::string(name_of(*value)), names[i]);
+    for (std::size_t j = 0; j < i; ++j) EXPECT_NE(names[i], names[j]);
+  }
+  EXPECT_FALSE(enum_from_name<E>("no such name").has_value());
+}
+
+TEST(Scenario, EnumNamesRoundTrip) {
+  expect_names_round_trip<DragModel>();
+  expect_names_round_trip<WindUncertaintyModel>();
+  expect_names_round_trip<SamplingPlan>();
+  expect_names_round_trip<Medium::Kind>();
+  expect_names_round_trip<DistributionKind>();
+  expect_names_round_trip<FlightStatus>();
+  expect_names_round_trip<CanopyState>();
+  expect_names_round_trip<ModelRangeFlag>();
+  // The words the scenario reference (docs/scenario.md) gives for the drag models, in its order.
+  EXPECT_EQ(enum_names<DragModel>(),
+            (std::vector<std::string>{"sphere", "shape", "area", "stokes"}));
 }
 
 }  // namespace
