@@ -207,242 +207,220 @@ struct GroupRows {
 // spend more time faulting in pages than sorting).
 using ScratchPerThread = tbb::enumerable_thread_specific<RankScratch>;
 
-GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, const GroupRows& g,
-                             const std::string& name, PlanePoint nominal, double objects,
-                             ScratchPerThread& scratches) {
-  GroupFootprint f;
-  f.name = name;
-  f.objects_per_release = objects;
-  f.rows = g.rows;
-  f.landed = g.landed.size();
-  f.failed = g.rows - f.landed;
-  const std::size_t m = g.landed.size();
-  std::vector<double> e(m), n(m);
+// The landed impacts of a group and what every section of its statistics reads.
+struct GroupImpacts {
+  const ImpactTable& table;
+  const FootprintSettings& settings;
+  const GroupRows& rows;
+  std::vector<double> e, n;  // east and north of the landed rows, in row order
+  std::size_t m = 0;         // landed rows
+};
+
+// Containment about the centre; failed rows at +inf.
+void containment_section(const GroupImpacts& in, GroupFootprint& f, std::vector<double>& r_dist,
+                         RankScratch& scratch) {
+  const auto& [t, s, g, e, n, m] = in;
+  std::vector<double> sorted, distance(m);
   for (std::size_t k = 0; k < m; ++k) {
-    e[k] = t.east[g.landed[k]];
-    n[k] = t.north[g.landed[k]];
+    distance[k] = planar_distance(e[k] - f.centre.east, n[k] - f.centre.north);
   }
-  const PlanarMoments moments = PlanarMoments::of(e, n);
-  f.mean = m ? moments.mean() : PlanePoint{kNaN, kNaN};
-  f.covariance = moments.covariance();
-  f.centre = s.centre == CentreRule::mean    ? f.mean
-             : s.centre == CentreRule::point ? s.centre_point
-                                             : nominal;
-  // Each column that needs both its order statistics and its ranks is sorted once for both. The
-  // sections below are independent tasks (TBB), each writing its own figures: the result is the
-  // same on any number of threads.
-  const bool ranked = m >= 3;
-  std::vector<double> r_dist(m), r_down(m), r_cross(m), r_energy(m);
-  const Principal axes = principal_axes(f.covariance);
-  const bool place = (s.sections & kPlaceAndSpread) != 0, shapes = (s.sections & kShapes) != 0;
-  tbb::task_group tasks;
+  sort_and_rank(distance, &sorted, r_dist, scratch);
+  sorted.resize(g.rows, kInfinity);
+  f.containment = containment_sorted(sorted, s.levels, s.confidence);
+}
 
-  // Containment about the centre; failed rows at +inf.
-  if (place)
-    tasks.run([&] {
-      RankScratch& scratch = scratches.local();
-      std::vector<double> sorted, distance(m);
-      for (std::size_t k = 0; k < m; ++k) {
-        distance[k] = planar_distance(e[k] - f.centre.east, n[k] - f.centre.north);
-      }
-      sort_and_rank(distance, &sorted, r_dist, scratch);
-      sorted.resize(g.rows, kInfinity);
-      f.containment = containment_sorted(sorted, s.levels, s.confidence);
-    });
+// CEP: the median distance about the mean impact point, and its Gaussian counterpart.
+void circular_error_section(const GroupImpacts& in, GroupFootprint& f) {
+  const auto& [t, s, g, e, n, m] = in;
+  std::vector<double> about_mean(m);
+  for (std::size_t k = 0; k < m; ++k) {
+    about_mean[k] = planar_distance(e[k] - f.mean.east, n[k] - f.mean.north);
+  }
+  about_mean.resize(g.rows, kInfinity);
+  if (g.rows == 0) {
+    f.cep = kNaN;
+  } else {
+    const std::uint64_t rank = quantile_rank(g.rows, 0.5);
+    std::nth_element(about_mean.begin(), about_mean.begin() + static_cast<long>(rank - 1),
+                     about_mean.end());
+    f.cep = about_mean[rank - 1];
+  }
+  f.cep_gaussian = m >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
+}
 
-  // CEP: the median distance about the mean impact point, and its Gaussian counterpart.
-  if (shapes)
-    tasks.run([&] {
-      std::vector<double> about_mean(m);
-      for (std::size_t k = 0; k < m; ++k) {
-        about_mean[k] = planar_distance(e[k] - f.mean.east, n[k] - f.mean.north);
-      }
-      about_mean.resize(g.rows, kInfinity);
-      if (g.rows == 0) {
-        f.cep = kNaN;
-      } else {
-        const std::uint64_t rank = quantile_rank(g.rows, 0.5);
-        std::nth_element(about_mean.begin(), about_mean.begin() + static_cast<long>(rank - 1),
-                         about_mean.end());
-        f.cep = about_mean[rank - 1];
-      }
-      f.cep_gaussian = m >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
-    });
+// Ellipses (Gaussian approximation) and the share of the rows counted inside each, in one pass.
+void ellipse_section(const GroupImpacts& in, const Principal& axes, GroupFootprint& f) {
+  const auto& [t, s, g, e, n, m] = in;
+  const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
+  const double det = a * c - b * b;
+  std::vector<std::uint64_t> inside(s.levels.size(), 0);
+  std::vector<double> scale2(s.levels.size());
+  for (std::size_t l = 0; l < s.levels.size(); ++l) scale2[l] = -2.0 * std::log1p(-s.levels[l]);
+  if (det > 0.0)
+    for (std::size_t k = 0; k < m; ++k) {
+      const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
+      const double d2 = (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
+      for (std::size_t l = 0; l < scale2.size(); ++l) inside[l] += d2 <= scale2[l] ? 1 : 0;
+    }
+  for (std::size_t l = 0; l < s.levels.size(); ++l) {
+    DispersionEllipse el;
+    el.level = s.levels[l];
+    el.scale = std::sqrt(scale2[l]);
+    el.semi_major = el.scale * std::sqrt(axes.major);
+    el.semi_minor = el.scale * std::sqrt(axes.minor);
+    el.bearing = axes.bearing;
+    el.counted = g.rows ? static_cast<double>(inside[l]) / static_cast<double>(g.rows) : kNaN;
+    if (m < 2) el.semi_major = el.semi_minor = el.bearing = kNaN;  // no spread to measure
+    f.ellipses.push_back(el);
+  }
+}
 
-  // Ellipses (Gaussian approximation) and the share of the rows counted inside each, in one pass.
-  if (shapes)
-    tasks.run([&] {
-      const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
-      const double det = a * c - b * b;
-      std::vector<std::uint64_t> inside(s.levels.size(), 0);
-      std::vector<double> scale2(s.levels.size());
-      for (std::size_t l = 0; l < s.levels.size(); ++l) scale2[l] = -2.0 * std::log1p(-s.levels[l]);
-      if (det > 0.0)
-        for (std::size_t k = 0; k < m; ++k) {
-          const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
-          const double d2 = (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
-          for (std::size_t l = 0; l < scale2.size(); ++l) inside[l] += d2 <= scale2[l] ? 1 : 0;
-        }
-      for (std::size_t l = 0; l < s.levels.size(); ++l) {
-        DispersionEllipse el;
-        el.level = s.levels[l];
-        el.scale = std::sqrt(scale2[l]);
-        el.semi_major = el.scale * std::sqrt(axes.major);
-        el.semi_minor = el.scale * std::sqrt(axes.minor);
-        el.bearing = axes.bearing;
-        el.counted = g.rows ? static_cast<double>(inside[l]) / static_cast<double>(g.rows) : kNaN;
-        if (m < 2) el.semi_major = el.semi_minor = el.bearing = kNaN;  // no spread to measure
-        f.ellipses.push_back(el);
-      }
-    });
+// Downrange (along the bearing) and crossrange (to its right) about the centre.
+void range_section(const GroupImpacts& in, GroupFootprint& f, std::vector<double>& r_down,
+                   std::vector<double>& r_cross, RankScratch& scratch) {
+  const auto& [t, s, g, e, n, m] = in;
+  const double th = s.downrange_bearing * std::numbers::pi / 180.0;
+  const double ue = std::sin(th), un = std::cos(th);  // downrange unit vector
+  std::vector<double> down(m), cross(m), sd, sc;
+  for (std::size_t k = 0; k < m; ++k) {
+    const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
+    down[k] = de * ue + dn * un;
+    cross[k] = de * un - dn * ue;
+  }
+  sort_and_rank(down, &sd, r_down, scratch);
+  sort_and_rank(cross, &sc, r_cross, scratch);
+  for (double q : tail_probabilities(s.levels)) {
+    f.downrange.push_back(signed_quantile(sd, f.failed, q, s.confidence));
+    f.crossrange.push_back(signed_quantile(sc, f.failed, q, s.confidence));
+  }
+}
 
-  // Downrange (along the bearing) and crossrange (to its right) about the centre.
-  if (place)
-    tasks.run([&] {
-      RankScratch& scratch = scratches.local();
-      const double th = s.downrange_bearing * std::numbers::pi / 180.0;
-      const double ue = std::sin(th), un = std::cos(th);  // downrange unit vector
-      std::vector<double> down(m), cross(m), sd, sc;
-      for (std::size_t k = 0; k < m; ++k) {
-        const double de = e[k] - f.centre.east, dn = n[k] - f.centre.north;
-        down[k] = de * ue + dn * un;
-        cross[k] = de * un - dn * ue;
-      }
-      sort_and_rank(down, &sd, r_down, scratch);
-      sort_and_rank(cross, &sc, r_cross, scratch);
-      for (double q : tail_probabilities(s.levels)) {
-        f.downrange.push_back(signed_quantile(sd, f.failed, q, s.confidence));
-        f.crossrange.push_back(signed_quantile(sc, f.failed, q, s.confidence));
-      }
-    });
+// Hazard polygons: the convex hull of the k impacts nearest the mean in Mahalanobis distance,
+// k the rank of the distribution-free upper bound at the level, grown by the margin. The k
+// impacts it is built on lie inside by construction; every other impact is tested.
+void polygon_section(const GroupImpacts& in, const Principal& axes, GroupFootprint& f,
+                     RankScratch& scratch) {
+  const auto& [t, s, g, e, n, m] = in;
+  // Mahalanobis distances (squared) about the mean, with the covariance made positive definite
+  // by the polygon margin when the impacts are degenerate (all on a line or a point).
+  const double floor =
+      std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
+  const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
+  const double det = a * c - b * b;
+  auto& keyed = scratch.keyed;
+  keyed.resize(m);
+  for (std::size_t k = 0; k < m; ++k) {
+    const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
+    keyed[k] = {(c * de * de - 2.0 * b * de * dn + a * dn * dn) / det,
+                static_cast<std::uint32_t>(k)};
+  }
+  // Rank k of each level, and why a level has none.
+  f.polygons.resize(s.levels.size());
+  std::vector<std::size_t> order;  // determined levels, by rank ascending
+  for (std::size_t l = 0; l < s.levels.size(); ++l) {
+    HazardPolygon& poly = f.polygons[l];
+    poly.level = s.levels[l];
+    poly.rank = upper_bound_rank(g.rows, poly.level, s.confidence);
+    if (poly.rank > g.rows) {
+      poly.samples_needed = samples_for_bound(poly.level, s.confidence);
+      poly.reason = "too few samples for the bound";
+    } else if (poly.rank > m) {
+      poly.reason = "failed flights reach the bound (they count as landing infinitely far)";
+    } else {
+      order.push_back(l);
+    }
+  }
+  std::sort(order.begin(), order.end(),
+            [&](std::size_t x, std::size_t y) { return f.polygons[x].rank < f.polygons[y].rank; });
+  // Selections from the largest rank down make every nearest set a prefix of keyed.
+  auto by_distance = [](const auto& x, const auto& y) { return x.first < y.first; };
+  std::size_t prefix = m;
+  for (auto l = order.rbegin(); l != order.rend(); ++l) {
+    const auto k = static_cast<std::size_t>(f.polygons[*l].rank);
+    if (k < prefix) {
+      std::nth_element(keyed.begin(), keyed.begin() + static_cast<long>(k),
+                       keyed.begin() + static_cast<long>(prefix), by_distance);
+      prefix = k;
+    }
+  }
+  // Hulls from the smallest set up: the hull of a larger prefix is the hull of the smaller
+  // prefix's hull vertices and the points added, so each point enters one hull computation.
+  std::vector<PlanePoint> hull;
+  std::size_t done = 0;
+  for (std::size_t l : order) {
+    HazardPolygon& poly = f.polygons[l];
+    const auto k = static_cast<std::size_t>(poly.rank);
+    std::vector<PlanePoint> candidates = hull;
+    candidates.reserve(hull.size() + (k - done));
+    for (std::size_t j = done; j < k; ++j)
+      candidates.push_back({e[keyed[j].second], n[keyed[j].second]});
+    // Bounded before it seeds the next level: impacts on a curve are all hull vertices, and the
+    // outer approximation only ever adds area (docs/statistics.md).
+    hull = bounded_hull(convex_hull(std::move(candidates)), kPolygonVertices);
+    done = k;
+    poly.ring = grow_hull(hull, s.polygon_margin);
+    const ConvexPolygon convex(poly.ring);
+    std::uint64_t inside = k;  // the points the hull was built on lie inside it
+    for (std::size_t j = k; j < m; ++j)
+      inside += convex.contains(e[keyed[j].second], n[keyed[j].second]) ? 1 : 0;
+    poly.coverage = static_cast<double>(inside) / static_cast<double>(g.rows);
+    poly.area = polygon_area(poly.ring);
+    poly.determined = true;
+  }
+}
 
-  // Hazard polygons: the convex hull of the k impacts nearest the mean in Mahalanobis distance,
-  // k the rank of the distribution-free upper bound at the level, grown by the margin. The k
-  // impacts it is built on lie inside by construction; every other impact is tested.
-  if (shapes)
-    tasks.run([&] {
-      RankScratch& scratch = scratches.local();
-      // Mahalanobis distances (squared) about the mean, with the covariance made positive definite
-      // by the polygon margin when the impacts are degenerate (all on a line or a point).
-      const double floor =
-          std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
-      const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
-      const double det = a * c - b * b;
-      auto& keyed = scratch.keyed;
-      keyed.resize(m);
-      for (std::size_t k = 0; k < m; ++k) {
-        const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
-        keyed[k] = {(c * de * de - 2.0 * b * de * dn + a * dn * dn) / det,
-                    static_cast<std::uint32_t>(k)};
-      }
-      // Rank k of each level, and why a level has none.
-      f.polygons.resize(s.levels.size());
-      std::vector<std::size_t> order;  // determined levels, by rank ascending
-      for (std::size_t l = 0; l < s.levels.size(); ++l) {
-        HazardPolygon& poly = f.polygons[l];
-        poly.level = s.levels[l];
-        poly.rank = upper_bound_rank(g.rows, poly.level, s.confidence);
-        if (poly.rank > g.rows) {
-          poly.samples_needed = samples_for_bound(poly.level, s.confidence);
-          poly.reason = "too few samples for the bound";
-        } else if (poly.rank > m) {
-          poly.reason = "failed flights reach the bound (they count as landing infinitely far)";
-        } else {
-          order.push_back(l);
-        }
-      }
-      std::sort(order.begin(), order.end(), [&](std::size_t x, std::size_t y) {
-        return f.polygons[x].rank < f.polygons[y].rank;
-      });
-      // Selections from the largest rank down make every nearest set a prefix of keyed.
-      auto by_distance = [](const auto& x, const auto& y) { return x.first < y.first; };
-      std::size_t prefix = m;
-      for (auto l = order.rbegin(); l != order.rend(); ++l) {
-        const auto k = static_cast<std::size_t>(f.polygons[*l].rank);
-        if (k < prefix) {
-          std::nth_element(keyed.begin(), keyed.begin() + static_cast<long>(k),
-                           keyed.begin() + static_cast<long>(prefix), by_distance);
-          prefix = k;
-        }
-      }
-      // Hulls from the smallest set up: the hull of a larger prefix is the hull of the smaller
-      // prefix's hull vertices and the points added, so each point enters one hull computation.
-      std::vector<PlanePoint> hull;
-      std::size_t done = 0;
-      for (std::size_t l : order) {
-        HazardPolygon& poly = f.polygons[l];
-        const auto k = static_cast<std::size_t>(poly.rank);
-        std::vector<PlanePoint> candidates = hull;
-        candidates.reserve(hull.size() + (k - done));
-        for (std::size_t j = done; j < k; ++j)
-          candidates.push_back({e[keyed[j].second], n[keyed[j].second]});
-        // Bounded before it seeds the next level: impacts on a curve are all hull vertices, and the
-        // outer approximation only ever adds area (docs/statistics.md).
-        hull = bounded_hull(convex_hull(std::move(candidates)), kPolygonVertices);
-        done = k;
-        poly.ring = grow_hull(hull, s.polygon_margin);
-        const ConvexPolygon convex(poly.ring);
-        std::uint64_t inside = k;  // the points the hull was built on lie inside it
-        for (std::size_t j = k; j < m; ++j)
-          inside += convex.contains(e[keyed[j].second], n[keyed[j].second]) ? 1 : 0;
-        poly.coverage = static_cast<double>(inside) / static_cast<double>(g.rows);
-        poly.area = polygon_area(poly.ring);
-        poly.determined = true;
-      }
-    });
+// Speed and energy: upper quantiles with one-sided bounds (failures at +inf); exceedance.
+void energy_section(const GroupImpacts& in, GroupFootprint& f, std::vector<double>& r_energy,
+                    RankScratch& scratch) {
+  const auto& [t, s, g, e, n, m] = in;
+  std::vector<double> sorted, values(m);
+  for (std::size_t k = 0; k < m; ++k) values[k] = t.speed[g.landed[k]];
+  sort_doubles(values, scratch);
+  values.resize(g.rows, kInfinity);
+  f.speed = containment_sorted(values, s.levels, s.confidence);
 
-  // Speed and energy: upper quantiles with one-sided bounds (failures at +inf); exceedance.
-  if (place)
-    tasks.run([&] {
-      RankScratch& scratch = scratches.local();
-      std::vector<double> sorted, values(m);
-      for (std::size_t k = 0; k < m; ++k) values[k] = t.speed[g.landed[k]];
-      sort_doubles(values, scratch);
-      values.resize(g.rows, kInfinity);
-      f.speed = containment_sorted(values, s.levels, s.confidence);
+  std::uint64_t above = f.failed;
+  values.resize(m);
+  for (std::size_t k = 0; k < m; ++k) {
+    values[k] = t.energy[g.landed[k]];
+    if (values[k] > s.energy_threshold) ++above;
+  }
+  sort_and_rank(values, &sorted, r_energy, scratch);
+  sorted.resize(g.rows, kInfinity);
+  f.energy = containment_sorted(sorted, s.levels, s.confidence);
+  f.energy_exceedance = {s.energy_threshold,
+                         above,
+                         g.rows,
+                         g.rows ? static_cast<double>(above) / static_cast<double>(g.rows) : kNaN,
+                         clopper_pearson_lower(above, g.rows, s.confidence),
+                         clopper_pearson_upper(above, g.rows, s.confidence)};
 
-      std::uint64_t above = f.failed;
-      values.resize(m);
-      for (std::size_t k = 0; k < m; ++k) {
-        values[k] = t.energy[g.landed[k]];
-        if (values[k] > s.energy_threshold) ++above;
-      }
-      sort_and_rank(values, &sorted, r_energy, scratch);
-      sorted.resize(g.rows, kInfinity);
-      f.energy = containment_sorted(sorted, s.levels, s.confidence);
-      f.energy_exceedance = {
-          s.energy_threshold,
-          above,
-          g.rows,
-          g.rows ? static_cast<double>(above) / static_cast<double>(g.rows) : kNaN,
-          clopper_pearson_lower(above, g.rows, s.confidence),
-          clopper_pearson_upper(above, g.rows, s.confidence)};
+  // Time of flight over the landed rows.
+  values.resize(m);
+  for (std::size_t k = 0; k < m; ++k) values[k] = t.time[g.landed[k]];
+  sort_doubles(values, scratch);
+  f.time_min = m ? values.front() : kNaN;
+  f.time_max = m ? values.back() : kNaN;
+  std::vector<double> qs{0.5};
+  for (double p : s.levels) qs.push_back(p);
+  std::sort(qs.begin(), qs.end());
+  qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
+  for (double q : qs) f.time.push_back(signed_quantile(values, 0, q, s.confidence));
+}
 
-      // Time of flight over the landed rows.
-      values.resize(m);
-      for (std::size_t k = 0; k < m; ++k) values[k] = t.time[g.landed[k]];
-      sort_doubles(values, scratch);
-      f.time_min = m ? values.front() : kNaN;
-      f.time_max = m ? values.back() : kNaN;
-      std::vector<double> qs{0.5};
-      for (double p : s.levels) qs.push_back(p);
-      std::sort(qs.begin(), qs.end());
-      qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
-      for (double q : qs) f.time.push_back(signed_quantile(values, 0, q, s.confidence));
-    });
-  tasks.wait();
-
-  // Spearman sensitivities over the landed rows.
-  if (!place) {
-    // left to the other half (merge_sections)
-  } else if (ranked) {
+// Spearman sensitivities over the landed rows (correlation ratios for categorical inputs): each
+// input of the group against the ranks of its downrange, crossrange, distance and energy.
+void sensitivity_section(const GroupImpacts& in, const std::string& name, GroupFootprint& f,
+                         const std::array<std::span<const double>, 4>& outputs,
+                         ScratchPerThread& scratches) {
+  const auto& [t, s, g, e, n, m] = in;
+  if (m >= 3) {
     f.sensitivity.resize(t.inputs.size());
     tbb::parallel_for(std::size_t{0}, t.inputs.size(), [&](std::size_t d) {
       if (!concerns(t.input_names[d], name, s.body_names)) return;  // removed below
       RankScratch& scratch = scratches.local();
       std::vector<double> r_input(m), column(m);
       for (std::size_t k = 0; k < m; ++k) column[k] = t.inputs[d][g.landed[k]];
-      const std::array<std::span<const double>, 4> outputs{r_down, r_cross, r_dist, r_energy};
       std::array<double, 4> rho{};
       const bool categorical = d < t.categorical.size() && t.categorical[d];
       if (categorical) {
@@ -463,6 +441,45 @@ GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, c
         f.sensitivity.push_back({t.input_names[d], kNaN, kNaN, kNaN, kNaN,
                                  d < t.categorical.size() && t.categorical[d]});
   }
+}
+
+GroupFootprint compute_group(const ImpactTable& t, const FootprintSettings& s, const GroupRows& g,
+                             const std::string& name, PlanePoint nominal, double objects,
+                             ScratchPerThread& scratches) {
+  GroupFootprint f;
+  f.name = name;
+  f.objects_per_release = objects;
+  f.rows = g.rows;
+  f.landed = g.landed.size();
+  f.failed = g.rows - f.landed;
+  const std::size_t m = g.landed.size();
+  GroupImpacts in{t, s, g, std::vector<double>(m), std::vector<double>(m), m};
+  for (std::size_t k = 0; k < m; ++k) {
+    in.e[k] = t.east[g.landed[k]];
+    in.n[k] = t.north[g.landed[k]];
+  }
+  const PlanarMoments moments = PlanarMoments::of(in.e, in.n);
+  f.mean = m ? moments.mean() : PlanePoint{kNaN, kNaN};
+  f.covariance = moments.covariance();
+  f.centre = s.centre == CentreRule::mean    ? f.mean
+             : s.centre == CentreRule::point ? s.centre_point
+                                             : nominal;
+  // Each column that needs both its order statistics and its ranks is sorted once for both. The
+  // sections are independent tasks (TBB), each writing its own figures: the result is the same on
+  // any number of threads.
+  std::vector<double> r_dist(m), r_down(m), r_cross(m), r_energy(m);
+  const Principal axes = principal_axes(f.covariance);
+  const bool place = (s.sections & kPlaceAndSpread) != 0, shapes = (s.sections & kShapes) != 0;
+  tbb::task_group tasks;
+  if (place) tasks.run([&] { containment_section(in, f, r_dist, scratches.local()); });
+  if (shapes) tasks.run([&] { circular_error_section(in, f); });
+  if (shapes) tasks.run([&] { ellipse_section(in, axes, f); });
+  if (place) tasks.run([&] { range_section(in, f, r_down, r_cross, scratches.local()); });
+  if (shapes) tasks.run([&] { polygon_section(in, axes, f, scratches.local()); });
+  if (place) tasks.run([&] { energy_section(in, f, r_energy, scratches.local()); });
+  tasks.wait();
+  // A half without the place and spread leaves the sensitivities to the other (merge_sections).
+  if (place) sensitivity_section(in, name, f, {r_down, r_cross, r_dist, r_energy}, scratches);
   return f;
 }
 
@@ -541,20 +558,27 @@ MixtureColumn mixture_of(const std::vector<GroupRows>& bodies, const FootprintSe
 // "all" of several bodies: one object of a release (footprint/mixture.hpp). Its rows are every
 // body's, each weighted by the body's objects per release over the body's rows; estimates are
 // the weighted ones, bounds by Boole's inequality over the bodies; one centre for all bodies.
-GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettings& s,
-                                     const std::vector<GroupRows>& bodies, PlanePoint nominal) {
-  GroupFootprint f;
-  f.name = "all";
-  std::vector<double> row_weight(bodies.size());
-  for (std::size_t b = 0; b < bodies.size(); ++b) {
-    f.objects_per_release += s.body_counts[b];
-    f.rows += bodies[b].rows;
-    f.landed += bodies[b].landed.size();
-    row_weight[b] = bodies[b].rows ? s.body_counts[b] / static_cast<double>(bodies[b].rows) : 0.0;
-  }
-  f.failed = f.rows - f.landed;
-  // Weighted mean and covariance of the landed rows, two passes in row order (the divisor
-  // m / (m - 1) makes equal weights give the sample covariance).
+// The rows of every body of a release and each body's weight per row (its objects per release
+// over its rows), what every section of the release's statistics reads.
+struct ReleaseImpacts {
+  const ImpactTable& table;
+  const FootprintSettings& settings;
+  const std::vector<GroupRows>& bodies;
+  std::vector<double> row_weight;
+};
+
+// A signed quantile of a mixture with its two-sided interval (each end at `end`); failures lie
+// at the nearer infinity of each tail.
+QuantileEstimate signed_estimate(const MixtureColumn& m, double q, double end) {
+  const bool low = q < 0.5;
+  return QuantileEstimate{q, m.quantile(q, low), m.lower_bound(q, end, low),
+                          m.upper_bound(q, end, low)};
+}
+
+// Weighted mean and covariance of the landed rows, two passes in row order (the divisor
+// m / (m - 1) makes equal weights give the sample covariance).
+void release_moments(const ReleaseImpacts& in, GroupFootprint& f) {
+  const auto& [t, s, bodies, row_weight] = in;
   double sw = 0.0, se = 0.0, sn = 0.0;
   for (std::size_t b = 0; b < bodies.size(); ++b)
     for (std::uint32_t row : bodies[b].landed) {
@@ -575,177 +599,202 @@ GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettin
     const double scale = static_cast<double>(f.landed) / static_cast<double>(f.landed - 1) / sw;
     f.covariance = {cee * scale, cen * scale, cnn * scale};
   }
+}
+
+// Containment of one object of the release about the centre.
+void release_containment(const ReleaseImpacts& in, GroupFootprint& f) {
+  const auto& [t, s, bodies, row_weight] = in;
+  const MixtureColumn distance = mixture_of(bodies, s, [&](std::uint32_t row) {
+    return planar_distance(t.east[row] - f.centre.east, t.north[row] - f.centre.north);
+  });
+  for (double p : s.levels) f.containment.push_back(distance.containment(p, s.confidence));
+}
+
+// Downrange (along the bearing) and crossrange (to its right) about the centre.
+void release_ranges(const ReleaseImpacts& in, GroupFootprint& f, double end) {
+  const auto& [t, s, bodies, row_weight] = in;
+  const double th = s.downrange_bearing * std::numbers::pi / 180.0;
+  const double ue = std::sin(th), un = std::cos(th);
+  const MixtureColumn down = mixture_of(bodies, s, [&](std::uint32_t row) {
+    return (t.east[row] - f.centre.east) * ue + (t.north[row] - f.centre.north) * un;
+  });
+  const MixtureColumn cross = mixture_of(bodies, s, [&](std::uint32_t row) {
+    return (t.east[row] - f.centre.east) * un - (t.north[row] - f.centre.north) * ue;
+  });
+  for (double q : tail_probabilities(s.levels)) {
+    f.downrange.push_back(signed_estimate(down, q, end));
+    f.crossrange.push_back(signed_estimate(cross, q, end));
+  }
+}
+
+// Speed and energy: upper quantiles with their bounds; exceedance; the time of flight.
+void release_energy_and_time(const ReleaseImpacts& in, GroupFootprint& f, double end) {
+  const auto& [t, s, bodies, row_weight] = in;
+  const MixtureColumn speed =
+      mixture_of(bodies, s, [&](std::uint32_t row) { return t.speed[row]; });
+  const MixtureColumn energy =
+      mixture_of(bodies, s, [&](std::uint32_t row) { return t.energy[row]; });
+  for (double p : s.levels) {
+    f.speed.push_back(speed.containment(p, s.confidence));
+    f.energy.push_back(energy.containment(p, s.confidence));
+  }
+  std::uint64_t above = f.failed;
+  for (const auto& g : bodies)
+    for (std::uint32_t row : g.landed) above += t.energy[row] > s.energy_threshold ? 1 : 0;
+  const MixtureColumn::Share x = energy.share_above(s.energy_threshold, s.confidence);
+  f.energy_exceedance = {s.energy_threshold, above, f.rows, x.value, x.lower, x.upper};
+  // Time of flight over the landed rows (no failures among them).
+  std::vector<GroupRows> landed_only = bodies;
+  for (auto& g : landed_only) g.rows = g.landed.size();
+  const MixtureColumn time =
+      mixture_of(landed_only, s, [&](std::uint32_t row) { return t.time[row]; });
+  f.time_min = kNaN;
+  f.time_max = kNaN;
+  for (const auto& g : bodies)
+    for (std::uint32_t row : g.landed) {
+      if (!(t.time[row] >= f.time_min)) f.time_min = t.time[row];
+      if (!(t.time[row] <= f.time_max)) f.time_max = t.time[row];
+    }
+  std::vector<double> qs{0.5};
+  for (double p : s.levels) qs.push_back(p);
+  std::sort(qs.begin(), qs.end());
+  qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
+  for (double q : qs) {
+    QuantileEstimate e = signed_estimate(time, q, end);
+    if (f.landed == 0) e.value = e.lower = e.upper = kNaN;
+    f.time.push_back(e);
+  }
+}
+
+// CEP about the mean, and the dispersion ellipses with the weighted share of the rows inside.
+void release_ellipses(const ReleaseImpacts& in, const Principal& axes, GroupFootprint& f) {
+  const auto& [t, s, bodies, row_weight] = in;
+  const MixtureColumn about_mean = mixture_of(bodies, s, [&](std::uint32_t row) {
+    return planar_distance(t.east[row] - f.mean.east, t.north[row] - f.mean.north);
+  });
+  f.cep = f.rows ? about_mean.quantile(0.5, false) : kNaN;
+  f.cep_gaussian = f.landed >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
+  // Ellipses (Gaussian approximation), with the weighted share of the rows inside.
+  const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
+  const double det = a * c - b * b;
+  for (double level : s.levels) {
+    DispersionEllipse el;
+    el.level = level;
+    // The same squared scale as a body's ellipse counts against (not scale * scale, which
+    // rounds differently).
+    const double scale2 = -2.0 * std::log1p(-level);
+    el.scale = std::sqrt(scale2);
+    el.semi_major = el.scale * std::sqrt(axes.major);
+    el.semi_minor = el.scale * std::sqrt(axes.minor);
+    el.bearing = axes.bearing;
+    double inside = 0.0;
+    if (det > 0.0)
+      for (std::size_t k = 0; k < bodies.size(); ++k)
+        for (std::uint32_t row : bodies[k].landed) {
+          const double de = t.east[row] - f.mean.east, dn = t.north[row] - f.mean.north;
+          if ((c * de * de - 2.0 * b * de * dn + a * dn * dn) / det <= scale2)
+            inside += row_weight[k];
+        }
+    el.counted = f.objects_per_release > 0.0 ? inside / f.objects_per_release : kNaN;
+    if (f.landed < 2) el.semi_major = el.semi_minor = el.bearing = kNaN;
+    f.ellipses.push_back(el);
+  }
+}
+
+// Hazard polygons: as a body's, with the number of nearest impacts set by the mixture's bound of
+// the Mahalanobis distance, and the coverage weighted.
+void release_polygons(const ReleaseImpacts& in, const Principal& axes, GroupFootprint& f) {
+  const auto& [t, s, bodies, row_weight] = in;
+  const double floor =
+      std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
+  const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
+  const double det = a * c - b * b;
+  auto mahalanobis = [&](std::uint32_t row) {
+    const double de = t.east[row] - f.mean.east, dn = t.north[row] - f.mean.north;
+    return (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
+  };
+  const MixtureColumn distance = mixture_of(bodies, s, mahalanobis);
+  std::vector<std::pair<double, std::uint32_t>> keyed;  // (distance, body)
+  std::vector<std::uint32_t> row_of;
+  for (std::size_t k = 0; k < bodies.size(); ++k)
+    for (std::uint32_t row : bodies[k].landed) {
+      keyed.push_back({mahalanobis(row), static_cast<std::uint32_t>(keyed.size())});
+      row_of.push_back(row);
+    }
+  std::vector<std::uint16_t> body_of(keyed.size());
+  for (std::size_t k = 0, at = 0; k < bodies.size(); ++k)
+    for (std::size_t j = 0; j < bodies[k].landed.size(); ++j)
+      body_of[at++] = static_cast<std::uint16_t>(k);
+  std::sort(keyed.begin(), keyed.end());
+  std::vector<PlanePoint> hull;
+  std::size_t done = 0;
+  for (double level : s.levels) {
+    HazardPolygon poly;
+    poly.level = level;
+    const double reach = distance.upper_bound(level, s.confidence, false);
+    if (!std::isfinite(reach)) {
+      if (distance.enough_for_bound(level, s.confidence)) {
+        poly.reason = "failed flights reach the bound (they count as landing infinitely far)";
+      } else {
+        poly.samples_needed = distance.samples_needed(level, s.confidence);
+        poly.reason = "too few samples for the bound";
+      }
+      f.polygons.push_back(std::move(poly));
+      continue;
+    }
+    const auto k = static_cast<std::size_t>(
+        std::upper_bound(keyed.begin(), keyed.end(),
+                         std::pair{reach, std::numeric_limits<std::uint32_t>::max()}) -
+        keyed.begin());
+    poly.rank = k;
+    std::vector<PlanePoint> candidates = k >= done ? hull : std::vector<PlanePoint>{};
+    for (std::size_t j = k >= done ? done : 0; j < k; ++j) {
+      const std::uint32_t row = row_of[keyed[j].second];
+      candidates.push_back({t.east[row], t.north[row]});
+    }
+    hull = bounded_hull(convex_hull(std::move(candidates)), kPolygonVertices);
+    done = k;
+    poly.ring = grow_hull(hull, s.polygon_margin);
+    const ConvexPolygon convex(poly.ring);
+    double inside = 0.0;
+    for (std::size_t j = 0; j < keyed.size(); ++j) {
+      const std::uint32_t row = row_of[keyed[j].second];
+      if (j < k || convex.contains(t.east[row], t.north[row]))
+        inside += row_weight[body_of[keyed[j].second]];
+    }
+    poly.coverage = inside / f.objects_per_release;
+    poly.area = polygon_area(poly.ring);
+    poly.determined = true;
+    f.polygons.push_back(std::move(poly));
+  }
+}
+
+GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettings& s,
+                                     const std::vector<GroupRows>& bodies, PlanePoint nominal) {
+  GroupFootprint f;
+  f.name = "all";
+  ReleaseImpacts in{t, s, bodies, std::vector<double>(bodies.size())};
+  for (std::size_t b = 0; b < bodies.size(); ++b) {
+    f.objects_per_release += s.body_counts[b];
+    f.rows += bodies[b].rows;
+    f.landed += bodies[b].landed.size();
+    in.row_weight[b] =
+        bodies[b].rows ? s.body_counts[b] / static_cast<double>(bodies[b].rows) : 0.0;
+  }
+  f.failed = f.rows - f.landed;
+  release_moments(in, f);
   f.centre = s.centre == CentreRule::mean    ? f.mean
              : s.centre == CentreRule::point ? s.centre_point
                                              : nominal;
   const bool place = (s.sections & kPlaceAndSpread) != 0, shapes = (s.sections & kShapes) != 0;
   const double end = 0.5 * (1.0 + s.confidence);  // each end of a two-sided interval
-  auto signed_estimate = [&](const MixtureColumn& m, double q) {
-    const bool low = q < 0.5;  // failures at the nearer infinity of each tail
-    return QuantileEstimate{q, m.quantile(q, low), m.lower_bound(q, end, low),
-                            m.upper_bound(q, end, low)};
-  };
   const Principal axes = principal_axes(f.covariance);
   tbb::task_group tasks;
-  if (place)
-    tasks.run([&] {
-      const MixtureColumn distance = mixture_of(bodies, s, [&](std::uint32_t row) {
-        return planar_distance(t.east[row] - f.centre.east, t.north[row] - f.centre.north);
-      });
-      for (double p : s.levels) f.containment.push_back(distance.containment(p, s.confidence));
-    });
-  if (place)
-    tasks.run([&] {
-      const double th = s.downrange_bearing * std::numbers::pi / 180.0;
-      const double ue = std::sin(th), un = std::cos(th);
-      const MixtureColumn down = mixture_of(bodies, s, [&](std::uint32_t row) {
-        return (t.east[row] - f.centre.east) * ue + (t.north[row] - f.centre.north) * un;
-      });
-      const MixtureColumn cross = mixture_of(bodies, s, [&](std::uint32_t row) {
-        return (t.east[row] - f.centre.east) * un - (t.north[row] - f.centre.north) * ue;
-      });
-      for (double q : tail_probabilities(s.levels)) {
-        f.downrange.push_back(signed_estimate(down, q));
-        f.crossrange.push_back(signed_estimate(cross, q));
-      }
-    });
-  if (place)
-    tasks.run([&] {
-      const MixtureColumn speed =
-          mixture_of(bodies, s, [&](std::uint32_t row) { return t.speed[row]; });
-      const MixtureColumn energy =
-          mixture_of(bodies, s, [&](std::uint32_t row) { return t.energy[row]; });
-      for (double p : s.levels) {
-        f.speed.push_back(speed.containment(p, s.confidence));
-        f.energy.push_back(energy.containment(p, s.confidence));
-      }
-      std::uint64_t above = f.failed;
-      for (const auto& g : bodies)
-        for (std::uint32_t row : g.landed) above += t.energy[row] > s.energy_threshold ? 1 : 0;
-      const MixtureColumn::Share x = energy.share_above(s.energy_threshold, s.confidence);
-      f.energy_exceedance = {s.energy_threshold, above, f.rows, x.value, x.lower, x.upper};
-      // Time of flight over the landed rows (no failures among them).
-      std::vector<GroupRows> landed_only = bodies;
-      for (auto& g : landed_only) g.rows = g.landed.size();
-      const MixtureColumn time =
-          mixture_of(landed_only, s, [&](std::uint32_t row) { return t.time[row]; });
-      f.time_min = kNaN;
-      f.time_max = kNaN;
-      for (const auto& g : bodies)
-        for (std::uint32_t row : g.landed) {
-          if (!(t.time[row] >= f.time_min)) f.time_min = t.time[row];
-          if (!(t.time[row] <= f.time_max)) f.time_max = t.time[row];
-        }
-      std::vector<double> qs{0.5};
-      for (double p : s.levels) qs.push_back(p);
-      std::sort(qs.begin(), qs.end());
-      qs.erase(std::unique(qs.begin(), qs.end()), qs.end());
-      for (double q : qs) {
-        QuantileEstimate e = signed_estimate(time, q);
-        if (f.landed == 0) e.value = e.lower = e.upper = kNaN;
-        f.time.push_back(e);
-      }
-    });
-  if (shapes)
-    tasks.run([&] {
-      const MixtureColumn about_mean = mixture_of(bodies, s, [&](std::uint32_t row) {
-        return planar_distance(t.east[row] - f.mean.east, t.north[row] - f.mean.north);
-      });
-      f.cep = f.rows ? about_mean.quantile(0.5, false) : kNaN;
-      f.cep_gaussian = f.landed >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
-      // Ellipses (Gaussian approximation), with the weighted share of the rows inside.
-      const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
-      const double det = a * c - b * b;
-      for (double level : s.levels) {
-        DispersionEllipse el;
-        el.level = level;
-        // The same squared scale as a body's ellipse counts against (not scale * scale, which
-        // rounds differently).
-        const double scale2 = -2.0 * std::log1p(-level);
-        el.scale = std::sqrt(scale2);
-        el.semi_major = el.scale * std::sqrt(axes.major);
-        el.semi_minor = el.scale * std::sqrt(axes.minor);
-        el.bearing = axes.bearing;
-        double inside = 0.0;
-        if (det > 0.0)
-          for (std::size_t k = 0; k < bodies.size(); ++k)
-            for (std::uint32_t row : bodies[k].landed) {
-              const double de = t.east[row] - f.mean.east, dn = t.north[row] - f.mean.north;
-              if ((c * de * de - 2.0 * b * de * dn + a * dn * dn) / det <= scale2)
-                inside += row_weight[k];
-            }
-        el.counted = f.objects_per_release > 0.0 ? inside / f.objects_per_release : kNaN;
-        if (f.landed < 2) el.semi_major = el.semi_minor = el.bearing = kNaN;
-        f.ellipses.push_back(el);
-      }
-    });
-  if (shapes)
-    tasks.run([&] {
-      // Hazard polygons: as a body's, with the number of nearest impacts set by the mixture's
-      // bound of the Mahalanobis distance, and the coverage weighted.
-      const double floor =
-          std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
-      const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
-      const double det = a * c - b * b;
-      auto mahalanobis = [&](std::uint32_t row) {
-        const double de = t.east[row] - f.mean.east, dn = t.north[row] - f.mean.north;
-        return (c * de * de - 2.0 * b * de * dn + a * dn * dn) / det;
-      };
-      const MixtureColumn distance = mixture_of(bodies, s, mahalanobis);
-      std::vector<std::pair<double, std::uint32_t>> keyed;  // (distance, body)
-      std::vector<std::uint32_t> row_of;
-      for (std::size_t k = 0; k < bodies.size(); ++k)
-        for (std::uint32_t row : bodies[k].landed) {
-          keyed.push_back({mahalanobis(row), static_cast<std::uint32_t>(keyed.size())});
-          row_of.push_back(row);
-        }
-      std::vector<std::uint16_t> body_of(keyed.size());
-      for (std::size_t k = 0, at = 0; k < bodies.size(); ++k)
-        for (std::size_t j = 0; j < bodies[k].landed.size(); ++j)
-          body_of[at++] = static_cast<std::uint16_t>(k);
-      std::sort(keyed.begin(), keyed.end());
-      std::vector<PlanePoint> hull;
-      std::size_t done = 0;
-      for (double level : s.levels) {
-        HazardPolygon poly;
-        poly.level = level;
-        const double reach = distance.upper_bound(level, s.confidence, false);
-        if (!std::isfinite(reach)) {
-          if (distance.enough_for_bound(level, s.confidence)) {
-            poly.reason = "failed flights reach the bound (they count as landing infinitely far)";
-          } else {
-            poly.samples_needed = distance.samples_needed(level, s.confidence);
-            poly.reason = "too few samples for the bound";
-          }
-          f.polygons.push_back(std::move(poly));
-          continue;
-        }
-        const auto k = static_cast<std::size_t>(
-            std::upper_bound(keyed.begin(), keyed.end(),
-                             std::pair{reach, std::numeric_limits<std::uint32_t>::max()}) -
-            keyed.begin());
-        poly.rank = k;
-        std::vector<PlanePoint> candidates = k >= done ? hull : std::vector<PlanePoint>{};
-        for (std::size_t j = k >= done ? done : 0; j < k; ++j) {
-          const std::uint32_t row = row_of[keyed[j].second];
-          candidates.push_back({t.east[row], t.north[row]});
-        }
-        hull = bounded_hull(convex_hull(std::move(candidates)), kPolygonVertices);
-        done = k;
-        poly.ring = grow_hull(hull, s.polygon_margin);
-        const ConvexPolygon convex(poly.ring);
-        double inside = 0.0;
-        for (std::size_t j = 0; j < keyed.size(); ++j) {
-          const std::uint32_t row = row_of[keyed[j].second];
-          if (j < k || convex.contains(t.east[row], t.north[row]))
-            inside += row_weight[body_of[keyed[j].second]];
-        }
-        poly.coverage = inside / f.objects_per_release;
-        poly.area = polygon_area(poly.ring);
-        poly.determined = true;
-        f.polygons.push_back(std::move(poly));
-      }
-    });
+  if (place) tasks.run([&] { release_containment(in, f); });
+  if (place) tasks.run([&] { release_ranges(in, f, end); });
+  if (place) tasks.run([&] { release_energy_and_time(in, f, end); });
+  if (shapes) tasks.run([&] { release_ellipses(in, axes, f); });
+  if (shapes) tasks.run([&] { release_polygons(in, axes, f); });
   tasks.wait();
   return f;
 }
