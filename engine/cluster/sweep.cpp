@@ -27,9 +27,9 @@ namespace strewn {
 namespace {
 
 namespace fs = std::filesystem;
-using scenario_detail::Bounds;
-using scenario_detail::Diagnostics;
-using scenario_detail::Table;
+using toml_input::Bounds;
+using toml_input::Diagnostics;
+using toml_input::Table;
 
 std::string read_text(const std::string& path, Diagnostics& d, const std::string& key, long line) {
   std::error_code ec;
@@ -201,6 +201,151 @@ std::string case_label(const SweepPlan& plan, std::size_t index) {
 
 }  // namespace
 
+namespace {
+
+// One axis of the sweep file: its key, checked against the base scenario (a number there, or a
+// key it does not give yet, which the check of the cases accepts or refuses), and its values.
+SweepAxis read_axis(Table& axis, const toml::table& base_table, const std::string& base_text,
+                    const std::optional<std::string>& base, Diagnostics& d) {
+  SweepAxis a;
+  const auto key = axis.text("key", {}, true);
+  const toml::array* values = axis.array("values");
+  if (!values) {
+    d.add(axis.key_path("values"), axis.line(), "is required: a list of numbers");
+  } else if (values->empty()) {
+    d.add(axis.key_path("values"), axis.line_of("values"),
+          "is empty: an axis needs at least one value");
+  } else {
+    a.integers = true;
+    for (const auto& v : *values) {
+      a.integers = a.integers && v.is_integer();
+      const auto number = toml_input::as_number(v);
+      if (!number || !std::isfinite(*number)) {
+        d.add(axis.key_path("values"), axis.line_of("values"), "must hold finite numbers only");
+        break;
+      }
+      a.values.push_back(*number);
+    }
+  }
+  axis.finish();
+  if (key) {
+    a.key = *key;
+    a.line = axis.line_of("key");
+    // The key must be a number in the base scenario (or a key it does not give yet, which the
+    // scenario check below accepts or refuses).
+    if (!base_text.empty()) {
+      toml::table probe = base_table;
+      std::string problem;
+      const toml::node* existing = nullptr;
+      if (!place(probe, a.key, problem, &existing)) {
+        d.add(axis.key_path("key"), axis.line_of("key"),
+              a.key + " is not a key of the scenario" + (problem.empty() ? "" : ": " + problem));
+      } else if (existing) {
+        if (existing->is_table() && existing->as_table()->contains("dist"))
+          d.add(axis.key_path("key"), axis.line_of("key"),
+                a.key + " is a distribution in " + *base + "; sweep one of its parameters, e.g. " +
+                    a.key + (existing->as_table()->contains("mean") ? ".mean" : ".median"));
+        else if (existing->is_table())
+          d.add(axis.key_path("key"), axis.line_of("key"),
+                a.key + " is a table in " + *base + "; sweep one of its numeric keys, e.g. " +
+                    a.key + "." +
+                    (existing->as_table()->empty()
+                         ? std::string("speed")
+                         : std::string(existing->as_table()->cbegin()->first.str())));
+        else if (!existing->is_number())
+          d.add(axis.key_path("key"), axis.line_of("key"),
+                a.key + " is " + node_kind(*existing) + " in " + *base +
+                    "; an axis sweeps numeric keys only");
+      }
+    }
+  }
+  return a;
+}
+
+// The values of every case: the grid of the axes (the first axis varies slowest), or the axes
+// in step ("zip").
+std::vector<std::vector<double>> case_values(const SweepPlan& plan) {
+  std::vector<std::vector<double>> combos;
+  if (plan.zip) {
+    for (std::size_t i = 0; i < plan.axes[0].values.size(); ++i) {
+      std::vector<double> c;
+      for (const auto& a : plan.axes) c.push_back(a.values[i]);
+      combos.push_back(c);
+    }
+  } else {
+    combos.push_back({});
+    for (const auto& a : plan.axes) {
+      std::vector<std::vector<double>> next;
+      for (const auto& c : combos)
+        for (double v : a.values) {
+          auto longer = c;
+          longer.push_back(v);
+          next.push_back(std::move(longer));
+        }
+      combos = std::move(next);
+    }
+  }
+  return combos;
+}
+
+// Where in the sweep file a problem of a case's scenario comes from: the axis whose key it is
+// about (its key path and line), or the scenario's own key path. The scenario names a body by its
+// place (body[1].mass); an axis by its name (crate.mass).
+std::pair<std::string, long> axis_of_problem(const SweepPlan& plan, const toml::table& base_table,
+                                             const std::string& problem_key) {
+  std::string key_path = problem_key, named = problem_key;
+  if (named.rfind("body[", 0) == 0) {
+    const std::size_t close = named.find(']');
+    const auto* bodies = base_table["body"].as_array();
+    if (close != std::string::npos && bodies && named.find_first_not_of("0123456789", 5) == close) {
+      const std::size_t b = std::stoul(named.substr(5, close - 5));
+      const toml::table* body = b < bodies->size() ? bodies->get(b)->as_table() : nullptr;
+      const auto name = body ? (*body)["name"].value<std::string>() : std::nullopt;
+      if (name) named = *name + named.substr(close + 1);
+    }
+  }
+  long line = 0;
+  for (std::size_t a = 0; a < plan.axes.size(); ++a) {
+    const std::string& k = plan.axes[a].key;
+    if (named == k || k.rfind(named + ".", 0) == 0 || named.rfind(k + ".", 0) == 0) {
+      key_path = "axis[" + std::to_string(a) + "].key";
+      line = plan.axes[a].line;
+      break;
+    }
+  }
+  return {key_path, line};
+}
+
+// Every case must be a valid scenario before anything runs: each is loaded and its correlations
+// checked; the problems name the axis they come from. Sets the plan's samples and files read.
+void check_cases(SweepPlan& plan, const toml::table& base_table, const std::string& path) {
+  std::vector<Problem> problems;
+  for (std::size_t index = 0; index < plan.cases.size(); ++index) {
+    try {
+      const Scenario s = parse_scenario(plan.cases[index].text, plan.base_path);
+      const World world = build_world(s);
+      (void)SampleModel(s, world, 1);  // correlations hold together
+      if (index == 0) {
+        plan.samples = static_cast<std::uint64_t>(s.study.samples);
+        plan.files_read = s.files_read;
+        plan.files_read.push_back(path);
+      }
+    } catch (const ScenarioError& e) {
+      for (const auto& p : e.problems()) {
+        const auto [key_path, line] = axis_of_problem(plan, base_table, p.key_path);
+        problems.push_back({path, key_path, line,
+                            "case " + std::to_string(index) + " (" + case_label(plan, index) +
+                                "): " + (key_path != p.key_path ? p.key_path + ": " : "") +
+                                p.message});
+      }
+    }
+    if (problems.size() > 20) break;  // the same mistake repeats in every case
+  }
+  if (!problems.empty()) throw ScenarioError(problems);
+}
+
+}  // namespace
+
 SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
   SweepPlan plan;
   plan.path = path;
@@ -245,62 +390,7 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
   plan.output = output ? (fs::path(path).parent_path() / *output).lexically_normal().string()
                        : "results/" + fs::path(path).stem().string() + ".h5";
 
-  for (auto& axis : axes) {
-    SweepAxis a;
-    const auto key = axis.text("key", {}, true);
-    const toml::array* values = axis.array("values");
-    if (!values) {
-      d.add(axis.key_path("values"), axis.line(), "is required: a list of numbers");
-    } else if (values->empty()) {
-      d.add(axis.key_path("values"), axis.line_of("values"),
-            "is empty: an axis needs at least one value");
-    } else {
-      a.integers = true;
-      for (const auto& v : *values) {
-        a.integers = a.integers && v.is_integer();
-        const auto number = scenario_detail::as_number(v);
-        if (!number || !std::isfinite(*number)) {
-          d.add(axis.key_path("values"), axis.line_of("values"), "must hold finite numbers only");
-          break;
-        }
-        a.values.push_back(*number);
-      }
-    }
-    axis.finish();
-    if (key) {
-      a.key = *key;
-      a.line = axis.line_of("key");
-      // The key must be a number in the base scenario (or a key it does not give yet, which the
-      // scenario check below accepts or refuses).
-      if (!base_text.empty()) {
-        toml::table probe = base_table;
-        std::string problem;
-        const toml::node* existing = nullptr;
-        if (!place(probe, a.key, problem, &existing)) {
-          d.add(axis.key_path("key"), axis.line_of("key"),
-                a.key + " is not a key of the scenario" + (problem.empty() ? "" : ": " + problem));
-        } else if (existing) {
-          if (existing->is_table() && existing->as_table()->contains("dist"))
-            d.add(axis.key_path("key"), axis.line_of("key"),
-                  a.key + " is a distribution in " + *base +
-                      "; sweep one of its parameters, e.g. " + a.key +
-                      (existing->as_table()->contains("mean") ? ".mean" : ".median"));
-          else if (existing->is_table())
-            d.add(axis.key_path("key"), axis.line_of("key"),
-                  a.key + " is a table in " + *base + "; sweep one of its numeric keys, e.g. " +
-                      a.key + "." +
-                      (existing->as_table()->empty()
-                           ? std::string("speed")
-                           : std::string(existing->as_table()->cbegin()->first.str())));
-          else if (!existing->is_number())
-            d.add(axis.key_path("key"), axis.line_of("key"),
-                  a.key + " is " + node_kind(*existing) + " in " + *base +
-                      "; an axis sweeps numeric keys only");
-        }
-      }
-    }
-    plan.axes.push_back(std::move(a));
-  }
+  for (auto& axis : axes) plan.axes.push_back(read_axis(axis, base_table, base_text, base, d));
   if (plan.zip && !plan.axes.empty()) {
     for (std::size_t i = 1; i < plan.axes.size(); ++i)
       if (plan.axes[i].values.size() != plan.axes[0].values.size())
@@ -311,27 +401,7 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
   }
   if (!d.empty()) throw ScenarioError(d.take());
 
-  // The cases: grid (first axis slowest) or zip.
-  std::vector<std::vector<double>> combos;
-  if (plan.zip) {
-    for (std::size_t i = 0; i < plan.axes[0].values.size(); ++i) {
-      std::vector<double> c;
-      for (const auto& a : plan.axes) c.push_back(a.values[i]);
-      combos.push_back(c);
-    }
-  } else {
-    combos.push_back({});
-    for (const auto& a : plan.axes) {
-      std::vector<std::vector<double>> next;
-      for (const auto& c : combos)
-        for (double v : a.values) {
-          auto longer = c;
-          longer.push_back(v);
-          next.push_back(std::move(longer));
-        }
-      combos = std::move(next);
-    }
-  }
+  const std::vector<std::vector<double>> combos = case_values(plan);
   for (std::size_t index = 0; index < combos.size(); ++index) {
     toml::table t = base_table;
     for (std::size_t a = 0; a < plan.axes.size(); ++a) {
@@ -363,52 +433,7 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
     text << "\n" << toml::toml_formatter(t) << "\n";
     plan.cases.push_back({combos[index], text.str()});
   }
-  // Every case must be a valid scenario before anything runs.
-  std::vector<Problem> problems;
-  for (std::size_t index = 0; index < plan.cases.size(); ++index) {
-    try {
-      const Scenario s = parse_scenario(plan.cases[index].text, plan.base_path);
-      const World world = build_world(s);
-      (void)SampleModel(s, world, 1);  // correlations hold together
-      if (index == 0) {
-        plan.samples = static_cast<std::uint64_t>(s.study.samples);
-        plan.files_read = s.files_read;
-        plan.files_read.push_back(path);
-      }
-    } catch (const ScenarioError& e) {
-      for (const auto& p : e.problems()) {
-        // Name the axis whose key the problem is about, at its line in the sweep file. The
-        // scenario names a body by its place (body[1].mass); an axis by its name (crate.mass).
-        std::string key_path = p.key_path, named = p.key_path;
-        if (named.rfind("body[", 0) == 0) {
-          const std::size_t close = named.find(']');
-          const auto* bodies = base_table["body"].as_array();
-          if (close != std::string::npos && bodies &&
-              named.find_first_not_of("0123456789", 5) == close) {
-            const std::size_t b = std::stoul(named.substr(5, close - 5));
-            const toml::table* body = b < bodies->size() ? bodies->get(b)->as_table() : nullptr;
-            const auto name = body ? (*body)["name"].value<std::string>() : std::nullopt;
-            if (name) named = *name + named.substr(close + 1);
-          }
-        }
-        long line = 0;
-        for (std::size_t a = 0; a < plan.axes.size(); ++a) {
-          const std::string& k = plan.axes[a].key;
-          if (named == k || k.rfind(named + ".", 0) == 0 || named.rfind(k + ".", 0) == 0) {
-            key_path = "axis[" + std::to_string(a) + "].key";
-            line = plan.axes[a].line;
-            break;
-          }
-        }
-        problems.push_back({path, key_path, line,
-                            "case " + std::to_string(index) + " (" + case_label(plan, index) +
-                                "): " + (key_path != p.key_path ? p.key_path + ": " : "") +
-                                p.message});
-      }
-    }
-    if (problems.size() > 20) break;  // the same mistake repeats in every case
-  }
-  if (!problems.empty()) throw ScenarioError(problems);
+  check_cases(plan, base_table, path);
   return plan;
 }
 

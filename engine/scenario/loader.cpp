@@ -14,7 +14,7 @@
 
 namespace strewn {
 
-using namespace scenario_detail;
+using namespace toml_input;
 
 int Scenario::body_index(const std::string& name) const {
   for (std::size_t i = 0; i < bodies.size(); ++i)

@@ -4,7 +4,7 @@
 
 #include "core/text.hpp"
 
-namespace strewn::scenario_detail {
+namespace strewn::toml_input {
 
 std::string Bounds::describe() const {
   if (words) return words;
@@ -35,7 +35,7 @@ void Diagnostics::add(std::string key_path, long line, std::string message) {
 
 Table::Table(Diagnostics& diagnostics, const toml::table* table, std::string path, long line)
     : diagnostics_(diagnostics), table_(table), path_(std::move(path)), line_(line) {
-  if (table_ && line_ == 0) line_ = scenario_detail::line_of(table_);
+  if (table_ && line_ == 0) line_ = toml_input::line_of(table_);
 }
 
 bool Table::has(std::string_view key) const {
@@ -49,7 +49,7 @@ std::string Table::key_path(std::string_view key) const {
 long Table::line_of(std::string_view key) const {
   if (!table_) return line_;
   const toml::node* n = table_->get(key);
-  return n ? scenario_detail::line_of(n) : line_;
+  return n ? toml_input::line_of(n) : line_;
 }
 
 const toml::node* Table::node(std::string_view key) {
@@ -221,7 +221,7 @@ std::optional<Uncertain> Table::uncertain(std::string_view key, const Bounds& bo
                          type_name(*n));
     return std::nullopt;
   }
-  Table dist(diagnostics_, t, path, scenario_detail::line_of(n));
+  Table dist(diagnostics_, t, path, toml_input::line_of(n));
   const auto kind =
       dist.text("dist", {"normal", "lognormal", "uniform", "triangular", "choice"}, true);
   std::optional<Uncertain> result;
@@ -308,10 +308,10 @@ Table Table::table(std::string_view key) {
   const toml::node* n = node(key);
   if (n && !n->is_table()) {
     diagnostics_.add(key_path(key), n, "expected a table, got " + type_name(*n));
-    return Table(diagnostics_, nullptr, key_path(key), scenario_detail::line_of(n));
+    return Table(diagnostics_, nullptr, key_path(key), toml_input::line_of(n));
   }
   return Table(diagnostics_, n ? n->as_table() : nullptr, key_path(key),
-               n ? scenario_detail::line_of(n) : line_);
+               n ? toml_input::line_of(n) : line_);
 }
 
 std::vector<Table> Table::tables(std::string_view key) {
@@ -332,7 +332,7 @@ std::vector<Table> Table::tables(std::string_view key) {
       diagnostics_.add(item_path, item, "expected a table, got " + type_name(*item));
       continue;
     }
-    out.emplace_back(diagnostics_, item->as_table(), item_path, scenario_detail::line_of(item));
+    out.emplace_back(diagnostics_, item->as_table(), item_path, toml_input::line_of(item));
   }
   return out;
 }
@@ -363,4 +363,4 @@ void Table::finish(const std::vector<std::string>& also_known) {
   }
 }
 
-}  // namespace strewn::scenario_detail
+}  // namespace strewn::toml_input

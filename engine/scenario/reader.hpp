@@ -1,6 +1,7 @@
 #pragma once
 // Reading checked values out of toml++ tables, collecting every problem with its key path and
-// line instead of stopping at the first. Internal to the scenario module.
+// line instead of stopping at the first: how strewn reads its TOML input files, the scenario
+// (loader.cpp) and a sweep (cluster/sweep.cpp) alike, so that both report problems the same way.
 #include <toml++/toml.h>
 #include <functional>
 #include <limits>
@@ -13,7 +14,7 @@
 #include "core/errors.hpp"
 #include "core/uncertain.hpp"
 
-namespace strewn::scenario_detail {
+namespace strewn::toml_input {
 
 /// Where a value must lie. Bounds are closed unless marked open.
 struct Bounds {
@@ -108,4 +109,4 @@ long line_of(const toml::node* node);
 /// Reads a number node (integer or float); nullopt for other types.
 std::optional<double> as_number(const toml::node& node);
 
-}  // namespace strewn::scenario_detail
+}  // namespace strewn::toml_input
