@@ -449,6 +449,172 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out, std::
   return run_command_line(argc, argv, out, err, single);
 }
 
+namespace {
+
+// The arguments of `sweep` and `check`, filled by CLI11.
+struct SweepArguments {
+  std::string file;
+  std::uint64_t samples = 0;
+  SweepOptions options;
+  bool quiet = false;
+};
+struct CheckArguments {
+  std::string scenario;
+  bool json = false;
+};
+
+// Each command's options, one function a command: the command is returned.
+CLI::App* add_trace_command(CLI::App& app, TraceArguments& a) {
+  auto* command = app.add_subcommand("trace",
+                                     "Fly one body with every input at its median and "
+                                     "report its impact, trajectory and drag regime");
+  command->add_option("SCENARIO", a.scenario, "Scenario file (TOML)")->required();
+  command->add_option("--body", a.body, "Name of the body to fly (default: the first)");
+  auto* json_flag = command->add_flag("--json", a.json, "Print JSON");
+  command->add_flag("--csv", a.csv, "Print the trajectory as CSV")->excludes(json_flag);
+  return command;
+}
+
+CLI::App* add_run_command(CLI::App& app, RunArguments& a) {
+  auto* command = app.add_subcommand(
+      "run", "Run the Monte Carlo study of a scenario into an HDF5 results file");
+  command->add_option("SCENARIO", a.scenario, "Scenario file (TOML)")->required();
+  command->add_option("-n", a.samples, "Samples (default: study.samples)")
+      ->check(whole_number(1, kMostSamples));
+  command->add_option("--seed", a.seed, "Random seed (default: study.seed)")
+      ->check(whole_number(0, kMostInteger));
+  command->add_option("-j", a.threads, "Threads (default: all)")
+      ->check(whole_number(1, kMostThreads));
+  command->add_option("-o", a.output,
+                      "Results file (default: output.file, else results/<scenario>.h5)");
+  command
+      ->add_option("--sample", a.sample,
+                   "Replay this one sample with its trajectory (writes nothing)")
+      ->check(whole_number(0, kMostInteger));
+  command->add_flag("--quiet", a.quiet, "No progress line");
+  command->add_flag("--json", a.json, "Print the summary as JSON");
+  command->add_flag("--resume", a.resume,
+                    "Go on from the checkpoint a stopped run left beside its output");
+  command->add_flag(
+      "--timing", a.timing,
+      "Print the study's wall time (from input read to file written) on standard error");
+  return command;
+}
+
+CLI::App* add_sweep_command(CLI::App& app, SweepArguments& a) {
+  auto* command = app.add_subcommand(
+      "sweep", "Run every case of a parameter sweep (a complete study each) into one results file");
+  command->add_option("SWEEP", a.file, "Sweep file (TOML)")->required();
+  command->add_option("-n", a.samples, "Samples per case (default: the base scenario's)")
+      ->check(whole_number(1, kMostSamples));
+  command->add_option("-j", a.options.threads, "Threads per rank (default: all)")
+      ->check(whole_number(1, kMostThreads));
+  command->add_option("-o", a.options.output,
+                      "Results file (default: the sweep's output, else results/<sweep>.h5)");
+  command->add_flag(
+      "--fresh", a.options.fresh,
+      "Run every case again (default: a stopped sweep resumes, skipping finished cases)");
+  command->add_flag("--quiet", a.quiet, "No line per finished case");
+  return command;
+}
+
+CLI::App* add_report_command(CLI::App& app, ReportArguments& a) {
+  auto* command = app.add_subcommand(
+      "report", "Show a results file's footprint: summary, JSON, GeoJSON, CSV, SVG map, HTML page");
+  command->add_option("RESULTS", a.results, "Results file (HDF5) written by run")->required();
+  command
+      ->add_option("--case", a.sweep_case,
+                   "Of a sweep's file: the case to show (0, 1, ...; see its summary CSV)")
+      ->check(whole_number(0, kMostInteger));
+  command->add_flag("--json", a.json, "Print the summary as JSON");
+  command->add_option("--geojson", a.geojson,
+                      "Write the footprint as GeoJSON (needs site.latitude and longitude)");
+  command->add_flag("--impacts", a.impacts, "Add every impact point to the GeoJSON");
+  command->add_option("--svg", a.svg, "Write the map as SVG");
+  command->add_option("--html", a.html, "Write a self-contained HTML report");
+  command->add_option("--csv", a.csv, "Write every figure as CSV");
+  return command;
+}
+
+CLI::App* add_check_command(CLI::App& app, CheckArguments& a) {
+  auto* command = app.add_subcommand(
+      "check", "Validate a scenario and print it fully resolved with its sampled inputs");
+  command->add_option("SCENARIO", a.scenario, "Scenario file (TOML)")->required();
+  command->add_flag("--json", a.json, "Print JSON");
+  return command;
+}
+
+CLI::App* add_atmosphere_command(CLI::App& app, AtmosphereRequest& a) {
+  auto* command = app.add_subcommand("atmosphere", "Print the U.S. Standard Atmosphere 1976 table");
+  command->add_option("--offset", a.offset, "Temperature offset, K");
+  command->add_option("--top", a.top, "Highest altitude, m (default 20000)");
+  command->add_option("--step", a.step, "Altitude step, m (default 1000)");
+  command->add_flag("--csv", a.csv, "Print CSV");
+  return command;
+}
+
+// `check`: the scenario validated whole, and printed fully resolved.
+int run_check(const CheckArguments& a, std::ostream& out) {
+  const Scenario scenario = load_scenario(a.scenario);
+  const World world = build_world(scenario);
+  const SampleModel model(scenario, world, 1);  // correlations hold together
+  check_memory(scenario, model);
+  // The results file `run` would write: its folder must be one that can be made and written.
+  RunArguments as_run;
+  as_run.scenario = a.scenario;
+  prepare_output(output_path(as_run, scenario), output_origin(as_run, scenario), false,
+                 scenario.files_read);
+  if (a.json)
+    out << scenario_json(scenario).dump(2) << '\n';
+  else
+    write_scenario_text(out, scenario);
+  return kExitDone;
+}
+
+// The command line's commands and their arguments.
+struct Commands {
+  TraceArguments trace;
+  RunArguments run;
+  SweepArguments sweep;
+  ReportArguments report;
+  CheckArguments check;
+  AtmosphereRequest atmosphere;
+  CLI::App *trace_command = nullptr, *run_command = nullptr, *sweep_command = nullptr,
+           *report_command = nullptr, *check_command = nullptr, *atmosphere_command = nullptr;
+
+  explicit Commands(CLI::App& app)
+      : trace_command(add_trace_command(app, trace)),
+        run_command(add_run_command(app, run)),
+        sweep_command(add_sweep_command(app, sweep)),
+        report_command(add_report_command(app, report)),
+        check_command(add_check_command(app, check)),
+        atmosphere_command(add_atmosphere_command(app, atmosphere)) {}
+
+  // Runs the command given; `err` is rank 0's, `rank_err` every rank's own.
+  int run_chosen(std::ostream& out, std::ostream& err, std::ostream& rank_err, const Job& job) {
+    if (*trace_command) return run_trace(trace, out);
+    if (*run_command) return run_study_command(run, out, err, job);
+    if (*sweep_command) {
+      const SweepPlan plan = load_sweep(sweep.file, sweep.samples);
+      std::optional<tbb::global_control> limit;
+      if (sweep.options.threads > 0)
+        limit.emplace(tbb::global_control::max_allowed_parallelism,
+                      static_cast<std::size_t>(sweep.options.threads));
+      return run_sweep_command(job, plan, sweep.options, sweep.quiet, out, err, rank_err);
+    }
+    if (!job.leader()) return kExitDone;  // the other commands run on rank 0 only
+    if (*report_command) return run_report(report, out);
+    if (*check_command) return run_check(check, out);
+    if (*atmosphere_command) {
+      write_atmosphere(out, atmosphere);
+      return kExitDone;
+    }
+    return kExitInvalid;
+  }
+};
+
+}  // namespace
+
 int run_command_line(int argc, const char* const* argv, std::ostream& out_stream,
                      std::ostream& err_stream, const Job& job) {
   // Only rank 0 speaks; the others keep quiet unless something fails on them alone.
@@ -462,90 +628,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       "strewn"};
   app.set_version_flag("--version", std::string("strewn ") + kEngineVersion);
   app.require_subcommand(1);
-
-  TraceArguments trace;
-  auto* trace_cmd = app.add_subcommand("trace",
-                                       "Fly one body with every input at its median and "
-                                       "report its impact, trajectory and drag regime");
-  trace_cmd->add_option("SCENARIO", trace.scenario, "Scenario file (TOML)")->required();
-  trace_cmd->add_option("--body", trace.body, "Name of the body to fly (default: the first)");
-  auto* json_flag = trace_cmd->add_flag("--json", trace.json, "Print JSON");
-  trace_cmd->add_flag("--csv", trace.csv, "Print the trajectory as CSV")->excludes(json_flag);
-
-  RunArguments run;
-  auto* run_cmd = app.add_subcommand(
-      "run", "Run the Monte Carlo study of a scenario into an HDF5 results file");
-  run_cmd->add_option("SCENARIO", run.scenario, "Scenario file (TOML)")->required();
-  run_cmd->add_option("-n", run.samples, "Samples (default: study.samples)")
-      ->check(whole_number(1, kMostSamples));
-  run_cmd->add_option("--seed", run.seed, "Random seed (default: study.seed)")
-      ->check(whole_number(0, kMostInteger));
-  run_cmd->add_option("-j", run.threads, "Threads (default: all)")
-      ->check(whole_number(1, kMostThreads));
-  run_cmd->add_option("-o", run.output,
-                      "Results file (default: output.file, else results/<scenario>.h5)");
-  run_cmd
-      ->add_option("--sample", run.sample,
-                   "Replay this one sample with its trajectory (writes nothing)")
-      ->check(whole_number(0, kMostInteger));
-  run_cmd->add_flag("--quiet", run.quiet, "No progress line");
-  run_cmd->add_flag("--json", run.json, "Print the summary as JSON");
-  run_cmd->add_flag("--resume", run.resume,
-                    "Go on from the checkpoint a stopped run left beside its output");
-  run_cmd->add_flag(
-      "--timing", run.timing,
-      "Print the study's wall time (from input read to file written) on standard error");
-
-  std::string sweep_file;
-  std::uint64_t sweep_samples = 0;
-  SweepOptions sweep;
-  bool sweep_quiet = false;
-  auto* sweep_cmd = app.add_subcommand(
-      "sweep", "Run every case of a parameter sweep (a complete study each) into one results file");
-  sweep_cmd->add_option("SWEEP", sweep_file, "Sweep file (TOML)")->required();
-  sweep_cmd->add_option("-n", sweep_samples, "Samples per case (default: the base scenario's)")
-      ->check(whole_number(1, kMostSamples));
-  sweep_cmd->add_option("-j", sweep.threads, "Threads per rank (default: all)")
-      ->check(whole_number(1, kMostThreads));
-  sweep_cmd->add_option("-o", sweep.output,
-                        "Results file (default: the sweep's output, else results/<sweep>.h5)");
-  sweep_cmd->add_flag(
-      "--fresh", sweep.fresh,
-      "Run every case again (default: a stopped sweep resumes, skipping finished cases)");
-  sweep_cmd->add_flag("--quiet", sweep_quiet, "No line per finished case");
-
-  ReportArguments report;
-  auto* report_cmd = app.add_subcommand(
-      "report", "Show a results file's footprint: summary, JSON, GeoJSON, CSV, SVG map, HTML page");
-  report_cmd->add_option("RESULTS", report.results, "Results file (HDF5) written by run")
-      ->required();
-  report_cmd
-      ->add_option("--case", report.sweep_case,
-                   "Of a sweep's file: the case to show (0, 1, ...; see its summary CSV)")
-      ->check(whole_number(0, kMostInteger));
-  report_cmd->add_flag("--json", report.json, "Print the summary as JSON");
-  report_cmd->add_option("--geojson", report.geojson,
-                         "Write the footprint as GeoJSON (needs site.latitude and longitude)");
-  report_cmd->add_flag("--impacts", report.impacts, "Add every impact point to the GeoJSON");
-  report_cmd->add_option("--svg", report.svg, "Write the map as SVG");
-  report_cmd->add_option("--html", report.html, "Write a self-contained HTML report");
-  report_cmd->add_option("--csv", report.csv, "Write every figure as CSV");
-
-  std::string check_scenario;
-  bool check_json = false;
-  auto* check_cmd = app.add_subcommand(
-      "check", "Validate a scenario and print it fully resolved with its sampled inputs");
-  check_cmd->add_option("SCENARIO", check_scenario, "Scenario file (TOML)")->required();
-  check_cmd->add_flag("--json", check_json, "Print JSON");
-
-  AtmosphereRequest atmosphere;
-  auto* atmosphere_cmd =
-      app.add_subcommand("atmosphere", "Print the U.S. Standard Atmosphere 1976 table");
-  atmosphere_cmd->add_option("--offset", atmosphere.offset, "Temperature offset, K");
-  atmosphere_cmd->add_option("--top", atmosphere.top, "Highest altitude, m (default 20000)");
-  atmosphere_cmd->add_option("--step", atmosphere.step, "Altitude step, m (default 1000)");
-  atmosphere_cmd->add_flag("--csv", atmosphere.csv, "Print CSV");
-
+  Commands commands(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
@@ -559,38 +642,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
   }
 
   try {
-    if (*trace_cmd) return run_trace(trace, out);
-    if (*run_cmd) return run_study_command(run, out, err, job);
-    if (*sweep_cmd) {
-      const SweepPlan plan = load_sweep(sweep_file, sweep_samples);
-      std::optional<tbb::global_control> limit;
-      if (sweep.threads > 0)
-        limit.emplace(tbb::global_control::max_allowed_parallelism,
-                      static_cast<std::size_t>(sweep.threads));
-      return run_sweep_command(job, plan, sweep, sweep_quiet, out, err, err_stream);
-    }
-    if (!job.leader()) return kExitDone;  // the other commands run on rank 0 only
-    if (*report_cmd) return run_report(report, out);
-    if (*check_cmd) {
-      const Scenario scenario = load_scenario(check_scenario);
-      const World world = build_world(scenario);
-      const SampleModel model(scenario, world, 1);  // correlations hold together
-      check_memory(scenario, model);
-      // The results file `run` would write: its folder must be one that can be made and written.
-      RunArguments as_run;
-      as_run.scenario = check_scenario;
-      prepare_output(output_path(as_run, scenario), output_origin(as_run, scenario), false,
-                     scenario.files_read);
-      if (check_json)
-        out << scenario_json(scenario).dump(2) << '\n';
-      else
-        write_scenario_text(out, scenario);
-      return kExitDone;
-    }
-    if (*atmosphere_cmd) {
-      write_atmosphere(out, atmosphere);
-      return kExitDone;
-    }
+    return commands.run_chosen(out, err, err_stream, job);
   } catch (const ScenarioError& e) {
     for (const auto& problem : e.problems()) err << "error: " << problem.describe() << '\n';
     err << e.problems().size() << (e.problems().size() == 1 ? " problem" : " problems")
