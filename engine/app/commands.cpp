@@ -11,6 +11,7 @@
 #include <cerrno>
 #include <charconv>
 #include <chrono>
+#include <functional>
 #include <csignal>
 #include <cstdint>
 #include <cstring>
@@ -235,6 +236,57 @@ int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& ou
   return all_landed ? kExitDone : kExitFailure;
 }
 
+// The progress line of a study on a terminal: samples done, rate and time left.
+std::function<void(std::uint64_t)> progress_line(std::ostream& err, std::uint64_t samples,
+                                                 std::chrono::steady_clock::time_point start) {
+  return [&err, samples, start](std::uint64_t done) {
+    const double seconds =
+        std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+    const double rate = static_cast<double>(done) / std::max(seconds, 1e-9);
+    char line[160];
+    std::snprintf(line, sizeof line, "\r  %llu / %llu samples, %.0f per second, %.0f s left   ",
+                  static_cast<unsigned long long>(done), static_cast<unsigned long long>(samples),
+                  rate, static_cast<double>(samples - done) / std::max(rate, 1e-9));
+    err << line << std::flush;
+  };
+}
+
+// The study flown and stored: on one process with a checkpoint beside the output, stopped
+// cleanly by SIGINT or SIGTERM; on the ranks of a job without.
+StudyRun fly_and_store(const Job& job, const SampleModel& model, const World& world,
+                       const StudyOptions& options, const std::string& path, int threads,
+                       bool resume) {
+  const bool keep_samples = model.scenario().output.samples;
+  if (job.size() == 1) {
+    RunControl control;
+    control.stop = &stop_requested;
+    control.checkpoint = true;
+    control.resume = resume;
+    return run_and_write(model, world, options, path, threads, keep_samples, control);
+  }
+  if (resume) throw UsageError("--resume works on one process; run it without mpirun");
+  return run_on_ranks(job, model, world, options, path, threads, keep_samples);
+}
+
+// True, after saying so with the first samples to replay, when more flights failed than
+// study.max_failed allows.
+bool too_many_failed(const StudyResult& result, double max_failed, std::ostream& err) {
+  const double failed_share =
+      static_cast<double>(result.failed) /
+      static_cast<double>(std::max<std::uint64_t>(1, result.failed + result.completed));
+  if (!(failed_share > max_failed)) return false;
+  err << "error: " << result.failed << " flights failed, more than study.max_failed (" << max_failed
+      << ") allows; replay them with --sample:";
+  int listed = 0;
+  for (std::size_t row = 0; row < result.columns.rows() && listed < 10; ++row)
+    if (result.columns.status[row] != 0) {
+      err << ' ' << row / result.bodies;
+      ++listed;
+    }
+  err << (result.failed > 10 ? " ...\n" : "\n");
+  return true;
+}
+
 int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& err, const Job& job) {
   // From the start on one process: a signal while the scenario is read still stops cleanly.
   std::optional<StopOnSignals> signals;
@@ -263,34 +315,13 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   options.samples = samples;
   const bool show = !a.quiet && job.leader() && ::isatty(STDERR_FILENO);
   const auto start = std::chrono::steady_clock::now();
-  if (show) {
-    options.progress = [&](std::uint64_t done) {
-      const double seconds =
-          std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-      const double rate = static_cast<double>(done) / std::max(seconds, 1e-9);
-      char line[160];
-      std::snprintf(line, sizeof line, "\r  %llu / %llu samples, %.0f per second, %.0f s left   ",
-                    static_cast<unsigned long long>(done), static_cast<unsigned long long>(samples),
-                    rate, static_cast<double>(samples - done) / std::max(rate, 1e-9));
-      err << line << std::flush;
-    };
-  }
+  if (show) options.progress = progress_line(err, samples, start);
   const int threads = a.threads > 0 ? a.threads
                                     : static_cast<int>(tbb::global_control::active_value(
                                           tbb::global_control::max_allowed_parallelism));
   StudyRun run;
   try {
-    if (job.size() == 1) {
-      // One process: a checkpoint beside the output, and SIGINT / SIGTERM stop cleanly.
-      RunControl control;
-      control.stop = &stop_requested;
-      control.checkpoint = true;
-      control.resume = a.resume;
-      run = run_and_write(model, world, options, path, threads, scenario.output.samples, control);
-    } else {
-      if (a.resume) throw UsageError("--resume works on one process; run it without mpirun");
-      run = run_on_ranks(job, model, world, options, path, threads, scenario.output.samples);
-    }
+    run = fly_and_store(job, model, world, options, path, threads, a.resume);
   } catch (const IoError& e) {
     throw IoError(origin + e.what());
   }
@@ -318,23 +349,7 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
     out << record_json(run.record, false).dump(2) << '\n';
   else
     write_record_text(out, run.record);
-  const StudyResult& result = run.result;
-  const double failed_share =
-      static_cast<double>(result.failed) /
-      static_cast<double>(std::max<std::uint64_t>(1, result.failed + result.completed));
-  if (failed_share > scenario.study.max_failed) {
-    err << "error: " << result.failed << " flights failed, more than study.max_failed ("
-        << scenario.study.max_failed << ") allows; replay them with --sample:";
-    int listed = 0;
-    for (std::size_t row = 0; row < result.columns.rows() && listed < 10; ++row)
-      if (result.columns.status[row] != 0) {
-        err << ' ' << row / result.bodies;
-        ++listed;
-      }
-    err << (result.failed > 10 ? " ...\n" : "\n");
-    return kExitFailure;
-  }
-  return kExitDone;
+  return too_many_failed(run.result, scenario.study.max_failed, err) ? kExitFailure : kExitDone;
 }
 
 struct ReportArguments {

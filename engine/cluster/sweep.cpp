@@ -466,6 +466,49 @@ void run_case(const SweepPlan& plan, std::size_t index, const std::string& file,
   (void)run_and_write(model, world, options, file, threads, s.output.samples);
 }
 
+// Rank 0, before any case runs: the output checked (a missing folder is made; one that cannot be
+// is refused with status 2), the folder of the cases made (emptied first when fresh), the
+// leftovers of a stopped run cleared; returns the cases still to run, in order.
+std::vector<std::size_t> pending_cases(const SweepPlan& plan, const SweepOptions& options,
+                                       const std::string& output, const std::string& folder,
+                                       const SweepEvents& events) {
+  prepare_output(output, options.output.empty() ? plan.path + ": output: " : "", true,
+                 plan.files_read);
+  std::error_code ec;
+  if (options.fresh) fs::remove_all(folder, ec);
+  fs::create_directories(folder, ec);
+  if (ec) throw IoError(folder + ": cannot create the folder of the cases (" + ec.message() + ")");
+  // Files left half-written by a stopped run (of this machine, whose process is gone).
+  remove_stale_partials(folder, "");
+  std::vector<std::size_t> pending;
+  for (std::size_t i = 0; i < plan.cases.size(); ++i)
+    if (!finished(case_file(folder, i), plan.cases[i].text)) pending.push_back(i);
+  const std::size_t skipped = plan.cases.size() - pending.size();
+  if (events.resumed && skipped > 0) events.resumed(skipped, plan.cases.size(), folder);
+  return pending;
+}
+
+SweepOutcome gather_cases(const Job& job, const SweepPlan& plan, const std::string& output,
+                          const std::string& folder) {
+  // Rank 0 gathers the cases, in index order, into the sweep's file and its CSV summary.
+  std::vector<SweepCaseSource> sources;
+  std::vector<std::string> keys;
+  for (const auto& a : plan.axes) keys.push_back(a.key);
+  for (std::size_t i = 0; i < plan.cases.size(); ++i) {
+    const std::string file = case_file(folder, i);
+    if (!finished(file, plan.cases[i].text))
+      throw IoError(file + ": case " + std::to_string(i) + " did not finish");
+    sources.push_back({file, plan.cases[i].values});
+  }
+  const SweepSummary summary =
+      write_sweep_file(output, plan.text, keys, plan.zip, sources, job.size());
+  const std::string csv_path = (fs::path(output).replace_extension("").string()) + "-summary.csv";
+  write_report_file(csv_path, summary.csv, plan.files_read);
+  std::error_code ec;
+  fs::remove_all(folder, ec);
+  return SweepOutcome{plan.cases.size(), output, csv_path, summary.text};
+}
+
 constexpr int kRequestTag = 21, kAnswerTag = 22;
 
 }  // namespace
@@ -474,25 +517,11 @@ std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
                                       const SweepOptions& options, const SweepEvents& events) {
   const std::string output = options.output.empty() ? plan.output : options.output;
   const std::string folder = output + ".cases";
-  std::vector<std::size_t> pending;
   int threads = options.threads;
   if (threads <= 0) threads = static_cast<int>(std::thread::hardware_concurrency());
-  if (job.leader()) {
-    // A missing folder is made; one that cannot be is refused before any case runs (status 2).
-    prepare_output(output, options.output.empty() ? plan.path + ": output: " : "", true,
-                   plan.files_read);
-    std::error_code ec;
-    if (options.fresh) fs::remove_all(folder, ec);
-    fs::create_directories(folder, ec);
-    if (ec)
-      throw IoError(folder + ": cannot create the folder of the cases (" + ec.message() + ")");
-    // Files left half-written by a stopped run (of this machine, whose process is gone).
-    remove_stale_partials(folder, "");
-    for (std::size_t i = 0; i < plan.cases.size(); ++i)
-      if (!finished(case_file(folder, i), plan.cases[i].text)) pending.push_back(i);
-    const std::size_t skipped = plan.cases.size() - pending.size();
-    if (events.resumed && skipped > 0) events.resumed(skipped, plan.cases.size(), folder);
-  }
+  const std::vector<std::size_t> pending =
+      job.leader() ? pending_cases(plan, options, output, folder, events)
+                   : std::vector<std::size_t>{};
   std::mutex told;
   auto report_done = [&](std::size_t index) {
     if (!events.case_done) return;
@@ -563,23 +592,7 @@ std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
   job.barrier();
   if (!job.leader()) return std::nullopt;
 
-  // Rank 0 gathers the cases, in index order, into the sweep's file and its CSV summary.
-  std::vector<SweepCaseSource> sources;
-  std::vector<std::string> keys;
-  for (const auto& a : plan.axes) keys.push_back(a.key);
-  for (std::size_t i = 0; i < plan.cases.size(); ++i) {
-    const std::string file = case_file(folder, i);
-    if (!finished(file, plan.cases[i].text))
-      throw IoError(file + ": case " + std::to_string(i) + " did not finish");
-    sources.push_back({file, plan.cases[i].values});
-  }
-  const SweepSummary summary =
-      write_sweep_file(output, plan.text, keys, plan.zip, sources, job.size());
-  const std::string csv_path = (fs::path(output).replace_extension("").string()) + "-summary.csv";
-  write_report_file(csv_path, summary.csv, plan.files_read);
-  std::error_code ec;
-  fs::remove_all(folder, ec);
-  return SweepOutcome{plan.cases.size(), output, csv_path, summary.text};
+  return gather_cases(job, plan, output, folder);
 }
 
 }  // namespace strewn
