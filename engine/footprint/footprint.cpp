@@ -855,22 +855,8 @@ double gaussian_circle_radius(const std::array<double, 3>& covariance, double p)
   return 0.5 * (root.first + root.second);
 }
 
-Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
-  const std::size_t bodies = s.body_names.size();
-  if (bodies == 0 || s.body_counts.size() != bodies)
-    throw std::invalid_argument("compute_footprint: body names and counts must match");
-  if (s.centre == CentreRule::nominal && s.nominal_impacts.size() != bodies)
-    throw std::invalid_argument("compute_footprint: one nominal impact per body is needed");
-  if (t.rows() >= (std::size_t{1} << 32))
-    throw std::invalid_argument("compute_footprint: more than 2^32 rows");
-  Footprint out;
-  out.levels = s.levels;
-  out.confidence = s.confidence;
-  out.centre = to_string(s.centre);
-  out.downrange_bearing = s.downrange_bearing;
-  out.energy_threshold = s.energy_threshold;
-  out.releases = s.releases;
-
+// The rows of each body and, last, of all of them: every row counted, the landed ones listed.
+std::vector<GroupRows> rows_of_groups(const ImpactTable& t, std::size_t bodies) {
   std::vector<GroupRows> rows(bodies + 1);
   for (std::size_t b = 0; b < bodies; ++b) rows[b].landed.reserve(t.rows() / bodies + 1);
   for (std::size_t i = 0; i < t.rows(); ++i) {
@@ -887,6 +873,72 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
     for (std::size_t i = 0; i < t.rows(); ++i)
       if (t.status[i] == 0) rows[bodies].landed.push_back(static_cast<std::uint32_t>(i));
   }
+  return rows;
+}
+
+// The user's rules, judged for each body and for all (for all of several bodies, weighted as one
+// release).
+std::vector<RuleCheck> judge_rules(const ImpactTable& t, const FootprintSettings& s,
+                                   const std::vector<GroupRows>& rows,
+                                   const std::vector<GroupFootprint>& groups) {
+  const std::size_t bodies = rows.size() - 1;
+  std::vector<RuleCheck> rules;
+  for (std::size_t k = 0; k < groups.size(); ++k) {
+    const GroupFootprint& g = groups[k];
+    const GroupRows& r = k < bodies ? rows[k] : rows[bodies];
+    if (bodies == 1 && k == 0) continue;             // one body: its figures are those of "all"
+    const bool release = k == bodies && bodies > 1;  // "all" of several bodies: weighted
+    const std::vector<GroupRows> per_body(rows.begin(), rows.begin() + static_cast<long>(bodies));
+    if (s.rules.zone_radius && s.rules.max_outside) {
+      const double radius = *s.rules.zone_radius, accepted = *s.rules.max_outside;
+      const std::uint64_t count = count_outside(t, r, g.centre, radius);
+      if (release) {
+        const MixtureColumn distance = mixture_of(per_body, s, [&](std::uint32_t row) {
+          return planar_distance(t.east[row] - g.centre.east, t.north[row] - g.centre.north);
+        });
+        rules.push_back(judge_share("zone_radius", g.name, radius, accepted, count, r.rows,
+                                    distance.share_above(radius, s.confidence), s.confidence,
+                                    distance.samples_to_decide(radius, accepted, s.confidence)));
+      } else {
+        rules.push_back(
+            judge("zone_radius", g.name, radius, accepted, count, r.rows, s.confidence));
+      }
+    }
+    if (s.rules.energy_limit && s.rules.max_exceed) {
+      const double limit = *s.rules.energy_limit, accepted = *s.rules.max_exceed;
+      const std::uint64_t count = count_above(t, r, limit);
+      if (release) {
+        const MixtureColumn energy =
+            mixture_of(per_body, s, [&](std::uint32_t row) { return t.energy[row]; });
+        rules.push_back(judge_share("energy_limit", g.name, limit, accepted, count, r.rows,
+                                    energy.share_above(limit, s.confidence), s.confidence,
+                                    energy.samples_to_decide(limit, accepted, s.confidence)));
+      } else {
+        rules.push_back(
+            judge("energy_limit", g.name, limit, accepted, count, r.rows, s.confidence));
+      }
+    }
+  }
+  return rules;
+}
+
+Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
+  const std::size_t bodies = s.body_names.size();
+  if (bodies == 0 || s.body_counts.size() != bodies)
+    throw std::invalid_argument("compute_footprint: body names and counts must match");
+  if (s.centre == CentreRule::nominal && s.nominal_impacts.size() != bodies)
+    throw std::invalid_argument("compute_footprint: one nominal impact per body is needed");
+  if (t.rows() >= (std::size_t{1} << 32))
+    throw std::invalid_argument("compute_footprint: more than 2^32 rows");
+  Footprint out;
+  out.levels = s.levels;
+  out.confidence = s.confidence;
+  out.centre = to_string(s.centre);
+  out.downrange_bearing = s.downrange_bearing;
+  out.energy_threshold = s.energy_threshold;
+  out.releases = s.releases;
+
+  const std::vector<GroupRows> rows = rows_of_groups(t, bodies);
   ScratchPerThread scratches;
   double total_objects = 0.0;
   for (std::size_t b = 0; b < bodies; ++b) {
@@ -929,43 +981,7 @@ Footprint compute_footprint(const ImpactTable& t, const FootprintSettings& s) {
   }
 
   // The user's rules, for each body and for all.
-  for (std::size_t k = 0; k < out.groups.size() && shapes; ++k) {
-    const GroupFootprint& g = out.groups[k];
-    const GroupRows& r = k < bodies ? rows[k] : rows[bodies];
-    if (bodies == 1 && k == 0) continue;             // one body: its figures are those of "all"
-    const bool release = k == bodies && bodies > 1;  // "all" of several bodies: weighted
-    const std::vector<GroupRows> per_body(rows.begin(), rows.begin() + static_cast<long>(bodies));
-    if (s.rules.zone_radius && s.rules.max_outside) {
-      const double radius = *s.rules.zone_radius, accepted = *s.rules.max_outside;
-      const std::uint64_t count = count_outside(t, r, g.centre, radius);
-      if (release) {
-        const MixtureColumn distance = mixture_of(per_body, s, [&](std::uint32_t row) {
-          return planar_distance(t.east[row] - g.centre.east, t.north[row] - g.centre.north);
-        });
-        out.rules.push_back(
-            judge_share("zone_radius", g.name, radius, accepted, count, r.rows,
-                        distance.share_above(radius, s.confidence), s.confidence,
-                        distance.samples_to_decide(radius, accepted, s.confidence)));
-      } else {
-        out.rules.push_back(
-            judge("zone_radius", g.name, radius, accepted, count, r.rows, s.confidence));
-      }
-    }
-    if (s.rules.energy_limit && s.rules.max_exceed) {
-      const double limit = *s.rules.energy_limit, accepted = *s.rules.max_exceed;
-      const std::uint64_t count = count_above(t, r, limit);
-      if (release) {
-        const MixtureColumn energy =
-            mixture_of(per_body, s, [&](std::uint32_t row) { return t.energy[row]; });
-        out.rules.push_back(judge_share("energy_limit", g.name, limit, accepted, count, r.rows,
-                                        energy.share_above(limit, s.confidence), s.confidence,
-                                        energy.samples_to_decide(limit, accepted, s.confidence)));
-      } else {
-        out.rules.push_back(
-            judge("energy_limit", g.name, limit, accepted, count, r.rows, s.confidence));
-      }
-    }
-  }
+  if (shapes) out.rules = judge_rules(t, s, rows, out.groups);
   return out;
 }
 
