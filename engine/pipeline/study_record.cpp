@@ -78,14 +78,21 @@ std::string percent_text(std::uint64_t count, std::uint64_t rows) {
 }
 }  // namespace
 
-std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
-                                         const StudyColumns& c, const Footprint& footprint) {
-  const std::size_t bodies = s.bodies.size();
-  // Per body and flag: rows, and the most extreme value among the flagged rows.
-  struct Tally {
-    std::uint64_t count = 0;
-    double extreme = std::numeric_limits<double>::quiet_NaN(), second = extreme;
-  };
+namespace {
+
+// Per flag: the rows flagged, and the most extreme value among them (and the second figure of
+// the frame offsets).
+struct Tally {
+  std::uint64_t count = 0;
+  double extreme = std::numeric_limits<double>::quiet_NaN(), second = extreme;
+};
+// Per body: the tallies of each flag (and last, of the floating rows) and its rows.
+struct BodyTallies {
+  std::vector<std::array<Tally, kModelRangeFlagCount + 1>> tally;
+  std::vector<std::uint64_t> rows;
+};
+
+BodyTallies tally_flags(const StudyColumns& c, std::size_t bodies) {
   std::vector<std::array<Tally, kModelRangeFlagCount + 1>> tally(bodies);  // last: floats
   std::vector<std::uint64_t> rows(bodies, 0);
   auto most = [](double& into, double v) {
@@ -128,6 +135,15 @@ std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
     if (c.status[i] == static_cast<std::uint8_t>(FlightStatus::floats))
       ++tally[b][kModelRangeFlagCount].count;
   }
+  return {std::move(tally), std::move(rows)};
+}
+
+}  // namespace
+
+std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
+                                         const StudyColumns& c, const Footprint& footprint) {
+  const std::size_t bodies = s.bodies.size();
+  const auto [tally, rows] = tally_flags(c, bodies);
   // The limits of each body, from its nominal flight in the scenario's medium and wind (for an
   // ensemble, the lowest top among the members).
   double wind_top = std::numeric_limits<double>::infinity();
