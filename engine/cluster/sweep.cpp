@@ -91,6 +91,20 @@ std::vector<KeyStep> split_key(const std::string& key) {
   return steps;
 }
 
+// The table of the body a key path starts with, by the body's name (or "body" for the one body
+// of a scenario that names none); null when the path starts elsewhere.
+toml::table* body_named(toml::table& root, const std::string& name) {
+  auto* bodies = root["body"].as_array();
+  if (!bodies || name.empty()) return nullptr;
+  for (auto& b : *bodies) {
+    auto* body = b.as_table();
+    if (!body) continue;
+    const auto given = (*body)["name"].value<std::string>();
+    if ((given && *given == name) || (!given && bodies->size() == 1 && name == "body")) return body;
+  }
+  return nullptr;
+}
+
 // Where an axis key lands in the base scenario: the node that holds (or will hold) its value.
 // Bodies are named by their `name` (or "body" when the only body has none); tables on the way
 // that the scenario leaves out are made; an index must name an element that exists. Returns a
@@ -105,18 +119,9 @@ Place place(toml::table& root, const std::string& key, std::string& problem,
   }
   toml::node* at = &root;
   std::size_t i = 0;
-  if (auto* bodies = root["body"].as_array(); bodies && !steps[0].name.empty()) {
-    for (auto& b : *bodies) {
-      auto* body = b.as_table();
-      if (!body) continue;
-      const auto name = (*body)["name"].value<std::string>();
-      if ((name && *name == steps[0].name) ||
-          (!name && bodies->size() == 1 && steps[0].name == "body")) {
-        at = body;
-        i = 1;
-        break;
-      }
-    }
+  if (toml::table* body = body_named(root, steps[0].name)) {
+    at = body;
+    i = 1;
   }
   std::string walked = i == 1 ? steps[0].name : "";
   auto describe = [&] { return walked.empty() ? std::string("the scenario") : walked; };

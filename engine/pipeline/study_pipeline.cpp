@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <optional>
+#include <span>
 #include <utility>
 
 namespace strewn {
@@ -86,6 +87,28 @@ class StoreFeed : public RowSink {
   std::size_t part_row_ = 0, written_ = 0;
 };
 
+// Takes the samples from `done` on that an earlier run kept in `piece` (up to `total`) into the
+// study's rows and the store; returns where the study now stands.
+std::uint64_t take_kept(const KeptRows& piece, std::uint64_t done, std::uint64_t total,
+                        StudyStore& store, StudyRun& run) {
+  const std::uint64_t end = std::min(total, piece.first_sample + piece.rows.samples);
+  StudyResult rows = slice_samples(piece.rows, done - piece.first_sample, end - done);
+  run.resumed += rows.samples;
+  store.write(rows.columns, 0, rows.columns.rows());
+  append_rows(run.result, std::move(rows));
+  return end;
+}
+
+// The samples below `total` in kept pieces (those past it, of a longer earlier round, are not
+// counted).
+std::uint64_t kept_samples(std::span<const KeptRows> pieces, std::uint64_t total) {
+  std::uint64_t samples = 0;
+  for (const KeptRows& piece : pieces)
+    if (piece.first_sample < total)
+      samples += std::min(total, piece.first_sample + piece.rows.samples) - piece.first_sample;
+  return samples;
+}
+
 // A run stopped with `finished` samples done (in order or not) of the `planned`.
 void mark_interrupted(StudyRun& run, std::uint64_t finished, std::uint64_t planned) {
   run.result.interrupted = true;
@@ -121,13 +144,7 @@ StudyRun run_pipeline(const SampleModel& model, const World& world, StudyOptions
              kept[next_kept].first_sample + kept[next_kept].rows.samples <= done)
         ++next_kept;
       if (next_kept < kept.size() && kept[next_kept].first_sample <= done) {
-        const KeptRows& piece = kept[next_kept];
-        const std::uint64_t end = std::min(total, piece.first_sample + piece.rows.samples);
-        StudyResult rows = slice_samples(piece.rows, done - piece.first_sample, end - done);
-        run.resumed += rows.samples;
-        store->write(rows.columns, 0, rows.columns.rows());
-        append_rows(run.result, std::move(rows));
-        done = end;
+        done = take_kept(kept[next_kept], done, total, *store, run);
         if (options.progress) options.progress(done);
         continue;
       }
@@ -139,14 +156,10 @@ StudyRun run_pipeline(const SampleModel& model, const World& world, StudyOptions
       if (feed) feed->start_part(done * bodies);
       StudyResult flown = flights.fly(model, part);
       if (flown.interrupted) {
-        // Every sample finished so far is kept: those of this run and of earlier ones; pieces
-        // past the planned total (of a longer earlier round) are not counted in it.
-        std::uint64_t finished = done + flown.finished;
-        for (std::size_t k = next_kept; k < kept.size(); ++k) {
-          const std::uint64_t first = kept[k].first_sample;
-          if (first < total) finished += std::min(total, first + kept[k].rows.samples) - first;
-        }
-        mark_interrupted(run, finished, total);
+        // Every sample finished so far is kept: those of this run and of earlier ones.
+        const std::span<const KeptRows> later(kept.begin() + static_cast<long>(next_kept),
+                                              kept.end());
+        mark_interrupted(run, done + flown.finished + kept_samples(later, total), total);
         return run;  // the store is not finished: what it kept stays
       }
       append_rows(run.result, std::move(flown));
