@@ -72,6 +72,20 @@ class FlightRun {
     if (observer_) observer_->record({t, position, velocity, forces_.stage(), quasi}, forces_);
   }
   [[nodiscard]] bool quasi_steady_eligible(double z) const;
+  // A flight that ends where it starts: non-finite, released on the ground, or lighter than the
+  // medium. Sets the result and returns true then.
+  bool ends_at_release(const FlightState& y, const ReleaseState& release);
+  // The canopy plan: a deployment time when known in advance, or a deployment height to watch.
+  struct CanopyPlan {
+    bool opens = false, watch_height = false;
+    double deploy_time = std::numeric_limits<double>::infinity();
+  };
+  [[nodiscard]] CanopyPlan plan_canopy(double z) const;
+  // Where the current stage's integration stops, from time t at altitude z: the deployment (of
+  // the body stage), the end of filling, the time cap, or, for a body that may settle
+  // quasi-steadily, the end of its release transient (then `quasi_next` is set).
+  double stage_end(DragStage stage, double z, double t, double deploy_time, double fill_end,
+                   bool may_settle, bool& quasi_next) const;
   [[nodiscard]] double remaining_time_estimate(double z) const;
 
   // The model-range watch (model_range.hpp) at a point of the flight: the highest altitude, and
@@ -382,18 +396,14 @@ FlightRun::Next FlightRun::integrate(Stepper& stepper, State& y, double& t, doub
   }
 }
 
-FlightResult FlightRun::run(const ReleaseState& release) {
-  result_ = FlightResult{};
-  FlightState y;
-  y << release.position, release.velocity;
-  double t = 0.0;
+bool FlightRun::ends_at_release(const FlightState& y, const ReleaseState& release) {
   if (!y.allFinite()) {
     result_.status = FlightStatus::non_finite;
-    return result_;
+    return true;
   }
   if (y[2] <= ground_) {  // released on (or below) the ground
     finish_landing(0.0, release.position, release.velocity);
-    return result_;
+    return true;
   }
   // Lighter than the medium where it is densest on the way down (at the ground, for the
   // atmospheres and liquids here): it would rise or hover, never land. Said at once, rather than
@@ -402,22 +412,57 @@ FlightResult FlightRun::run(const ReleaseState& release) {
     result_.status = FlightStatus::floats;
     result_.position = release.position;
     result_.velocity = release.velocity;
-    return result_;
+    return true;
   }
+  return false;
+}
 
-  // Canopy plan: a deployment time when known in advance, or a deployment height to watch.
+FlightRun::CanopyPlan FlightRun::plan_canopy(double z) const {
   const Canopy& canopy = body_.canopy;
-  const bool opens = body_.has_canopy && canopy.state != CanopyState::failed;
-  double deploy_time = std::numeric_limits<double>::infinity();
-  bool watch_height = false;
-  if (opens) {
+  CanopyPlan plan;
+  plan.opens = body_.has_canopy && canopy.state != CanopyState::failed;
+  if (plan.opens) {
     if (canopy.trigger == Canopy::Trigger::time)
-      deploy_time = std::max(0.0, canopy.deploy_after);
-    else if (y[2] - ground_ <= canopy.deploy_height)
-      deploy_time = 0.0;  // released below it
+      plan.deploy_time = std::max(0.0, canopy.deploy_after);
+    else if (z - ground_ <= canopy.deploy_height)
+      plan.deploy_time = 0.0;  // released below it
     else
-      watch_height = true;
+      plan.watch_height = true;
   }
+  return plan;
+}
+
+double FlightRun::stage_end(DragStage stage, double z, double t, double deploy_time,
+                            double fill_end, bool may_settle, bool& quasi_next) const {
+  double t_stop = options_.max_time;
+  quasi_next = false;
+  if (stage == DragStage::body) {
+    t_stop = std::min(t_stop, deploy_time);
+    if (may_settle && quasi_steady_eligible(z)) {
+      // Integrate the release transient in full, then switch to the quasi-steady form.
+      const double tau = forces_.relaxation_time(z);
+      const double switch_time = t + FlightOptions::kTransientRelaxationTimes * tau;
+      if (switch_time < t_stop) {
+        t_stop = switch_time;
+        quasi_next = true;
+      }
+    }
+  } else if (stage == DragStage::filling) {
+    t_stop = std::min(t_stop, fill_end);
+  }
+  return t_stop;
+}
+
+FlightResult FlightRun::run(const ReleaseState& release) {
+  result_ = FlightResult{};
+  FlightState y;
+  y << release.position, release.velocity;
+  double t = 0.0;
+  if (ends_at_release(y, release)) return result_;
+  const Canopy& canopy = body_.canopy;
+  const CanopyPlan plan = plan_canopy(y[2]);
+  const bool opens = plan.opens, watch_height = plan.watch_height;
+  const double deploy_time = plan.deploy_time;
 
   FlightState tolerance;
   const double position_tolerance = FlightOptions::kPositionShare * options_.tolerance;
@@ -450,22 +495,8 @@ FlightResult FlightRun::run(const ReleaseState& release) {
   if (deploy_time == 0.0) enter_deployment(0.0);
 
   while (true) {
-    double t_stop = options_.max_time;
     bool quasi_next = false;
-    if (stage == DragStage::body) {
-      t_stop = std::min(t_stop, deploy_time);
-      if (!opens && quasi_steady_eligible(y[2])) {
-        // Integrate the release transient in full, then switch to the quasi-steady form.
-        const double tau = forces_.relaxation_time(y[2]);
-        const double switch_time = t + FlightOptions::kTransientRelaxationTimes * tau;
-        if (switch_time < t_stop) {
-          t_stop = switch_time;
-          quasi_next = true;
-        }
-      }
-    } else if (stage == DragStage::filling) {
-      t_stop = std::min(t_stop, fill_end);
-    }
+    const double t_stop = stage_end(stage, y[2], t, deploy_time, fill_end, !opens, quasi_next);
     const Next next = integrate(stepper, y, t, t_stop, watch_height && stage == DragStage::body);
     evaluations += stepper.evaluations();
     if (next == Next::ground || next == Next::stop) break;
