@@ -208,6 +208,22 @@ std::string case_label(const SweepPlan& plan, std::size_t index) {
 
 namespace {
 
+// The base scenario's text, parsed into `table`; empty (the problem said) when it cannot be read
+// or parsed.
+std::string read_base(const std::string& base_path, long line, Diagnostics& d, toml::table& table) {
+  std::string text = read_text(base_path, d, "base", line);
+  if (text.empty()) return text;
+  try {
+    table = toml::parse(text, base_path);
+  } catch (const toml::parse_error& e) {
+    d.add("base", line,
+          base_path + ":" + std::to_string(e.source().begin.line) + ": " +
+              std::string(e.description()));
+    text.clear();
+  }
+  return text;
+}
+
 // One axis of the sweep file: its key, checked against the base scenario (a number there, or a
 // key it does not give yet, which the check of the cases accepts or refuses), and its values.
 SweepAxis read_axis(Table& axis, const toml::table& base_table, const std::string& base_text,
@@ -380,17 +396,7 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
   std::string base_text;
   if (base) {
     plan.base_path = (fs::path(path).parent_path() / *base).lexically_normal().string();
-    base_text = read_text(plan.base_path, d, "base", top.line_of("base"));
-    if (!base_text.empty()) {
-      try {
-        base_table = toml::parse(base_text, plan.base_path);
-      } catch (const toml::parse_error& e) {
-        d.add("base", top.line_of("base"),
-              plan.base_path + ":" + std::to_string(e.source().begin.line) + ": " +
-                  std::string(e.description()));
-        base_text.clear();
-      }
-    }
+    base_text = read_base(plan.base_path, top.line_of("base"), d, base_table);
   }
   plan.output = output ? (fs::path(path).parent_path() / *output).lexically_normal().string()
                        : "results/" + fs::path(path).stem().string() + ".h5";
