@@ -234,68 +234,75 @@ std::string metres(double v) {
   // Decimetres for field studies; three significant digits below 10 m (a laboratory tank).
   return std::abs(v) >= 10.0 || v == 0.0 ? printf_text("%.1f", v) : printf_text("%.3g", v);
 }
-}  // namespace
 
-void write_record_text(std::ostream& out, const StudyRecord& r) {
-  const Footprint& f = r.footprint;
+// The opening lines: title, case, counts, sampling, confidence and how many warnings follow.
+void text_header(std::ostream& out, const StudyRecord& r,
+                 const std::vector<std::string>& warnings) {
   out << "strewn: " << (r.title.empty() ? std::string("study") : r.title) << "\n";
   if (!r.case_label.empty()) out << r.case_label << "\n";
   out << r.samples << " samples, " << r.completed << " flights landed, " << r.failed
       << " failed (seed " << r.seed << ", " << r.sampling << " sampling";
   if (r.rounds > 1) out << ", grown in " << r.rounds << " parts";
-  out << "); bounds at " << f.confidence * 100.0 << "% confidence\n";
-  const std::vector<std::string> warnings = record_warnings(r);
+  out << "); bounds at " << r.footprint.confidence * 100.0 << "% confidence\n";
   if (!warnings.empty())
     out << "warnings  " << warnings.size() << ", listed below: read them before the figures\n";
   else
     out << "warnings  none: every sample stayed within its models' ranges and assumptions\n";
-  for (const GroupFootprint* group : shown_groups(f)) {
-    const GroupFootprint& g = *group;
-    char line[256];
-    out << "\n";
-    if (g.name == "all")
-      out << "all bodies, one release (each body weighted by its objects per release, "
-          << g.objects_per_release << " in all)";
-    else
-      out << g.name;
-    out << ": mean impact east " << metres(g.mean.east) << " m, north " << metres(g.mean.north)
-        << " m; CEP " << metres(g.cep) << " m (Gaussian " << metres(g.cep_gaussian) << " m)\n"
-        << "  centre: " << centre_text(r, g) << "\n";
-    out << "  level   radius m   upper bound m   polygon m^2 (counted)   ellipse semi-axes m "
-           "(Gaussian)\n";
-    for (std::size_t k = 0; k < g.containment.size(); ++k) {
-      const auto& c = g.containment[k];
-      const std::string upper =
-          c.radius_upper ? metres(*c.radius_upper) : "needs " + std::to_string(c.samples_needed);
-      std::string polygon = "-";
-      if (k < g.polygons.size() && g.polygons[k].determined) {
-        char p[64];
-        std::snprintf(p, sizeof p, g.polygons[k].area >= 100.0 ? "%.0f (%.4f)" : "%.3g (%.4f)",
-                      g.polygons[k].area, g.polygons[k].coverage);
-        polygon = p;
-      }
-      std::string ellipse = "-";
-      if (k < g.ellipses.size() && g.landed >= 2) {
-        char e[64];
-        std::snprintf(e, sizeof e, "%s x %s", metres(g.ellipses[k].semi_major).c_str(),
-                      metres(g.ellipses[k].semi_minor).c_str());
-        ellipse = e;
-      }
-      std::snprintf(line, sizeof line, "  %-6g %10s   %13s   %21s   %s\n", c.level,
-                    metres(c.radius).c_str(), upper.c_str(), polygon.c_str(), ellipse.c_str());
-      out << line;
-    }
-    const auto& x = g.energy_exceedance;
-    std::snprintf(line, sizeof line,
-                  "  impact energy above %g J: share %.4g, upper bound %.4g; time of flight %s to "
-                  "%s s\n",
-                  x.threshold, x.share, x.upper, metres(g.time_min).c_str(),
-                  metres(g.time_max).c_str());
-    out << line;
+}
+
+// One line of a group's containment table: level k's radius, bound, polygon and ellipse.
+std::string containment_line(const GroupFootprint& g, std::size_t k) {
+  const auto& c = g.containment[k];
+  const std::string upper =
+      c.radius_upper ? metres(*c.radius_upper) : "needs " + std::to_string(c.samples_needed);
+  std::string polygon = "-";
+  if (k < g.polygons.size() && g.polygons[k].determined) {
+    char p[64];
+    std::snprintf(p, sizeof p, g.polygons[k].area >= 100.0 ? "%.0f (%.4f)" : "%.3g (%.4f)",
+                  g.polygons[k].area, g.polygons[k].coverage);
+    polygon = p;
   }
-  // The inputs that move each body's impact most: by the largest of their rank correlations with
-  // downrange, crossrange, distance and energy (a shift of the footprint shows in the first two,
-  // a widening in the third), body by body: bodies respond differently to the same input.
+  std::string ellipse = "-";
+  if (k < g.ellipses.size() && g.landed >= 2) {
+    char e[64];
+    std::snprintf(e, sizeof e, "%s x %s", metres(g.ellipses[k].semi_major).c_str(),
+                  metres(g.ellipses[k].semi_minor).c_str());
+    ellipse = e;
+  }
+  char line[256];
+  std::snprintf(line, sizeof line, "  %-6g %10s   %13s   %21s   %s\n", c.level,
+                metres(c.radius).c_str(), upper.c_str(), polygon.c_str(), ellipse.c_str());
+  return line;
+}
+
+// One group's block: its name, mean, CEP and centre, the containment table, energy and time.
+void text_group(std::ostream& out, const StudyRecord& r, const GroupFootprint& g) {
+  char line[256];
+  out << "\n";
+  if (g.name == "all")
+    out << "all bodies, one release (each body weighted by its objects per release, "
+        << g.objects_per_release << " in all)";
+  else
+    out << g.name;
+  out << ": mean impact east " << metres(g.mean.east) << " m, north " << metres(g.mean.north)
+      << " m; CEP " << metres(g.cep) << " m (Gaussian " << metres(g.cep_gaussian) << " m)\n"
+      << "  centre: " << centre_text(r, g) << "\n";
+  out << "  level   radius m   upper bound m   polygon m^2 (counted)   ellipse semi-axes m "
+         "(Gaussian)\n";
+  for (std::size_t k = 0; k < g.containment.size(); ++k) out << containment_line(g, k);
+  const auto& x = g.energy_exceedance;
+  std::snprintf(line, sizeof line,
+                "  impact energy above %g J: share %.4g, upper bound %.4g; time of flight %s to "
+                "%s s\n",
+                x.threshold, x.share, x.upper, metres(g.time_min).c_str(),
+                metres(g.time_max).c_str());
+  out << line;
+}
+
+// The inputs that move each body's impact most: by the largest of their rank correlations with
+// downrange, crossrange, distance and energy (a shift of the footprint shows in the first two,
+// a widening in the third), body by body: bodies respond differently to the same input.
+void text_sensitivity(std::ostream& out, const Footprint& f) {
   bool heading = false;
   auto rho = [](double v, bool categorical) {
     if (std::isnan(v)) return std::string("    -");
@@ -319,19 +326,34 @@ void write_record_text(std::ostream& out, const StudyRecord& r) {
     if (g.sensitivity.size() > 6)
       out << "    (" << g.sensitivity.size() - 6 << " more in the JSON and HTML)\n";
   }
-  if (!f.rules.empty()) {
-    out << "\nagainst the criteria entered in [rules] (reported, not decided):\n";
-    for (const auto& k : f.rules) {
-      // With one body, "all" is that body.
-      const std::string group =
-          k.group == "all" && f.groups.size() == 2 ? f.groups.front().name : k.group;
-      out << "  " << to_string(k.status) << "  " << group << " " << k.rule << ": "
-          << rule_statement(k) << "\n";
-      if (k.rule == "zone_radius")
-        for (const auto& g : f.groups)
-          if (g.name == k.group) out << "      the zone is about " << centre_text(r, g) << "\n";
-    }
+}
+
+// The criteria of [rules], each with its statement (and a zone's centre); nothing without rules.
+void text_rules(std::ostream& out, const StudyRecord& r) {
+  const Footprint& f = r.footprint;
+  if (f.rules.empty()) return;
+  out << "\nagainst the criteria entered in [rules] (reported, not decided):\n";
+  for (const auto& k : f.rules) {
+    // With one body, "all" is that body.
+    const std::string group =
+        k.group == "all" && f.groups.size() == 2 ? f.groups.front().name : k.group;
+    out << "  " << to_string(k.status) << "  " << group << " " << k.rule << ": "
+        << rule_statement(k) << "\n";
+    if (k.rule == "zone_radius")
+      for (const auto& g : f.groups)
+        if (g.name == k.group) out << "      the zone is about " << centre_text(r, g) << "\n";
   }
+}
+
+}  // namespace
+
+void write_record_text(std::ostream& out, const StudyRecord& r) {
+  const Footprint& f = r.footprint;
+  const std::vector<std::string> warnings = record_warnings(r);
+  text_header(out, r, warnings);
+  for (const GroupFootprint* group : shown_groups(f)) text_group(out, r, *group);
+  text_sensitivity(out, f);
+  text_rules(out, r);
   if (!warnings.empty()) {
     out << "\nwarnings (" << warnings.size() << "):\n";
     for (const auto& w : warnings) out << "  - " << w << "\n";

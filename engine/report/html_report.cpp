@@ -129,12 +129,14 @@ void maps_section(std::ostream& h, const StudyRecord& r) {
   }
 }
 
-}  // namespace
+// A group's name as a table cell shows it: escaped, with one body's "all" named as that body.
+std::string group_cell(const Footprint& f, const GroupFootprint& g) {
+  return escape_markup(shown_name(f, g.name));
+}
 
-std::string html_report(const StudyRecord& r) {
+// From the doctype to the cautions: the title, the case, the counts and what to read first.
+void page_head(std::ostream& h, const StudyRecord& r) {
   const Footprint& f = r.footprint;
-  const std::vector<const GroupFootprint*> groups = shown_groups(f);
-  std::ostringstream h;
   const std::string title = r.title.empty() ? "strewn study" : r.title;
   h << "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
     << "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
@@ -149,20 +151,18 @@ std::string html_report(const StudyRecord& r) {
   h << "<section class=\"cautions\" id=\"cautions\"><strong>Read this first.</strong><ul>\n";
   for (const auto& c : cautions()) h << "<li>" << escape_markup(c) << "</li>\n";
   h << "</ul></section>\n";
-  warnings_section(h, r);
-  // Rules next: they are what the reader came for.
-  rules_section(h, r);
-  maps_section(h, r);
-  auto name = [&](const GroupFootprint& g) { return escape_markup(shown_name(f, g.name)); };
+}
 
+// The containment table: each level's radius, its bound and interval, and its hazard polygon.
+void containment_section(std::ostream& h, const Footprint& f) {
   h << "<h2>Containment</h2>\n<table id=\"containment\"><tr><th class=\"name\">group</th>"
        "<th>level</th><th>radius m</th><th>upper bound m</th><th>interval m</th>"
        "<th>polygon m&sup2;</th><th>polygon counted</th></tr>\n";
-  for (const GroupFootprint* gp : groups) {
+  for (const GroupFootprint* gp : shown_groups(f)) {
     const GroupFootprint& g = *gp;
     for (std::size_t k = 0; k < g.containment.size(); ++k) {
       const auto& c = g.containment[k];
-      h << "<tr><td class=\"name\">" << name(g) << "</td><td>" << c.level << "</td><td>"
+      h << "<tr><td class=\"name\">" << group_cell(f, g) << "</td><td>" << c.level << "</td><td>"
         << cell(c.radius) << "</td><td>"
         << (c.radius_upper ? cell(*c.radius_upper)
                            : "needs " + std::to_string(c.samples_needed) + " samples")
@@ -179,47 +179,58 @@ std::string html_report(const StudyRecord& r) {
     }
   }
   h << "</table>\n";
+}
 
+// The dispersion table (means, spreads, CEPs) and the Gaussian ellipses' table under it.
+void dispersion_section(std::ostream& h, const Footprint& f) {
+  const std::vector<const GroupFootprint*> groups = shown_groups(f);
   h << "<h2>Dispersion</h2>\n<table id=\"dispersion\"><tr><th class=\"name\">group</th>"
        "<th>mean east m</th><th>mean north m</th><th>&sigma; east m</th><th>&sigma; north m</th>"
        "<th>correlation</th><th>CEP m</th><th>CEP (Gaussian) m</th></tr>\n";
   for (const GroupFootprint* gp : groups) {
     const GroupFootprint& g = *gp;
     const double se = std::sqrt(g.covariance[0]), sn = std::sqrt(g.covariance[2]);
-    h << "<tr><td class=\"name\">" << name(g) << "</td><td>" << cell(g.mean.east) << "</td><td>"
-      << cell(g.mean.north) << "</td><td>" << cell(se) << "</td><td>" << cell(sn) << "</td><td>"
-      << cell(se > 0 && sn > 0 ? g.covariance[1] / (se * sn) : NAN, "%.3f") << "</td><td>"
-      << cell(g.cep) << "</td><td>" << cell(g.cep_gaussian) << "</td></tr>\n";
+    h << "<tr><td class=\"name\">" << group_cell(f, g) << "</td><td>" << cell(g.mean.east)
+      << "</td><td>" << cell(g.mean.north) << "</td><td>" << cell(se) << "</td><td>" << cell(sn)
+      << "</td><td>" << cell(se > 0 && sn > 0 ? g.covariance[1] / (se * sn) : NAN, "%.3f")
+      << "</td><td>" << cell(g.cep) << "</td><td>" << cell(g.cep_gaussian) << "</td></tr>\n";
   }
   h << "</table>\n<table id=\"ellipses\"><tr><th class=\"name\">group</th><th>level</th>"
        "<th>semi-major m</th><th>semi-minor m</th><th>bearing &deg;</th><th>counted inside</th>"
        "</tr>\n";
   for (const GroupFootprint* gp : groups)
     for (const auto& e : gp->ellipses)
-      h << "<tr><td class=\"name\">" << name(*gp) << "</td><td>" << e.level << "</td><td>"
+      h << "<tr><td class=\"name\">" << group_cell(f, *gp) << "</td><td>" << e.level << "</td><td>"
         << cell(e.semi_major) << "</td><td>" << cell(e.semi_minor) << "</td><td>"
         << cell(e.bearing, "%.0f") << "</td><td>" << cell(e.counted, "%.4f") << "</td></tr>\n";
   h << "</table>\n";
+}
 
+// The downrange and crossrange quantiles about the centre, along the release track.
+void ranges_section(std::ostream& h, const Footprint& f) {
   h << "<h3>Downrange and crossrange</h3>\n<p class=\"note\">Downrange along "
     << f.downrange_bearing
     << "&deg; (the release track), crossrange positive to its right and negative to its left, "
        "about the centre.</p>\n"
     << "<table id=\"ranges\"><tr><th class=\"name\">group</th><th>probability</th>"
        "<th>downrange m</th><th>interval m</th><th>crossrange m</th><th>interval m</th></tr>\n";
-  for (const GroupFootprint* gp : groups) {
+  for (const GroupFootprint* gp : shown_groups(f)) {
     const GroupFootprint& g = *gp;
     for (std::size_t k = 0; k < g.downrange.size() && k < g.crossrange.size(); ++k) {
       const auto& d = g.downrange[k];
       const auto& c = g.crossrange[k];
-      h << "<tr><td class=\"name\">" << name(g) << "</td><td>" << d.probability << "</td><td>"
-        << cell(d.value) << "</td><td>" << cell(d.lower) << " &ndash; " << cell(d.upper)
-        << "</td><td>" << cell(c.value) << "</td><td>" << cell(c.lower) << " &ndash; "
-        << cell(c.upper) << "</td></tr>\n";
+      h << "<tr><td class=\"name\">" << group_cell(f, g) << "</td><td>" << d.probability
+        << "</td><td>" << cell(d.value) << "</td><td>" << cell(d.lower) << " &ndash; "
+        << cell(d.upper) << "</td><td>" << cell(c.value) << "</td><td>" << cell(c.lower)
+        << " &ndash; " << cell(c.upper) << "</td></tr>\n";
     }
   }
   h << "</table>\n";
+}
 
+// Impact speed and energy quantiles, then the energy exceedance and the time of flight.
+void energy_section(std::ostream& h, const Footprint& f) {
+  const std::vector<const GroupFootprint*> groups = shown_groups(f);
   h << "<h2>Impact speed and energy</h2>\n<table id=\"energy\"><tr><th class=\"name\">group</th>"
        "<th>level</th><th>speed m/s</th><th>upper bound</th><th>energy J</th><th>upper bound</th>"
        "</tr>\n";
@@ -228,7 +239,7 @@ std::string html_report(const StudyRecord& r) {
     for (std::size_t k = 0; k < g.speed.size() && k < g.energy.size(); ++k) {
       const auto& sp = g.speed[k];
       const auto& en = g.energy[k];
-      h << "<tr><td class=\"name\">" << name(g) << "</td><td>" << sp.level << "</td><td>"
+      h << "<tr><td class=\"name\">" << group_cell(f, g) << "</td><td>" << sp.level << "</td><td>"
         << cell(sp.radius) << "</td><td>" << (sp.radius_upper ? cell(*sp.radius_upper) : "&ndash;")
         << "</td><td>" << energy_cell(en.radius) << "</td><td>"
         << (en.radius_upper ? energy_cell(*en.radius_upper) : "&ndash;") << "</td></tr>\n";
@@ -239,14 +250,17 @@ std::string html_report(const StudyRecord& r) {
   for (const GroupFootprint* gp : groups) {
     const GroupFootprint& g = *gp;
     const auto& x = g.energy_exceedance;
-    h << "<tr><td class=\"name\">" << name(g) << "</td><td>" << cell(x.threshold, "%g")
+    h << "<tr><td class=\"name\">" << group_cell(f, g) << "</td><td>" << cell(x.threshold, "%g")
       << "</td><td>" << cell(x.share, "%.4g") << "</td><td>" << cell(x.lower, "%.3g") << "</td><td>"
       << cell(x.upper, "%.3g") << "</td><td>" << cell(g.time_min) << " &ndash; " << cell(g.time_max)
       << "</td></tr>\n";
   }
   h << "</table>\n<p class=\"note\">The energy threshold is a generic screening figure; replace "
        "it by the one your local rules set.</p>\n";
+}
 
+// The sensitivity table: each input's rank correlations with the impact, body by body.
+void sensitivity_section(std::ostream& h, const Footprint& f) {
   h << "<h2>What drives the spread</h2>\n<p class=\"note\">Body by body, strongest first: "
        "Spearman rank correlation of each sampled input and random choice with the impact's "
        "downrange, crossrange, distance from the centre and energy (landed flights); for a "
@@ -254,16 +268,19 @@ std::string html_report(const StudyRecord& r) {
        "<table id=\"sensitivity\"><tr><th class=\"name\">body</th>"
        "<th class=\"name\">input</th><th>downrange</th><th>crossrange</th><th>distance</th>"
        "<th>energy</th></tr>\n";
-  for (const GroupFootprint* gp : groups)
+  for (const GroupFootprint* gp : shown_groups(f))
     for (const auto& x : gp->sensitivity) {
       const char* format = x.categorical ? "%.2f" : "%+.2f";
-      h << "<tr><td class=\"name\">" << name(*gp) << "</td><td class=\"name\">"
+      h << "<tr><td class=\"name\">" << group_cell(f, *gp) << "</td><td class=\"name\">"
         << escape_markup(x.input) << (x.categorical ? " (category)" : "") << "</td><td>"
         << cell(x.downrange, format) << "</td><td>" << cell(x.crossrange, format) << "</td><td>"
         << cell(x.distance, format) << "</td><td>" << cell(x.energy, format) << "</td></tr>\n";
     }
   h << "</table>\n";
+}
 
+// The provenance table and the scenario text as read, which close the page.
+void provenance_section(std::ostream& h, const StudyRecord& r) {
   h << "<h2>Provenance</h2>\n<table id=\"provenance\">\n";
   auto row = [&](const char* label, const std::string& value) {
     h << "<tr><td class=\"name\">" << label << "</td><td class=\"name\">" << escape_markup(value)
@@ -279,6 +296,23 @@ std::string html_report(const StudyRecord& r) {
   row("scenario SHA-256", r.scenario_sha256);
   h << "</table>\n<details><summary>Scenario as read</summary>\n<pre>"
     << escape_markup(r.scenario_text) << "</pre></details>\n";
+}
+
+}  // namespace
+
+std::string html_report(const StudyRecord& r) {
+  std::ostringstream h;
+  page_head(h, r);
+  warnings_section(h, r);
+  // Rules next: they are what the reader came for.
+  rules_section(h, r);
+  maps_section(h, r);
+  containment_section(h, r.footprint);
+  dispersion_section(h, r.footprint);
+  ranges_section(h, r.footprint);
+  energy_section(h, r.footprint);
+  sensitivity_section(h, r.footprint);
+  provenance_section(h, r);
   h << "</main>\n</body>\n</html>\n";
   return h.str();
 }

@@ -142,6 +142,178 @@ nlohmann::json feature(nlohmann::json geometry, nlohmann::json properties) {
           {"properties", std::move(properties)}};
 }
 
+// A closed polygon feature of a ring given counter-clockwise in east/north metres.
+nlohmann::json polygon_feature(const GeoFrame& geo, const std::vector<PlanePoint>& ccw,
+                               nlohmann::json properties) {
+  return feature({{"type", "Polygon"}, {"coordinates", {geo.ring(ccw)}}}, std::move(properties));
+}
+
+// A group's hazard polygons and containment circles (estimate and upper bound).
+void add_containment_features(nlohmann::json& features, const GeoFrame& geo,
+                              const GroupFootprint& g) {
+  for (const auto& p : g.polygons)
+    if (p.determined && p.ring.size() >= 3)
+      features.push_back(polygon_feature(geo, p.ring,
+                                         {{"group", g.name},
+                                          {"kind", "hazard_polygon"},
+                                          {"level", p.level},
+                                          {"coverage", p.coverage},
+                                          {"area_m2", p.area}}));
+  for (const auto& c : g.containment) {
+    if (std::isfinite(c.radius) && c.radius > 0.0)
+      features.push_back(polygon_feature(geo, circle_ring(g.centre, c.radius),
+                                         {{"group", g.name},
+                                          {"kind", "containment_circle"},
+                                          {"level", c.level},
+                                          {"radius_m", c.radius}}));
+    if (c.radius_upper && std::isfinite(*c.radius_upper) && *c.radius_upper > 0.0)
+      features.push_back(polygon_feature(geo, circle_ring(g.centre, *c.radius_upper),
+                                         {{"group", g.name},
+                                          {"kind", "containment_upper_bound_circle"},
+                                          {"level", c.level},
+                                          {"radius_m", *c.radius_upper},
+                                          {"confidence", c.confidence}}));
+  }
+}
+
+// A group's features: containment, Gaussian ellipses, then its centre and mean impact points.
+void add_group_features(nlohmann::json& features, const GeoFrame& geo, const StudyRecord& r,
+                        const GroupFootprint& g) {
+  add_containment_features(features, geo, g);
+  for (const auto& e : g.ellipses)
+    if (std::isfinite(e.semi_major) && e.semi_major > 0.0 && e.semi_minor > 0.0)
+      features.push_back(
+          polygon_feature(geo, ellipse_ring(g.mean, e.semi_major, e.semi_minor, e.bearing),
+                          {{"group", g.name},
+                           {"kind", "dispersion_ellipse"},
+                           {"approximation", "gaussian"},
+                           {"level", e.level},
+                           {"semi_major_m", e.semi_major},
+                           {"semi_minor_m", e.semi_minor},
+                           {"bearing_deg", e.bearing},
+                           {"counted", json_number(e.counted)}}));
+  if (std::isfinite(g.centre.east))
+    features.push_back(
+        feature({{"type", "Point"}, {"coordinates", geo.point(g.centre)}},
+                {{"group", g.name}, {"kind", "centre"}, {"rule", r.footprint.centre}}));
+  if (std::isfinite(g.mean.east))
+    features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(g.mean)}},
+                               {{"group", g.name}, {"kind", "mean_impact"}}));
+}
+
+// The zone of each zone rule: the planned radius about its group's centre, with its status.
+void add_rule_zone_features(nlohmann::json& features, const GeoFrame& geo, const Footprint& f) {
+  for (const auto& k : f.rules) {
+    if (k.rule != "zone_radius") continue;
+    for (const auto& g : f.groups)
+      if (g.name == k.group && std::isfinite(g.centre.east))
+        features.push_back(polygon_feature(geo, circle_ring(g.centre, k.threshold),
+                                           {{"group", g.name},
+                                            {"kind", "rule_zone"},
+                                            {"radius_m", k.threshold},
+                                            {"accepted_outside", k.accepted},
+                                            {"status", to_string(k.status)},
+                                            {"estimate_outside", json_number(k.value)}}));
+  }
+}
+
+// One MultiPoint feature per body of the landed flights' impacts.
+void add_impact_features(nlohmann::json& features, const GeoFrame& geo, const StudyRecord& r,
+                         const StudyColumns& impacts) {
+  for (std::size_t b = 0; b < r.body_names.size(); ++b) {
+    nlohmann::json points = nlohmann::json::array();
+    for (std::size_t i = 0; i < impacts.rows(); ++i)
+      if (impacts.body[i] == b && impacts.status[i] == 0)
+        points.push_back(geo.point({impacts.east[i], impacts.north[i]}));
+    features.push_back(feature({{"type", "MultiPoint"}, {"coordinates", points}},
+                               {{"group", r.body_names[b]}, {"kind", "impacts"}}));
+  }
+}
+
+// Appends the CSV rows of figures_csv, quoting the group and note and giving bounded figures
+// their confidence.
+class FigureRows {
+ public:
+  FigureRows(std::string& out, double confidence) : out_(out), confidence_(confidence) {}
+
+  void add(const std::string& group, const std::string& figure, double level, double estimate,
+           double lower, double upper, double bound, const char* unit,
+           const std::string& note) const {
+    const auto number = csv_number;
+    // The confidence belongs to a figure that has bounds; a mean or a CEP has none.
+    const bool bounded = !(std::isnan(lower) && std::isnan(upper) && std::isnan(bound));
+    out_ += quoted(group) + "," + figure + "," + number(level) + "," + number(estimate) + "," +
+            number(lower) + "," + number(upper) + "," + number(bound) + "," +
+            (bounded ? number(confidence_) : std::string()) + "," + unit + "," + quoted(note) +
+            "\n";
+  }
+
+ private:
+  static std::string quoted(const std::string& text) {
+    std::string q = "\"";
+    for (char c : text) q += c == '"' ? std::string("\"\"") : std::string(1, c);
+    return q + "\"";
+  }
+
+  std::string& out_;
+  double confidence_;
+};
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+// A group's position figures: mean, centre, CEPs, containment, polygons, ellipses and ranges.
+void group_position_rows(const FigureRows& rows, const StudyRecord& r, const GroupFootprint& g) {
+  const auto number = csv_number;
+  rows.add(g.name, "mean_east", kNaN, g.mean.east, kNaN, kNaN, kNaN, "m", "");
+  rows.add(g.name, "mean_north", kNaN, g.mean.north, kNaN, kNaN, kNaN, "m", "");
+  rows.add(g.name, "centre_east", kNaN, g.centre.east, kNaN, kNaN, kNaN, "m", r.footprint.centre);
+  rows.add(g.name, "centre_north", kNaN, g.centre.north, kNaN, kNaN, kNaN, "m", r.footprint.centre);
+  rows.add(g.name, "cep", 0.5, g.cep, kNaN, kNaN, kNaN, "m", "counted; about the mean");
+  rows.add(g.name, "cep_gaussian", 0.5, g.cep_gaussian, kNaN, kNaN, kNaN, "m",
+           "Gaussian approximation");
+  for (const auto& c : g.containment)
+    rows.add(g.name, "containment_radius", c.level, c.radius, c.interval_lower, c.interval_upper,
+             c.radius_upper ? *c.radius_upper : kNaN, "m",
+             c.radius_upper ? "" : "bound needs " + std::to_string(c.samples_needed) + " samples");
+  for (const auto& p : g.polygons)
+    rows.add(g.name, "hazard_polygon_area", p.level, p.determined ? p.area : kNaN, kNaN, kNaN, kNaN,
+             "m2", p.determined ? "counted coverage " + number(p.coverage) : p.reason);
+  for (const auto& e : g.ellipses) {
+    rows.add(g.name, "ellipse_semi_major", e.level, e.semi_major, kNaN, kNaN, kNaN, "m",
+             "Gaussian approximation; bearing " + number(e.bearing) + " deg");
+    rows.add(g.name, "ellipse_semi_minor", e.level, e.semi_minor, kNaN, kNaN, kNaN, "m",
+             "Gaussian approximation; counted " + number(e.counted));
+  }
+  for (const auto& q : g.downrange)
+    rows.add(g.name, "downrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
+             "along " + number(r.footprint.downrange_bearing) + " deg");
+  for (const auto& q : g.crossrange)
+    rows.add(g.name, "crossrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
+             "to the right");
+}
+
+// A group's impact figures: speed, energy and its exceedance, time of flight, sensitivity.
+void group_impact_rows(const FigureRows& rows, const GroupFootprint& g) {
+  const auto number = csv_number;
+  for (const auto& c : g.speed)
+    rows.add(g.name, "impact_speed", c.level, c.radius, c.interval_lower, c.interval_upper,
+             c.radius_upper ? *c.radius_upper : kNaN, "m/s", "");
+  for (const auto& c : g.energy)
+    rows.add(g.name, "impact_energy", c.level, c.radius, c.interval_lower, c.interval_upper,
+             c.radius_upper ? *c.radius_upper : kNaN, "J", "");
+  const auto& x = g.energy_exceedance;
+  rows.add(g.name, "energy_exceedance", kNaN, x.share, x.lower, kNaN, x.upper, "",
+           "above " + number(x.threshold) + " J; Clopper-Pearson");
+  for (const auto& q : g.time)
+    rows.add(g.name, "time_of_flight", q.probability, q.value, q.lower, q.upper, kNaN, "s", "");
+  for (const auto& s : g.sensitivity) {
+    rows.add(g.name, "spearman_downrange", kNaN, s.downrange, kNaN, kNaN, kNaN, "", s.input);
+    rows.add(g.name, "spearman_crossrange", kNaN, s.crossrange, kNaN, kNaN, kNaN, "", s.input);
+    rows.add(g.name, "spearman_distance", kNaN, s.distance, kNaN, kNaN, kNaN, "", s.input);
+    rows.add(g.name, "spearman_energy", kNaN, s.energy, kNaN, kNaN, kNaN, "", s.input);
+  }
+}
+
 }  // namespace
 
 std::string geojson_text(const StudyRecord& r, const StudyColumns* impacts) {
@@ -151,83 +323,13 @@ std::string geojson_text(const StudyRecord& r, const StudyColumns* impacts) {
         "site.longitude (the local east/north figures are in the JSON, CSV and SVG outputs)");
   const GeoFrame geo{GeographicLib::LocalCartesian(*r.latitude, *r.longitude, r.ground)};
   nlohmann::json features = nlohmann::json::array();
-  for (const auto& g : r.footprint.groups) {
-    for (const auto& p : g.polygons)
-      if (p.determined && p.ring.size() >= 3)
-        features.push_back(feature({{"type", "Polygon"}, {"coordinates", {geo.ring(p.ring)}}},
-                                   {{"group", g.name},
-                                    {"kind", "hazard_polygon"},
-                                    {"level", p.level},
-                                    {"coverage", p.coverage},
-                                    {"area_m2", p.area}}));
-    for (const auto& c : g.containment) {
-      if (std::isfinite(c.radius) && c.radius > 0.0)
-        features.push_back(feature(
-            {{"type", "Polygon"}, {"coordinates", {geo.ring(circle_ring(g.centre, c.radius))}}},
-            {{"group", g.name},
-             {"kind", "containment_circle"},
-             {"level", c.level},
-             {"radius_m", c.radius}}));
-      if (c.radius_upper && std::isfinite(*c.radius_upper) && *c.radius_upper > 0.0)
-        features.push_back(
-            feature({{"type", "Polygon"},
-                     {"coordinates", {geo.ring(circle_ring(g.centre, *c.radius_upper))}}},
-                    {{"group", g.name},
-                     {"kind", "containment_upper_bound_circle"},
-                     {"level", c.level},
-                     {"radius_m", *c.radius_upper},
-                     {"confidence", c.confidence}}));
-    }
-    for (const auto& e : g.ellipses)
-      if (std::isfinite(e.semi_major) && e.semi_major > 0.0 && e.semi_minor > 0.0)
-        features.push_back(
-            feature({{"type", "Polygon"},
-                     {"coordinates",
-                      {geo.ring(ellipse_ring(g.mean, e.semi_major, e.semi_minor, e.bearing))}}},
-                    {{"group", g.name},
-                     {"kind", "dispersion_ellipse"},
-                     {"approximation", "gaussian"},
-                     {"level", e.level},
-                     {"semi_major_m", e.semi_major},
-                     {"semi_minor_m", e.semi_minor},
-                     {"bearing_deg", e.bearing},
-                     {"counted", json_number(e.counted)}}));
-    if (std::isfinite(g.centre.east))
-      features.push_back(
-          feature({{"type", "Point"}, {"coordinates", geo.point(g.centre)}},
-                  {{"group", g.name}, {"kind", "centre"}, {"rule", r.footprint.centre}}));
-    if (std::isfinite(g.mean.east))
-      features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(g.mean)}},
-                                 {{"group", g.name}, {"kind", "mean_impact"}}));
-  }
-  // The zone of each zone rule: the planned radius about its group's centre, with its status.
-  for (const auto& k : r.footprint.rules) {
-    if (k.rule != "zone_radius") continue;
-    for (const auto& g : r.footprint.groups)
-      if (g.name == k.group && std::isfinite(g.centre.east))
-        features.push_back(feature(
-            {{"type", "Polygon"}, {"coordinates", {geo.ring(circle_ring(g.centre, k.threshold))}}},
-            {{"group", g.name},
-             {"kind", "rule_zone"},
-             {"radius_m", k.threshold},
-             {"accepted_outside", k.accepted},
-             {"status", to_string(k.status)},
-             {"estimate_outside", json_number(k.value)}}));
-  }
+  for (const auto& g : r.footprint.groups) add_group_features(features, geo, r, g);
+  add_rule_zone_features(features, geo, r.footprint);
   features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(r.release)}},
                              {{"kind", "release_point"},
                               {"altitude_m", r.release_altitude},
                               {"track_deg", r.release_track}}));
-  if (impacts) {
-    for (std::size_t b = 0; b < r.body_names.size(); ++b) {
-      nlohmann::json points = nlohmann::json::array();
-      for (std::size_t i = 0; i < impacts->rows(); ++i)
-        if (impacts->body[i] == b && impacts->status[i] == 0)
-          points.push_back(geo.point({impacts->east[i], impacts->north[i]}));
-      features.push_back(feature({{"type", "MultiPoint"}, {"coordinates", points}},
-                                 {{"group", r.body_names[b]}, {"kind", "impacts"}}));
-    }
-  }
+  if (impacts) add_impact_features(features, geo, r, *impacts);
   nlohmann::json collection{{"type", "FeatureCollection"}, {"features", features}};
   collection["properties"] = {{"title", r.title},
                               {"samples", r.samples},
@@ -241,81 +343,26 @@ std::string figures_csv(const StudyRecord& r) {
       "group,figure,level,estimate,interval_lower,interval_upper,bound_upper,confidence,unit,"
       "note\n";
   const auto number = csv_number;
-  auto row = [&](const std::string& group, const std::string& figure, double level, double estimate,
-                 double lower, double upper, double bound, const char* unit,
-                 const std::string& note) {
-    auto quoted = [](const std::string& text) {
-      std::string q = "\"";
-      for (char c : text) q += c == '"' ? std::string("\"\"") : std::string(1, c);
-      return q + "\"";
-    };
-    // The confidence belongs to a figure that has bounds; a mean or a CEP has none.
-    const bool bounded = !(std::isnan(lower) && std::isnan(upper) && std::isnan(bound));
-    out += quoted(group) + "," + figure + "," + number(level) + "," + number(estimate) + "," +
-           number(lower) + "," + number(upper) + "," + number(bound) + "," +
-           (bounded ? number(r.footprint.confidence) : std::string()) + "," + unit + "," +
-           quoted(note) + "\n";
-  };
-  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+  const FigureRows rows(out, r.footprint.confidence);
   for (const auto& g : r.footprint.groups) {
-    row(g.name, "mean_east", kNaN, g.mean.east, kNaN, kNaN, kNaN, "m", "");
-    row(g.name, "mean_north", kNaN, g.mean.north, kNaN, kNaN, kNaN, "m", "");
-    row(g.name, "centre_east", kNaN, g.centre.east, kNaN, kNaN, kNaN, "m", r.footprint.centre);
-    row(g.name, "centre_north", kNaN, g.centre.north, kNaN, kNaN, kNaN, "m", r.footprint.centre);
-    row(g.name, "cep", 0.5, g.cep, kNaN, kNaN, kNaN, "m", "counted; about the mean");
-    row(g.name, "cep_gaussian", 0.5, g.cep_gaussian, kNaN, kNaN, kNaN, "m",
-        "Gaussian approximation");
-    for (const auto& c : g.containment)
-      row(g.name, "containment_radius", c.level, c.radius, c.interval_lower, c.interval_upper,
-          c.radius_upper ? *c.radius_upper : kNaN, "m",
-          c.radius_upper ? "" : "bound needs " + std::to_string(c.samples_needed) + " samples");
-    for (const auto& p : g.polygons)
-      row(g.name, "hazard_polygon_area", p.level, p.determined ? p.area : kNaN, kNaN, kNaN, kNaN,
-          "m2", p.determined ? "counted coverage " + number(p.coverage) : p.reason);
-    for (const auto& e : g.ellipses) {
-      row(g.name, "ellipse_semi_major", e.level, e.semi_major, kNaN, kNaN, kNaN, "m",
-          "Gaussian approximation; bearing " + number(e.bearing) + " deg");
-      row(g.name, "ellipse_semi_minor", e.level, e.semi_minor, kNaN, kNaN, kNaN, "m",
-          "Gaussian approximation; counted " + number(e.counted));
-    }
-    for (const auto& q : g.downrange)
-      row(g.name, "downrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
-          "along " + number(r.footprint.downrange_bearing) + " deg");
-    for (const auto& q : g.crossrange)
-      row(g.name, "crossrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
-          "to the right");
-    for (const auto& c : g.speed)
-      row(g.name, "impact_speed", c.level, c.radius, c.interval_lower, c.interval_upper,
-          c.radius_upper ? *c.radius_upper : kNaN, "m/s", "");
-    for (const auto& c : g.energy)
-      row(g.name, "impact_energy", c.level, c.radius, c.interval_lower, c.interval_upper,
-          c.radius_upper ? *c.radius_upper : kNaN, "J", "");
-    const auto& x = g.energy_exceedance;
-    row(g.name, "energy_exceedance", kNaN, x.share, x.lower, kNaN, x.upper, "",
-        "above " + number(x.threshold) + " J; Clopper-Pearson");
-    for (const auto& q : g.time)
-      row(g.name, "time_of_flight", q.probability, q.value, q.lower, q.upper, kNaN, "s", "");
-    for (const auto& s : g.sensitivity) {
-      row(g.name, "spearman_downrange", kNaN, s.downrange, kNaN, kNaN, kNaN, "", s.input);
-      row(g.name, "spearman_crossrange", kNaN, s.crossrange, kNaN, kNaN, kNaN, "", s.input);
-      row(g.name, "spearman_distance", kNaN, s.distance, kNaN, kNaN, kNaN, "", s.input);
-      row(g.name, "spearman_energy", kNaN, s.energy, kNaN, kNaN, kNaN, "", s.input);
-    }
+    group_position_rows(rows, r, g);
+    group_impact_rows(rows, g);
   }
   // A rule's row holds the probability of its event (no level, no unit): the estimate, its lower
   // bound and its upper bound; the note says the threshold, the accepted probability and the
   // status.
   for (const auto& k : r.footprint.rules)
-    row(k.group, "rule_" + k.rule, kNaN, k.value, k.lower, kNaN, k.upper, "",
+    rows.add(
+        k.group, "rule_" + k.rule, kNaN, k.value, k.lower, kNaN, k.upper, "",
         std::string(to_string(k.status)) + " against the accepted probability " +
             number(k.accepted) + " of " +
             (k.rule == "zone_radius" ? "landing outside " + number(k.threshold) + " m"
                                      : "an impact energy above " + number(k.threshold) + " J") +
             " (reported, not decided)");
   for (const auto& w : r.range_warnings)
-    row(w.group, "model_range_" + w.kind, kNaN,
-        w.rows ? static_cast<double>(w.count) / static_cast<double>(w.rows) : kNaN, kNaN, kNaN,
-        kNaN, "", w.text);
+    rows.add(w.group, "model_range_" + w.kind, kNaN,
+             w.rows ? static_cast<double>(w.count) / static_cast<double>(w.rows) : kNaN, kNaN, kNaN,
+             kNaN, "", w.text);
   return out;
 }
 

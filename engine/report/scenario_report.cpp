@@ -49,17 +49,11 @@ std::string as_read(const Scenario& s, const std::string& file) {
              ? (std::filesystem::path(s.path).parent_path() / p).lexically_normal().string()
              : file;
 }
-}  // namespace
 
-nlohmann::json scenario_json(const Scenario& s) {
-  nlohmann::json j;
-  j["title"] = s.title;
-  j["site"] = {{"ground", s.site.ground}};
-  if (s.site.latitude) j["site"]["latitude"] = *s.site.latitude;
-  if (s.site.longitude) j["site"]["longitude"] = *s.site.longitude;
-  auto& m = j["medium"];
-  m = {{"model", name_of(s.medium.model)},
-       {"density_factor", uncertain_json(s.medium.density_factor)}};
+// The medium: its model and the keys that model reads (a uniform medium's fixed properties).
+nlohmann::json medium_json(const Scenario& s) {
+  nlohmann::json m{{"model", name_of(s.medium.model)},
+                   {"density_factor", uncertain_json(s.medium.density_factor)}};
   if (s.medium.model != Medium::Kind::uniform)
     m["temperature_offset"] = uncertain_json(s.medium.temperature_offset);
   if (s.medium.model == Medium::Kind::profile) m["profile"] = as_read(s, s.medium.profile_file);
@@ -68,12 +62,18 @@ nlohmann::json scenario_json(const Scenario& s) {
     m["viscosity"] = s.medium.viscosity;
     m["sound_speed"] = number_or_null(s.medium.sound_speed);
   }
+  return m;
+}
+
+// The wind: its layers, its file and the keys of its uncertainty model.
+nlohmann::json wind_json(const Scenario& s) {
   nlohmann::json layers = nlohmann::json::array();
   for (const auto& l : s.wind.layers)
     layers.push_back({{"altitude", l.altitude}, {"speed", l.speed}, {"from", l.from}});
-  j["wind"] = {{"layers", layers}, {"uncertainty", {{"model", to_string(s.wind.uncertainty)}}}};
-  if (!s.wind.file.empty()) j["wind"]["file"] = as_read(s, s.wind.file);
-  auto& wu = j["wind"]["uncertainty"];
+  nlohmann::json wind{{"layers", layers},
+                      {"uncertainty", {{"model", to_string(s.wind.uncertainty)}}}};
+  if (!s.wind.file.empty()) wind["file"] = as_read(s, s.wind.file);
+  auto& wu = wind["uncertainty"];
   if (s.wind.uncertainty == WindUncertaintyModel::bias ||
       s.wind.uncertainty == WindUncertaintyModel::layered)
     wu["speed_sd"] = s.wind.speed_sd;
@@ -83,75 +83,111 @@ nlohmann::json scenario_json(const Scenario& s) {
     wu["members"] = nlohmann::json::array();
     for (const auto& member : s.wind.members) wu["members"].push_back(as_read(s, member));
   }
-  const auto& r = s.release;
-  j["release"] = {{"altitude", uncertain_json(r.altitude)},
-                  {"east", uncertain_json(r.east)},
-                  {"north", uncertain_json(r.north)},
-                  {"speed", uncertain_json(r.speed)},
-                  {"track", uncertain_json(r.track)},
-                  {"climb", uncertain_json(r.climb)},
-                  {"along_error", uncertain_json(r.along_error)},
-                  {"cross_error", uncertain_json(r.cross_error)},
-                  {"delay", uncertain_json(r.delay)}};
-  if (r.has_burst) j["release"]["burst"] = {{"speed", uncertain_json(r.burst_speed)}};
-  for (const auto& b : s.bodies) {
-    nlohmann::json body{{"name", b.name}, {"count", b.count}, {"mass", uncertain_json(b.mass)}};
-    nlohmann::json drag{{"model", to_string(b.drag_model)}};
-    if (b.drag_model == DragModel::area) {
-      drag["cd"] = uncertain_json(b.cd);
-      drag["area"] = uncertain_json(b.area);
-      if (!(b.volume.is_fixed() && b.volume.p1() == 0.0)) drag["volume"] = uncertain_json(b.volume);
-    } else {
-      drag["diameter"] = uncertain_json(b.diameter);
-      if (b.drag_model == DragModel::shape) drag["sphericity"] = uncertain_json(b.sphericity);
-    }
-    if (b.mach_table) {
-      nlohmann::json table = nlohmann::json::array();
-      for (std::size_t i = 0; i < b.mach_table->mach().size(); ++i)
-        table.push_back({b.mach_table->mach()[i], b.mach_table->factor()[i]});
-      drag["mach_table"] = table;
-    }
-    body["drag"] = drag;
-    if (b.parachute) {
-      const auto& p = *b.parachute;
-      nlohmann::json chute{{"fill_time", uncertain_json(p.fill_time)},
-                           {"drag_area", uncertain_json(p.drag_area)},
-                           {"partial_probability", p.partial_probability},
-                           {"failure_probability", p.failure_probability}};
-      if (p.trigger == Canopy::Trigger::time)
-        chute["deploy_after"] = uncertain_json(p.deploy_after);
-      else
-        chute["deploy_height"] = uncertain_json(p.deploy_height);
-      if (p.partial_probability > 0.0)
-        chute["partial_drag_area"] = uncertain_json(p.partial_drag_area);
-      body["parachute"] = chute;
-    }
-    j["body"].push_back(body);
+  return wind;
+}
+
+// The release: where, how fast and when, with the burst when there is one.
+nlohmann::json release_json(const ReleaseSpec& r) {
+  nlohmann::json release{{"altitude", uncertain_json(r.altitude)},
+                         {"east", uncertain_json(r.east)},
+                         {"north", uncertain_json(r.north)},
+                         {"speed", uncertain_json(r.speed)},
+                         {"track", uncertain_json(r.track)},
+                         {"climb", uncertain_json(r.climb)},
+                         {"along_error", uncertain_json(r.along_error)},
+                         {"cross_error", uncertain_json(r.cross_error)},
+                         {"delay", uncertain_json(r.delay)}};
+  if (r.has_burst) release["burst"] = {{"speed", uncertain_json(r.burst_speed)}};
+  return release;
+}
+
+// A body's drag: the keys its drag model reads, and its Mach table when it has one.
+nlohmann::json drag_json(const BodySpec& b) {
+  nlohmann::json drag{{"model", to_string(b.drag_model)}};
+  if (b.drag_model == DragModel::area) {
+    drag["cd"] = uncertain_json(b.cd);
+    drag["area"] = uncertain_json(b.area);
+    if (!(b.volume.is_fixed() && b.volume.p1() == 0.0)) drag["volume"] = uncertain_json(b.volume);
+  } else {
+    drag["diameter"] = uncertain_json(b.diameter);
+    if (b.drag_model == DragModel::shape) drag["sphericity"] = uncertain_json(b.sphericity);
   }
+  if (b.mach_table) {
+    nlohmann::json table = nlohmann::json::array();
+    for (std::size_t i = 0; i < b.mach_table->mach().size(); ++i)
+      table.push_back({b.mach_table->mach()[i], b.mach_table->factor()[i]});
+    drag["mach_table"] = table;
+  }
+  return drag;
+}
+
+// A body: name, count, mass, drag and parachute (with its trigger and partial opening).
+nlohmann::json body_json(const BodySpec& b) {
+  nlohmann::json body{{"name", b.name}, {"count", b.count}, {"mass", uncertain_json(b.mass)}};
+  body["drag"] = drag_json(b);
+  if (b.parachute) {
+    const auto& p = *b.parachute;
+    nlohmann::json chute{{"fill_time", uncertain_json(p.fill_time)},
+                         {"drag_area", uncertain_json(p.drag_area)},
+                         {"partial_probability", p.partial_probability},
+                         {"failure_probability", p.failure_probability}};
+    if (p.trigger == Canopy::Trigger::time)
+      chute["deploy_after"] = uncertain_json(p.deploy_after);
+    else
+      chute["deploy_height"] = uncertain_json(p.deploy_height);
+    if (p.partial_probability > 0.0)
+      chute["partial_drag_area"] = uncertain_json(p.partial_drag_area);
+    body["parachute"] = chute;
+  }
+  return body;
+}
+
+// The study's settings, with its centre as a rule's name or as a point.
+nlohmann::json study_json(const StudySpec& st) {
+  nlohmann::json study{{"samples", st.samples},
+                       {"seed", st.seed},
+                       {"sampling", to_string(st.sampling)},
+                       {"levels", st.levels},
+                       {"confidence", st.confidence},
+                       {"tolerance", st.tolerance},
+                       {"energy_threshold", st.energy_threshold},
+                       {"grid", st.grid},
+                       {"max_samples", st.max_samples},
+                       {"max_failed", st.max_failed}};
+  if (st.centre == "point")
+    study["centre"] = {{"east", st.centre_east}, {"north", st.centre_north}};
+  else
+    study["centre"] = st.centre;
+  if (st.target_width) study["target_width"] = *st.target_width;
+  return study;
+}
+
+// The criteria entered in [rules]: only those given.
+nlohmann::json rules_json(const RulesSpec& rules_in) {
+  nlohmann::json rules = nlohmann::json::object();
+  if (rules_in.zone_radius) rules["zone_radius"] = *rules_in.zone_radius;
+  if (rules_in.max_outside) rules["max_outside"] = *rules_in.max_outside;
+  if (rules_in.energy_limit) rules["energy_limit"] = *rules_in.energy_limit;
+  if (rules_in.max_exceed) rules["max_exceed"] = *rules_in.max_exceed;
+  return rules;
+}
+
+}  // namespace
+
+nlohmann::json scenario_json(const Scenario& s) {
+  nlohmann::json j;
+  j["title"] = s.title;
+  j["site"] = {{"ground", s.site.ground}};
+  if (s.site.latitude) j["site"]["latitude"] = *s.site.latitude;
+  if (s.site.longitude) j["site"]["longitude"] = *s.site.longitude;
+  j["medium"] = medium_json(s);
+  j["wind"] = wind_json(s);
+  j["release"] = release_json(s.release);
+  for (const auto& b : s.bodies) j["body"].push_back(body_json(b));
   for (const auto& c : s.correlations)
     j["correlation"].push_back({{"between", {c.first, c.second}}, {"rho", c.rho}});
-  const auto& st = s.study;
-  j["study"] = {{"samples", st.samples},
-                {"seed", st.seed},
-                {"sampling", to_string(st.sampling)},
-                {"levels", st.levels},
-                {"confidence", st.confidence},
-                {"tolerance", st.tolerance},
-                {"energy_threshold", st.energy_threshold},
-                {"grid", st.grid},
-                {"max_samples", st.max_samples},
-                {"max_failed", st.max_failed}};
-  if (st.centre == "point")
-    j["study"]["centre"] = {{"east", st.centre_east}, {"north", st.centre_north}};
-  else
-    j["study"]["centre"] = st.centre;
-  if (st.target_width) j["study"]["target_width"] = *st.target_width;
-  nlohmann::json rules = nlohmann::json::object();
-  if (s.rules.zone_radius) rules["zone_radius"] = *s.rules.zone_radius;
-  if (s.rules.max_outside) rules["max_outside"] = *s.rules.max_outside;
-  if (s.rules.energy_limit) rules["energy_limit"] = *s.rules.energy_limit;
-  if (s.rules.max_exceed) rules["max_exceed"] = *s.rules.max_exceed;
-  j["rules"] = rules;
+  j["study"] = study_json(s.study);
+  j["rules"] = rules_json(s.rules);
   j["output"] = {
       {"file", s.output.file}, {"samples", s.output.samples}, {"compress", s.output.compress}};
   nlohmann::json inputs = nlohmann::json::array();

@@ -1,5 +1,6 @@
 #include "store/footprint_file.hpp"
 
+#include <array>
 #include <cmath>
 #include <limits>
 
@@ -122,88 +123,174 @@ std::vector<QuantileEstimate> read_quantiles(const H5::Group& parent, const std:
   return out;
 }
 
+// The covariance as a full, symmetric 2 x 2 matrix (east, north), m^2.
+void write_covariance(H5::Group& g, const GroupFootprint& f) {
+  const hsize_t dims[2] = {2, 2};
+  H5::DataSpace space(2, dims);
+  const double c[4] = {f.covariance[0], f.covariance[1], f.covariance[1], f.covariance[2]};
+  g.createDataSet("covariance", type_of<double>(), space).write(c, type_of<double>());
+}
+
+void write_ellipses(H5::Group& g, const std::vector<DispersionEllipse>& el) {
+  H5::Group e = g.createGroup("ellipses");
+  write_attribute(e, "approximation", std::string("gaussian"));
+  write_vector(e, "level", column(el, [](const auto& k) { return k.level; }));
+  write_vector(e, "scale", column(el, [](const auto& k) { return k.scale; }));
+  write_vector(e, "semi_major", column(el, [](const auto& k) { return k.semi_major; }));
+  write_vector(e, "semi_minor", column(el, [](const auto& k) { return k.semi_minor; }));
+  write_vector(e, "bearing", column(el, [](const auto& k) { return k.bearing; }));
+  write_vector(e, "counted", column(el, [](const auto& k) { return k.counted; }));
+}
+
+// The hazard polygons, a row each; their rings' vertices all in two columns, each polygon's
+// run of them given by its first vertex and vertex count.
+void write_polygons(H5::Group& g, const std::vector<HazardPolygon>& ps) {
+  H5::Group p = g.createGroup("polygons");
+  write_vector(p, "level", column(ps, [](const auto& k) { return k.level; }));
+  std::vector<std::uint64_t> rank, needed, first, count;
+  std::vector<std::uint8_t> determined;
+  std::vector<double> ve, vn;
+  std::vector<std::string> reason;
+  for (const auto& k : ps) {
+    rank.push_back(k.rank);
+    needed.push_back(k.samples_needed);
+    determined.push_back(k.determined ? 1 : 0);
+    first.push_back(ve.size());
+    count.push_back(k.ring.size());
+    reason.push_back(k.reason);
+    for (const auto& v : k.ring) {
+      ve.push_back(v.east);
+      vn.push_back(v.north);
+    }
+  }
+  write_vector(p, "rank", rank);
+  write_vector(p, "determined", determined);
+  write_vector(p, "samples_needed", needed);
+  write_strings(p, "reason", reason);
+  write_vector(p, "coverage", column(ps, [](const auto& k) { return k.coverage; }));
+  write_vector(p, "area", column(ps, [](const auto& k) { return k.area; }));
+  write_vector(p, "first_vertex", first);
+  write_vector(p, "vertex_count", count);
+  write_vector(p, "vertices_east", ve);
+  write_vector(p, "vertices_north", vn);
+}
+
+void write_grid(H5::Group& g, const GroupFootprint& f) {
+  H5::Group d = g.createGroup("grid");
+  write_attribute(d, "cell", f.grid.cell);
+  write_vector(d, "east_index", f.grid.east_index);
+  write_vector(d, "north_index", f.grid.north_index);
+  write_vector(d, "count", f.grid.count);
+  write_vector(d, "density", f.grid.density);
+}
+
+void write_sensitivity(H5::Group& g, const GroupFootprint& f) {
+  H5::Group s = g.createGroup("sensitivity");
+  std::vector<std::string> names;
+  for (const auto& k : f.sensitivity) names.push_back(k.input);
+  write_strings(s, "input", names);
+  write_vector(s, "downrange", column(f.sensitivity, [](const auto& k) { return k.downrange; }));
+  write_vector(s, "crossrange", column(f.sensitivity, [](const auto& k) { return k.crossrange; }));
+  write_vector(s, "distance", column(f.sensitivity, [](const auto& k) { return k.distance; }));
+  write_vector(s, "energy", column(f.sensitivity, [](const auto& k) { return k.energy; }));
+}
+
 void write_group(H5::Group& root, const GroupFootprint& f) {
   H5::Group g = root.createGroup(f.name);
   write_attributes(g, f, group_fields());
   write_vector(g, "mean", std::vector<double>{f.mean.east, f.mean.north});
   write_vector(g, "centre", std::vector<double>{f.centre.east, f.centre.north});
-  {
-    const hsize_t dims[2] = {2, 2};
-    H5::DataSpace space(2, dims);
-    const double c[4] = {f.covariance[0], f.covariance[1], f.covariance[1], f.covariance[2]};
-    g.createDataSet("covariance", type_of<double>(), space).write(c, type_of<double>());
-  }
+  write_covariance(g, f);
   write_containment(g, "containment", f.containment);
-  {
-    H5::Group e = g.createGroup("ellipses");
-    const auto& el = f.ellipses;
-    write_attribute(e, "approximation", std::string("gaussian"));
-    write_vector(e, "level", column(el, [](const auto& k) { return k.level; }));
-    write_vector(e, "scale", column(el, [](const auto& k) { return k.scale; }));
-    write_vector(e, "semi_major", column(el, [](const auto& k) { return k.semi_major; }));
-    write_vector(e, "semi_minor", column(el, [](const auto& k) { return k.semi_minor; }));
-    write_vector(e, "bearing", column(el, [](const auto& k) { return k.bearing; }));
-    write_vector(e, "counted", column(el, [](const auto& k) { return k.counted; }));
-  }
+  write_ellipses(g, f.ellipses);
   write_quantiles(g, "downrange", f.downrange);
   write_quantiles(g, "crossrange", f.crossrange);
   write_quantiles(g, "time", f.time);
-  {
-    H5::Group p = g.createGroup("polygons");
-    const auto& ps = f.polygons;
-    write_vector(p, "level", column(ps, [](const auto& k) { return k.level; }));
-    std::vector<std::uint64_t> rank, needed, first, count;
-    std::vector<std::uint8_t> determined;
-    std::vector<double> ve, vn;
-    std::vector<std::string> reason;
-    for (const auto& k : ps) {
-      rank.push_back(k.rank);
-      needed.push_back(k.samples_needed);
-      determined.push_back(k.determined ? 1 : 0);
-      first.push_back(ve.size());
-      count.push_back(k.ring.size());
-      reason.push_back(k.reason);
-      for (const auto& v : k.ring) {
-        ve.push_back(v.east);
-        vn.push_back(v.north);
-      }
-    }
-    write_vector(p, "rank", rank);
-    write_vector(p, "determined", determined);
-    write_vector(p, "samples_needed", needed);
-    write_strings(p, "reason", reason);
-    write_vector(p, "coverage", column(ps, [](const auto& k) { return k.coverage; }));
-    write_vector(p, "area", column(ps, [](const auto& k) { return k.area; }));
-    write_vector(p, "first_vertex", first);
-    write_vector(p, "vertex_count", count);
-    write_vector(p, "vertices_east", ve);
-    write_vector(p, "vertices_north", vn);
-  }
-  {
-    H5::Group d = g.createGroup("grid");
-    write_attribute(d, "cell", f.grid.cell);
-    write_vector(d, "east_index", f.grid.east_index);
-    write_vector(d, "north_index", f.grid.north_index);
-    write_vector(d, "count", f.grid.count);
-    write_vector(d, "density", f.grid.density);
-  }
+  write_polygons(g, f.polygons);
+  write_grid(g, f);
   write_containment(g, "speed", f.speed);
   write_containment(g, "energy", f.energy);
   {
     H5::Group e = g.openGroup("energy");
     write_attributes(e, f.energy_exceedance, exceedance_fields());
   }
-  {
-    H5::Group s = g.createGroup("sensitivity");
-    std::vector<std::string> names;
-    for (const auto& k : f.sensitivity) names.push_back(k.input);
-    write_strings(s, "input", names);
-    write_vector(s, "downrange", column(f.sensitivity, [](const auto& k) { return k.downrange; }));
-    write_vector(s, "crossrange",
-                 column(f.sensitivity, [](const auto& k) { return k.crossrange; }));
-    write_vector(s, "distance", column(f.sensitivity, [](const auto& k) { return k.distance; }));
-    write_vector(s, "energy", column(f.sensitivity, [](const auto& k) { return k.energy; }));
+  write_sensitivity(g, f);
+}
+
+// The covariance's three distinct terms (east-east, east-north, north-north) from its 2 x 2.
+std::array<double, 3> read_covariance(const H5::Group& g) {
+  H5::DataSet set = g.openDataSet("covariance");
+  if (set.getSpace().getSimpleExtentNpoints() != 4)
+    throw H5::DataSetIException("read_group", "covariance is not 2 x 2");
+  double c[4];
+  set.read(c, type_of<double>());
+  return {c[0], c[1], c[3]};
+}
+
+std::vector<DispersionEllipse> read_ellipses(const H5::Group& g) {
+  H5::Group e = g.openGroup("ellipses");
+  const auto level = read_vector<double>(e, "level"), scale = read_vector<double>(e, "scale"),
+             major = read_vector<double>(e, "semi_major"),
+             minor = read_vector<double>(e, "semi_minor"),
+             bearing = read_vector<double>(e, "bearing"),
+             counted = read_vector<double>(e, "counted");
+  std::vector<DispersionEllipse> out;
+  for (std::size_t k = 0; k < level.size(); ++k)
+    out.push_back({level[k], scale.at(k), major.at(k), minor.at(k), bearing.at(k), counted.at(k)});
+  return out;
+}
+
+// The hazard polygons, each with its ring cut from the vertex columns (see write_polygons).
+std::vector<HazardPolygon> read_polygons(const H5::Group& g) {
+  H5::Group p = g.openGroup("polygons");
+  const auto level = read_vector<double>(p, "level");
+  const auto rank = read_vector<std::uint64_t>(p, "rank");
+  const auto determined = read_vector<std::uint8_t>(p, "determined");
+  const auto needed = read_vector<std::uint64_t>(p, "samples_needed");
+  const auto reason = read_strings(p, "reason");
+  const auto coverage = read_vector<double>(p, "coverage"), area = read_vector<double>(p, "area");
+  const auto first = read_vector<std::uint64_t>(p, "first_vertex");
+  const auto count = read_vector<std::uint64_t>(p, "vertex_count");
+  const auto ve = read_vector<double>(p, "vertices_east");
+  const auto vn = read_vector<double>(p, "vertices_north");
+  std::vector<HazardPolygon> out;
+  for (std::size_t k = 0; k < level.size(); ++k) {
+    HazardPolygon poly;
+    poly.level = level[k];
+    poly.rank = rank.at(k);
+    poly.determined = determined.at(k) != 0;
+    poly.samples_needed = needed.at(k);
+    poly.reason = reason.at(k);
+    poly.coverage = coverage.at(k);
+    poly.area = area.at(k);
+    for (std::uint64_t v = first.at(k); v < first[k] + count.at(k); ++v)
+      poly.ring.push_back({ve.at(v), vn.at(v)});
+    out.push_back(std::move(poly));
   }
+  return out;
+}
+
+// The density grid; refuses columns of different lengths.
+void read_grid(const H5::Group& g, GroupFootprint& f) {
+  H5::Group d = g.openGroup("grid");
+  f.grid.cell = read_attribute<double>(d, "cell");
+  f.grid.east_index = read_vector<std::int64_t>(d, "east_index");
+  f.grid.north_index = read_vector<std::int64_t>(d, "north_index");
+  f.grid.count = read_vector<std::uint64_t>(d, "count");
+  f.grid.density = read_vector<double>(d, "density");
+  const std::size_t cells = f.grid.count.size();
+  if (f.grid.east_index.size() != cells || f.grid.north_index.size() != cells ||
+      f.grid.density.size() != cells)
+    throw H5::DataSetIException("read_group", "grid columns differ in length");
+}
+
+void read_sensitivity(const H5::Group& g, GroupFootprint& f) {
+  H5::Group s = g.openGroup("sensitivity");
+  const auto names = read_strings(s, "input");
+  const auto d = read_vector<double>(s, "downrange"), c = read_vector<double>(s, "crossrange"),
+             r = read_vector<double>(s, "distance"), e = read_vector<double>(s, "energy");
+  for (std::size_t k = 0; k < names.size(); ++k)
+    f.sensitivity.push_back({names[k], d.at(k), c.at(k), r.at(k), e.at(k)});
 }
 
 GroupFootprint read_group(const H5::Group& root, const std::string& name, double confidence) {
@@ -214,81 +301,21 @@ GroupFootprint read_group(const H5::Group& root, const std::string& name, double
   const auto mean = read_vector<double>(g, "mean"), centre = read_vector<double>(g, "centre");
   f.mean = {mean.at(0), mean.at(1)};
   f.centre = {centre.at(0), centre.at(1)};
-  {
-    H5::DataSet set = g.openDataSet("covariance");
-    if (set.getSpace().getSimpleExtentNpoints() != 4)
-      throw H5::DataSetIException("read_group", "covariance is not 2 x 2");
-    double c[4];
-    set.read(c, type_of<double>());
-    f.covariance = {c[0], c[1], c[3]};
-  }
+  f.covariance = read_covariance(g);
   f.containment = read_containment(g, "containment", confidence);
-  {
-    H5::Group e = g.openGroup("ellipses");
-    const auto level = read_vector<double>(e, "level"), scale = read_vector<double>(e, "scale"),
-               major = read_vector<double>(e, "semi_major"),
-               minor = read_vector<double>(e, "semi_minor"),
-               bearing = read_vector<double>(e, "bearing"),
-               counted = read_vector<double>(e, "counted");
-    for (std::size_t k = 0; k < level.size(); ++k)
-      f.ellipses.push_back(
-          {level[k], scale.at(k), major.at(k), minor.at(k), bearing.at(k), counted.at(k)});
-  }
+  f.ellipses = read_ellipses(g);
   f.downrange = read_quantiles(g, "downrange");
   f.crossrange = read_quantiles(g, "crossrange");
   f.time = read_quantiles(g, "time");
-  {
-    H5::Group p = g.openGroup("polygons");
-    const auto level = read_vector<double>(p, "level");
-    const auto rank = read_vector<std::uint64_t>(p, "rank");
-    const auto determined = read_vector<std::uint8_t>(p, "determined");
-    const auto needed = read_vector<std::uint64_t>(p, "samples_needed");
-    const auto reason = read_strings(p, "reason");
-    const auto coverage = read_vector<double>(p, "coverage"), area = read_vector<double>(p, "area");
-    const auto first = read_vector<std::uint64_t>(p, "first_vertex");
-    const auto count = read_vector<std::uint64_t>(p, "vertex_count");
-    const auto ve = read_vector<double>(p, "vertices_east");
-    const auto vn = read_vector<double>(p, "vertices_north");
-    for (std::size_t k = 0; k < level.size(); ++k) {
-      HazardPolygon poly;
-      poly.level = level[k];
-      poly.rank = rank.at(k);
-      poly.determined = determined.at(k) != 0;
-      poly.samples_needed = needed.at(k);
-      poly.reason = reason.at(k);
-      poly.coverage = coverage.at(k);
-      poly.area = area.at(k);
-      for (std::uint64_t v = first.at(k); v < first[k] + count.at(k); ++v)
-        poly.ring.push_back({ve.at(v), vn.at(v)});
-      f.polygons.push_back(std::move(poly));
-    }
-  }
-  {
-    H5::Group d = g.openGroup("grid");
-    f.grid.cell = read_attribute<double>(d, "cell");
-    f.grid.east_index = read_vector<std::int64_t>(d, "east_index");
-    f.grid.north_index = read_vector<std::int64_t>(d, "north_index");
-    f.grid.count = read_vector<std::uint64_t>(d, "count");
-    f.grid.density = read_vector<double>(d, "density");
-    const std::size_t cells = f.grid.count.size();
-    if (f.grid.east_index.size() != cells || f.grid.north_index.size() != cells ||
-        f.grid.density.size() != cells)
-      throw H5::DataSetIException("read_group", "grid columns differ in length");
-  }
+  f.polygons = read_polygons(g);
+  read_grid(g, f);
   f.speed = read_containment(g, "speed", confidence);
   f.energy = read_containment(g, "energy", confidence);
   {
     H5::Group e = g.openGroup("energy");
     read_attributes(e, f.energy_exceedance, exceedance_fields());
   }
-  {
-    H5::Group s = g.openGroup("sensitivity");
-    const auto names = read_strings(s, "input");
-    const auto d = read_vector<double>(s, "downrange"), c = read_vector<double>(s, "crossrange"),
-               r = read_vector<double>(s, "distance"), e = read_vector<double>(s, "energy");
-    for (std::size_t k = 0; k < names.size(); ++k)
-      f.sensitivity.push_back({names[k], d.at(k), c.at(k), r.at(k), e.at(k)});
-  }
+  read_sensitivity(g, f);
   return f;
 }
 

@@ -312,50 +312,93 @@ Footprint footprint_from_image(std::span<const std::byte> image) {
   }
 }
 
-ResultsFile read_results(const std::string& path, bool with_samples,
-                         std::optional<std::uint64_t> sweep_case) {
-  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
-  H5::Exception::dontPrint();
+namespace {
+
+// Refuses, before HDF5 opens it, a path that is missing, a folder or not an HDF5 file.
+void check_results_path(const std::string& path) {
   if (!std::filesystem::exists(path)) throw InputFileError(path + ": no such results file");
   if (std::filesystem::is_directory(path))
     throw InputFileError(path + ": is a folder, not a results file");
   if (H5::H5File::isHdf5(path.c_str()) <= 0)
     throw InputFileError(path + ": not an HDF5 file (a strewn results file is HDF5)");
+}
+
+// The file's format version; refuses a file without one or of another version.
+int read_format_version(const H5::H5File& file, const std::string& path) {
+  if (!file.attrExists("format_version"))
+    throw InputFileError(path + ": not a strewn results file (no format_version)");
+  const int version = read_attribute<int>(file, "format_version");
+  if (version != kResultsFormatVersion)
+    throw InputFileError(path + ": results format version " + std::to_string(version) +
+                         ", this strewn reads version " + std::to_string(kResultsFormatVersion) +
+                         "; run the study again with this strewn");
+  return version;
+}
+
+// The group holding case `sweep_case` of a sweep's file; names the case (by its axes' values)
+// and the file in the record. Refuses a missing or out-of-range case.
+H5::Group open_sweep_case(const H5::H5File& file, const std::string& path,
+                          std::optional<std::uint64_t> sweep_case, StudyRecord& record) {
+  const auto cases = read_attribute<std::uint64_t>(file, "cases");
+  if (!sweep_case)
+    throw InputFileError(path + ": is the file of a sweep of " + std::to_string(cases) +
+                         " cases; name one with --case (0 to " +
+                         std::to_string(cases ? cases - 1 : 0) +
+                         "); the summary of all is beside it as CSV");
+  if (*sweep_case >= cases)
+    throw InputFileError(path + ": the sweep holds cases 0 to " +
+                         std::to_string(cases ? cases - 1 : 0) + ", not " +
+                         std::to_string(*sweep_case));
+  H5::Group root = file.openGroup("cases/" + std::to_string(*sweep_case));
+  // Which case this is, in its axes' values: said wherever the record is shown.
+  std::string values;
+  for (const auto& key : read_strings_attribute(file, "axes"))
+    if (root.attrExists(key))
+      values += (values.empty() ? "" : ", ") + key + " = " +
+                printf_text("%g", read_attribute<double>(root, key));
+  record.case_label = "case " + std::to_string(*sweep_case) + " of the sweep" +
+                      (values.empty() ? "" : ": " + values);
+  record.file = path + " (case " + std::to_string(*sweep_case) + ")";
+  return root;
+}
+
+// Reads every sample column, and checks that they have one length and name listed bodies only.
+void read_sample_columns(const H5::Group& samples, const std::string& path, ResultsFile& r) {
+  StudyColumns& c = r.columns;
+  std::vector<std::string> names = read_strings_attribute(samples, "input_names");
+  const std::vector<std::string> choices = read_strings_attribute(samples, "choice_names");
+  names.insert(names.end(), choices.begin(), choices.end());
+  c.set_inputs(std::move(names), choices.size());
+  c.for_each_column([&](std::string_view name, auto& column) {
+    using Value = typename std::decay_t<decltype(column)>::value_type;
+    column = read_vector<Value>(samples, std::string(name));
+  });
+  bool whole = true;
+  c.for_each_column(
+      [&](std::string_view, const auto& column) { whole = whole && column.size() == c.rows(); });
+  if (!whole) throw InputFileError(path + ": the sample columns differ in length");
+  for (std::uint16_t b : c.body)
+    if (b >= r.body_names.size())
+      throw InputFileError(path + ": a sample names a body the file does not list");
+}
+
+}  // namespace
+
+ResultsFile read_results(const std::string& path, bool with_samples,
+                         std::optional<std::uint64_t> sweep_case) {
+  const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
+  H5::Exception::dontPrint();
+  check_results_path(path);
   ResultsFile r;
   StudyRecord& record = r.record;
   try {
     H5::H5File file(path, H5F_ACC_RDONLY);
-    if (!file.attrExists("format_version"))
-      throw InputFileError(path + ": not a strewn results file (no format_version)");
-    r.format_version = read_attribute<int>(file, "format_version");
-    if (r.format_version != kResultsFormatVersion)
-      throw InputFileError(path + ": results format version " + std::to_string(r.format_version) +
-                           ", this strewn reads version " + std::to_string(kResultsFormatVersion) +
-                           "; run the study again with this strewn");
+    r.format_version = read_format_version(file, path);
     // A study's own file, or one case of a sweep's file: the same layout under /cases/<index>.
     const bool sweep = file.attrExists("kind") && read_string_attribute(file, "kind") == "sweep";
     H5::Group root = file.openGroup("/");
     if (sweep) {
-      const auto cases = read_attribute<std::uint64_t>(file, "cases");
-      if (!sweep_case)
-        throw InputFileError(path + ": is the file of a sweep of " + std::to_string(cases) +
-                             " cases; name one with --case (0 to " +
-                             std::to_string(cases ? cases - 1 : 0) +
-                             "); the summary of all is beside it as CSV");
-      if (*sweep_case >= cases)
-        throw InputFileError(path + ": the sweep holds cases 0 to " +
-                             std::to_string(cases ? cases - 1 : 0) + ", not " +
-                             std::to_string(*sweep_case));
-      root = file.openGroup("cases/" + std::to_string(*sweep_case));
-      // Which case this is, in its axes' values: said wherever the record is shown.
-      std::string values;
-      for (const auto& key : read_strings_attribute(file, "axes"))
-        if (root.attrExists(key))
-          values += (values.empty() ? "" : ", ") + key + " = " +
-                    printf_text("%g", read_attribute<double>(root, key));
-      record.case_label = "case " + std::to_string(*sweep_case) + " of the sweep" +
-                          (values.empty() ? "" : ": " + values);
-      record.file = path + " (case " + std::to_string(*sweep_case) + ")";
+      root = open_sweep_case(file, path, sweep_case, record);
     } else {
       if (sweep_case)
         throw InputFileError(path +
@@ -374,25 +417,7 @@ ResultsFile read_results(const std::string& path, bool with_samples,
     record.body_names = r.body_names;
     read_footprint(root, record);
     r.has_samples = samples.nameExists("east");
-    if (with_samples && r.has_samples) {
-      StudyColumns& c = r.columns;
-      std::vector<std::string> names = read_strings_attribute(samples, "input_names");
-      const std::vector<std::string> choices = read_strings_attribute(samples, "choice_names");
-      names.insert(names.end(), choices.begin(), choices.end());
-      c.set_inputs(std::move(names), choices.size());
-      c.for_each_column([&](std::string_view name, auto& column) {
-        using Value = typename std::decay_t<decltype(column)>::value_type;
-        column = read_vector<Value>(samples, std::string(name));
-      });
-      bool whole = true;
-      c.for_each_column([&](std::string_view, const auto& column) {
-        whole = whole && column.size() == c.rows();
-      });
-      if (!whole) throw InputFileError(path + ": the sample columns differ in length");
-      for (std::uint16_t b : c.body)
-        if (b >= r.body_names.size())
-          throw InputFileError(path + ": a sample names a body the file does not list");
-    }
+    if (with_samples && r.has_samples) read_sample_columns(samples, path, r);
   } catch (const H5::Exception& e) {
     std::string message = path;
     message += ": cannot read the results file; it is truncated, damaged or incomplete (";
