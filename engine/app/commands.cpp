@@ -11,11 +11,11 @@
 #include <cerrno>
 #include <charconv>
 #include <chrono>
-#include <functional>
 #include <csignal>
 #include <cstdint>
 #include <cstring>
 #include <filesystem>
+#include <functional>
 #include <iostream>
 #include <optional>
 #include <sstream>
