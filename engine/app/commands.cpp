@@ -405,8 +405,6 @@ int run_report(const ReportArguments& a, std::ostream& out) {
   return kExitDone;
 }
 
-// A whole number from `least` to `most`, refused in plain words (CLI11's own range checks print
-// the largest double, 309 digits).
 // Runs a sweep and says what it does: a line per finished case (unless quiet), and on rank 0
 // where the results are. A case failing on one rank of several ends the whole job.
 int run_sweep_command(const Job& job, const SweepPlan& plan, const SweepOptions& options,
@@ -439,6 +437,8 @@ int run_sweep_command(const Job& job, const SweepPlan& plan, const SweepOptions&
   return kExitDone;
 }
 
+// A whole number from `least` to `most`, refused in plain words (CLI11's own range checks print
+// the largest double, 309 digits).
 CLI::Validator whole_number(std::uint64_t least, std::uint64_t most) {
   return CLI::Validator(
       [least, most](std::string& text) -> std::string {

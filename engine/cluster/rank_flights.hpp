@@ -8,7 +8,9 @@
 // rank 1 computes the other half (the serial tail of a study, split over two processes), then
 // rank 0 merges the halves. Rank 0's decision to add samples (growth toward study.target_width)
 // is broadcast. The rows depend only on their sample index and the statistics only on the rows,
-// so the file is bit-identical to a threaded run's.
+// so the file is bit-identical to a threaded run's. A study on several ranks is neither stopped by
+// a signal nor resumed from a checkpoint (run_pipeline refuses it): one rank stopping alone would
+// leave the others waiting.
 #include <cstddef>
 #include <string>
 #include <vector>

@@ -300,7 +300,12 @@ void range_section(const GroupImpacts& in, GroupFootprint& f, std::vector<double
 // impacts it is built on lie inside by construction; every other impact is tested.
 void polygon_section(const GroupImpacts& in, const Principal& axes, GroupFootprint& f,
                      RankScratch& scratch) {
-  const auto& [t, s, g, e, n, m] = in;
+  // Named references, not a structured binding: the lambdas below capture them.
+  const FootprintSettings& s = in.settings;
+  const GroupRows& g = in.rows;
+  const std::vector<double>& e = in.e;
+  const std::vector<double>& n = in.n;
+  const std::size_t m = in.m;
   // Mahalanobis distances (squared) about the mean, with the covariance made positive definite
   // by the polygon margin when the impacts are degenerate (all on a line or a point).
   const double floor =
@@ -413,7 +418,11 @@ void energy_section(const GroupImpacts& in, GroupFootprint& f, std::vector<doubl
 void sensitivity_section(const GroupImpacts& in, const std::string& name, GroupFootprint& f,
                          const std::array<std::span<const double>, 4>& outputs,
                          ScratchPerThread& scratches) {
-  const auto& [t, s, g, e, n, m] = in;
+  // Named references, not a structured binding: the lambdas below capture them.
+  const ImpactTable& t = in.table;
+  const FootprintSettings& s = in.settings;
+  const GroupRows& g = in.rows;
+  const std::size_t m = in.m;
   if (m >= 3) {
     f.sensitivity.resize(t.inputs.size());
     tbb::parallel_for(std::size_t{0}, t.inputs.size(), [&](std::size_t d) {
@@ -555,9 +564,6 @@ MixtureColumn mixture_of(const std::vector<GroupRows>& bodies, const FootprintSe
   return MixtureColumn(std::move(landed), failed, s.body_counts);
 }
 
-// "all" of several bodies: one object of a release (footprint/mixture.hpp). Its rows are every
-// body's, each weighted by the body's objects per release over the body's rows; estimates are
-// the weighted ones, bounds by Boole's inequality over the bodies; one centre for all bodies.
 // The rows of every body of a release and each body's weight per row (its objects per release
 // over its rows), what every section of the release's statistics reads.
 struct ReleaseImpacts {
@@ -603,7 +609,10 @@ void release_moments(const ReleaseImpacts& in, GroupFootprint& f) {
 
 // Containment of one object of the release about the centre.
 void release_containment(const ReleaseImpacts& in, GroupFootprint& f) {
-  const auto& [t, s, bodies, row_weight] = in;
+  // Named references, not a structured binding: the lambdas below capture them.
+  const ImpactTable& t = in.table;
+  const FootprintSettings& s = in.settings;
+  const std::vector<GroupRows>& bodies = in.bodies;
   const MixtureColumn distance = mixture_of(bodies, s, [&](std::uint32_t row) {
     return planar_distance(t.east[row] - f.centre.east, t.north[row] - f.centre.north);
   });
@@ -612,7 +621,10 @@ void release_containment(const ReleaseImpacts& in, GroupFootprint& f) {
 
 // Downrange (along the bearing) and crossrange (to its right) about the centre.
 void release_ranges(const ReleaseImpacts& in, GroupFootprint& f, double end) {
-  const auto& [t, s, bodies, row_weight] = in;
+  // Named references, not a structured binding: the lambdas below capture them.
+  const ImpactTable& t = in.table;
+  const FootprintSettings& s = in.settings;
+  const std::vector<GroupRows>& bodies = in.bodies;
   const double th = s.downrange_bearing * std::numbers::pi / 180.0;
   const double ue = std::sin(th), un = std::cos(th);
   const MixtureColumn down = mixture_of(bodies, s, [&](std::uint32_t row) {
@@ -629,7 +641,10 @@ void release_ranges(const ReleaseImpacts& in, GroupFootprint& f, double end) {
 
 // Speed and energy: upper quantiles with their bounds; exceedance; the time of flight.
 void release_energy_and_time(const ReleaseImpacts& in, GroupFootprint& f, double end) {
-  const auto& [t, s, bodies, row_weight] = in;
+  // Named references, not a structured binding: the lambdas below capture them.
+  const ImpactTable& t = in.table;
+  const FootprintSettings& s = in.settings;
+  const std::vector<GroupRows>& bodies = in.bodies;
   const MixtureColumn speed =
       mixture_of(bodies, s, [&](std::uint32_t row) { return t.speed[row]; });
   const MixtureColumn energy =
@@ -668,7 +683,11 @@ void release_energy_and_time(const ReleaseImpacts& in, GroupFootprint& f, double
 
 // CEP about the mean, and the dispersion ellipses with the weighted share of the rows inside.
 void release_ellipses(const ReleaseImpacts& in, const Principal& axes, GroupFootprint& f) {
-  const auto& [t, s, bodies, row_weight] = in;
+  // Named references, not a structured binding: the lambdas below capture them.
+  const ImpactTable& t = in.table;
+  const FootprintSettings& s = in.settings;
+  const std::vector<GroupRows>& bodies = in.bodies;
+  const std::vector<double>& row_weight = in.row_weight;
   const MixtureColumn about_mean = mixture_of(bodies, s, [&](std::uint32_t row) {
     return planar_distance(t.east[row] - f.mean.east, t.north[row] - f.mean.north);
   });
@@ -704,7 +723,11 @@ void release_ellipses(const ReleaseImpacts& in, const Principal& axes, GroupFoot
 // Hazard polygons: as a body's, with the number of nearest impacts set by the mixture's bound of
 // the Mahalanobis distance, and the coverage weighted.
 void release_polygons(const ReleaseImpacts& in, const Principal& axes, GroupFootprint& f) {
-  const auto& [t, s, bodies, row_weight] = in;
+  // Named references, not a structured binding: the lambdas below capture them.
+  const ImpactTable& t = in.table;
+  const FootprintSettings& s = in.settings;
+  const std::vector<GroupRows>& bodies = in.bodies;
+  const std::vector<double>& row_weight = in.row_weight;
   const double floor =
       std::max(1e-12 * (axes.major + axes.minor), s.polygon_margin * s.polygon_margin);
   const double a = f.covariance[0] + floor, b = f.covariance[1], c = f.covariance[2] + floor;
@@ -769,6 +792,9 @@ void release_polygons(const ReleaseImpacts& in, const Principal& axes, GroupFoot
   }
 }
 
+// "all" of several bodies: one object of a release (footprint/mixture.hpp). Its rows are every
+// body's, each weighted by the body's objects per release over the body's rows; estimates are
+// the weighted ones, bounds by Boole's inequality over the bodies; one centre for all bodies.
 GroupFootprint compute_release_group(const ImpactTable& t, const FootprintSettings& s,
                                      const std::vector<GroupRows>& bodies, PlanePoint nominal) {
   GroupFootprint f;

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <optional>
 #include <span>
+#include <stdexcept>
 #include <utility>
 
 namespace strewn {
@@ -121,6 +122,11 @@ void mark_interrupted(StudyRun& run, std::uint64_t finished, std::uint64_t plann
 StudyRun run_pipeline(const SampleModel& model, const World& world, StudyOptions options,
                       StudyStore* store, SampleFlights& flights, int threads,
                       const RunControl& control) {
+  // A stop or a checkpoint on one process of several would leave the others waiting in the
+  // exchange of rows or in agree(): only a single process may be stopped and resumed.
+  if (flights.processes() > 1 && (control.stop || control.checkpoint || control.resume))
+    throw std::logic_error(
+        "run_pipeline: a study on several processes cannot be stopped or resumed");
   const Scenario& s = model.scenario();
   const std::size_t bodies = model.bodies();
   std::vector<KeptRows> kept = store ? store->take_kept() : std::vector<KeptRows>{};

@@ -143,7 +143,10 @@ BodyTallies tally_flags(const StudyColumns& c, std::size_t bodies) {
 std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
                                          const StudyColumns& c, const Footprint& footprint) {
   const std::size_t bodies = s.bodies.size();
-  const auto [tally, rows] = tally_flags(c, bodies);
+  // Named, not a structured binding: the lambda below captures them.
+  const BodyTallies tallies = tally_flags(c, bodies);
+  const auto& tally = tallies.tally;
+  const auto& rows = tallies.rows;
   // The limits of each body, from its nominal flight in the scenario's medium and wind (for an
   // ensemble, the lowest top among the members).
   double wind_top = std::numeric_limits<double>::infinity();

@@ -3,6 +3,7 @@
 // and the nominal flight of each body: every uncertain input at its median.
 #include <cstddef>
 #include <span>
+#include <vector>
 
 #include "flight/flight.hpp"
 #include "scenario/scenario.hpp"
@@ -33,6 +34,8 @@ class InputValues {
   static InputValues nominal() { return InputValues({}); }
   /// A sample's values, in the order of Scenario::sampled_inputs.
   static InputValues of_sample(std::span<const double> values) { return InputValues(values); }
+  /// Refused: the values must outlive the InputValues that reads them.
+  static InputValues of_sample(std::vector<double>&& values) = delete;
   [[nodiscard]] double operator()(const Uncertain& input) const {
     const int index = input.sampled_index();
     return index >= 0 && !values_.empty() ? values_[static_cast<std::size_t>(index)]

@@ -1,6 +1,6 @@
 #pragma once
 // The /footprint part of the results file (layout in docs/results.md), written by `run` and read
-// by `report`. Internal to the io module.
+// by `report`. Internal to the store module.
 #include <H5Cpp.h>
 
 #include "pipeline/study_record.hpp"

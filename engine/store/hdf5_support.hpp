@@ -1,5 +1,5 @@
 #pragma once
-// Small typed helpers over the HDF5 C++ API for the io module (not part of its public headers):
+// Small typed helpers over the HDF5 C++ API for the store module (not part of its public headers):
 // scalar and vector attributes, 1-D datasets of numbers and of strings, read back by type.
 #include <H5Cpp.h>
 

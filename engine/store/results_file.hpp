@@ -5,7 +5,7 @@
 // Root attributes: format_version, engine_version, created, seed, samples, completed, failed,
 // scenario_sha256, threads, rounds. /scenario: the scenario text exactly as read.
 // /samples/<column>: one 1-D dataset per column (chunked, shuffled and deflated), with the
-// attribute body_names. /footprint: the statistics of the study (io/footprint_file.hpp).
+// attribute body_names. /footprint: the statistics of the study (store/footprint_file.hpp).
 //
 // The file is written under a temporary name beside the final one and renamed when complete, so
 // a file under the final name is always whole.

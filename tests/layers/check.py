@@ -8,9 +8,10 @@ import pathlib
 import re
 import sys
 
-# scenario -> sampling -> flight -> study pipeline -> footprint -> store -> report -> app, as
-# dependencies: the flight's physics under the scenario that describes it, the footprint
-# statistics (on rows, knowing nothing of flights) under the pipeline that computes them.
+# The data path (scenario -> sampling -> flight -> study pipeline -> footprint -> store -> report
+# -> app) as dependencies, lowest first: the flight's physics under the scenario that describes
+# it, the footprint statistics (on rows, knowing nothing of flights) under the pipeline that
+# computes them, the processes of a job (cluster) under the command line.
 LAYERS = ["core", "medium", "flight", "scenario", "sampling", "study", "footprint", "pipeline",
           "store", "report", "cluster", "app"]
 

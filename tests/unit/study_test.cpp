@@ -10,6 +10,7 @@
 #include <cstring>
 #include <filesystem>
 #include <fstream>
+#include <stdexcept>
 
 #include "command_line.hpp"
 #include "core/errors.hpp"
@@ -288,6 +289,33 @@ TEST(Study, AStopAfterTheLastFlightKeepsEverythingAndResumes) {
   EXPECT_EQ(resumed.resumed, 300u);  // nothing flown again
   EXPECT_TRUE(same_columns(resumed.result.columns, whole.result.columns));
   EXPECT_FALSE(std::filesystem::exists(late + ".checkpoint"));
+}
+
+// A study on several processes is never stopped or resumed: one process stopping alone would
+// leave the others waiting for its rows. The pipeline refuses it before anything flies.
+TEST(Study, ASeveralProcessStudyIsNeverStoppedOrResumed) {
+  class TwoProcesses final : public SampleFlights {
+   public:
+    StudyResult fly(const SampleModel&, const StudyOptions&) override {
+      ADD_FAILURE() << "flown despite a stop on several processes";
+      return {};
+    }
+    [[nodiscard]] int processes() const override { return 2; }
+  };
+  const Scenario s = parse_scenario(kStudy, "study.toml");
+  const World world = build_world(s);
+  const SampleModel model(s, world, 10);
+  StudyOptions options;
+  options.samples = 10;
+  TwoProcesses flights;
+  std::atomic<bool> stop{false};
+  RunControl stoppable;
+  stoppable.stop = &stop;
+  EXPECT_THROW(run_pipeline(model, world, options, nullptr, flights, 1, stoppable),
+               std::logic_error);
+  RunControl resumed;
+  resumed.resume = true;
+  EXPECT_THROW(run_pipeline(model, world, options, nullptr, flights, 1, resumed), std::logic_error);
 }
 
 // Found by a tester: a checkpoint whose record length was damaged made --resume fail for want of
