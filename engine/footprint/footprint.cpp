@@ -248,6 +248,27 @@ void circular_error_section(const GroupImpacts& in, GroupFootprint& f) {
   f.cep_gaussian = m >= 2 ? gaussian_circle_radius(f.covariance, 0.5) : kNaN;
 }
 
+// The squared scale of the dispersion ellipse holding `level` of a Gaussian footprint: the
+// chi-square quantile with 2 degrees of freedom, -2 ln(1 - level). Bodies and releases count
+// their impacts against this same number.
+double ellipse_scale2(double level) {
+  return -2.0 * std::log1p(-level);
+}
+
+// The dispersion ellipse of `level` (Gaussian approximation) on the principal axes of the
+// covariance; without a spread to measure (fewer than two landed rows), its axes are NaN. The
+// share of the rows counted inside is the caller's.
+DispersionEllipse gaussian_ellipse(double level, const Principal& axes, bool spread) {
+  DispersionEllipse el;
+  el.level = level;
+  el.scale = std::sqrt(ellipse_scale2(level));
+  el.semi_major = el.scale * std::sqrt(axes.major);
+  el.semi_minor = el.scale * std::sqrt(axes.minor);
+  el.bearing = axes.bearing;
+  if (!spread) el.semi_major = el.semi_minor = el.bearing = kNaN;
+  return el;
+}
+
 // Ellipses (Gaussian approximation) and the share of the rows counted inside each, in one pass.
 void ellipse_section(const GroupImpacts& in, const Principal& axes, GroupFootprint& f) {
   const auto& [t, s, g, e, n, m] = in;
@@ -255,7 +276,7 @@ void ellipse_section(const GroupImpacts& in, const Principal& axes, GroupFootpri
   const double det = a * c - b * b;
   std::vector<std::uint64_t> inside(s.levels.size(), 0);
   std::vector<double> scale2(s.levels.size());
-  for (std::size_t l = 0; l < s.levels.size(); ++l) scale2[l] = -2.0 * std::log1p(-s.levels[l]);
+  for (std::size_t l = 0; l < s.levels.size(); ++l) scale2[l] = ellipse_scale2(s.levels[l]);
   if (det > 0.0)
     for (std::size_t k = 0; k < m; ++k) {
       const double de = e[k] - f.mean.east, dn = n[k] - f.mean.north;
@@ -263,14 +284,8 @@ void ellipse_section(const GroupImpacts& in, const Principal& axes, GroupFootpri
       for (std::size_t l = 0; l < scale2.size(); ++l) inside[l] += d2 <= scale2[l] ? 1 : 0;
     }
   for (std::size_t l = 0; l < s.levels.size(); ++l) {
-    DispersionEllipse el;
-    el.level = s.levels[l];
-    el.scale = std::sqrt(scale2[l]);
-    el.semi_major = el.scale * std::sqrt(axes.major);
-    el.semi_minor = el.scale * std::sqrt(axes.minor);
-    el.bearing = axes.bearing;
+    DispersionEllipse el = gaussian_ellipse(s.levels[l], axes, m >= 2);
     el.counted = g.rows ? static_cast<double>(inside[l]) / static_cast<double>(g.rows) : kNaN;
-    if (m < 2) el.semi_major = el.semi_minor = el.bearing = kNaN;  // no spread to measure
     f.ellipses.push_back(el);
   }
 }
@@ -697,15 +712,10 @@ void release_ellipses(const ReleaseImpacts& in, const Principal& axes, GroupFoot
   const double a = f.covariance[0], b = f.covariance[1], c = f.covariance[2];
   const double det = a * c - b * b;
   for (double level : s.levels) {
-    DispersionEllipse el;
-    el.level = level;
+    DispersionEllipse el = gaussian_ellipse(level, axes, f.landed >= 2);
     // The same squared scale as a body's ellipse counts against (not scale * scale, which
     // rounds differently).
-    const double scale2 = -2.0 * std::log1p(-level);
-    el.scale = std::sqrt(scale2);
-    el.semi_major = el.scale * std::sqrt(axes.major);
-    el.semi_minor = el.scale * std::sqrt(axes.minor);
-    el.bearing = axes.bearing;
+    const double scale2 = ellipse_scale2(level);
     double inside = 0.0;
     if (det > 0.0)
       for (std::size_t k = 0; k < bodies.size(); ++k)
@@ -715,7 +725,6 @@ void release_ellipses(const ReleaseImpacts& in, const Principal& axes, GroupFoot
             inside += row_weight[k];
         }
     el.counted = f.objects_per_release > 0.0 ? inside / f.objects_per_release : kNaN;
-    if (f.landed < 2) el.semi_major = el.semi_minor = el.bearing = kNaN;
     f.ellipses.push_back(el);
   }
 }
