@@ -3,8 +3,8 @@
 // messages all read it, so that each name is spelled once. An enum E gets its table by
 // specialising EnumNames:
 //
-//   template <> struct EnumNames<DragModel> {
-//     static constexpr std::array names{std::pair{DragModel::sphere, "sphere"}, ...};
+//   template <> struct EnumNames<CanopyState> {
+//     static constexpr std::array names{std::pair{CanopyState::none, "none"}, ...};
 //   };
 #include <optional>
 #include <string>

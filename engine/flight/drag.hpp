@@ -3,33 +3,78 @@
 // F = -k u, with k >= 0 in kg/s; `coefficient()` returns k. Writing the force this way keeps it
 // finite and smooth at u = 0 (the Stokes limit) for every model.
 //
-// Models (see docs/model.md for equations, sources and ranges):
-// - sphere: standard drag curve of a smooth sphere, Morrison (2013), valid 0 < Re <= 1e6.
-// - shape:  non-spherical particles by sphericity, Haider and Levenspiel (1989), valid Re < 2.6e5,
-//           sphericity 0.026 .. 1.
-// - area:   constant drag coefficient on a reference area (Newton regime, Re > ~1e3).
-// - stokes: linear drag only, F = -3 pi mu D u (Stokes 1851), valid Re < ~1 (common practice).
-// An optional Mach table multiplies Cd (not for stokes).
+// Each law is one file under drag_laws/ (its equations, the keys it reads with their bounds, its
+// range of validity) and one entry in `DragLaws` below; nothing else names it. Today's laws (see
+// docs/model.md for equations, sources and ranges):
+// - area:   constant drag coefficient on a reference area (Newton regime, Re > ~1e3);
+// - sphere: standard drag curve of a smooth sphere, Morrison (2013), valid 0 < Re <= 1e6;
+// - shape:  non-spherical particles by sphericity, Haider and Levenspiel (1989), Re < 2.6e5;
+// - stokes: linear drag only, F = -3 pi mu D u (Stokes 1851), valid Re < ~1 (common practice);
+// and an optional Mach table that multiplies Cd (for the laws that take one).
 #include <array>
+#include <cstddef>
+#include <optional>
+#include <span>
 #include <string>
-#include <utility>
+#include <string_view>
+#include <variant>
 #include <vector>
 
-#include "core/enum_names.hpp"
+#include "flight/drag_laws/area.hpp"
+#include "flight/drag_laws/shape.hpp"
+#include "flight/drag_laws/sphere.hpp"
+#include "flight/drag_laws/stokes.hpp"
 #include "medium/medium.hpp"
 
 namespace strewn {
 
-enum class DragModel { sphere, shape, area, stokes };
-template <>
-struct EnumNames<DragModel> {
-  static constexpr std::array names{
-      std::pair{DragModel::sphere, "sphere"}, std::pair{DragModel::shape, "shape"},
-      std::pair{DragModel::area, "area"}, std::pair{DragModel::stokes, "stokes"}};
-};
-inline const char* to_string(DragModel model) {
-  return name_of(model);
+/// The registered drag laws: adding one is its file under drag_laws/ and its type here (in the
+/// order that messages and docs/scenario.md list them).
+using DragLaws = std::variant<SphereDrag, ShapeDrag, AreaDrag, StokesDrag>;
+
+/// Which law, by its place in DragLaws (what a scenario's `model = "..."` chooses).
+using DragModel = std::size_t;
+inline constexpr std::size_t kDragModels = std::variant_size_v<DragLaws>;
+/// The model of a law's type.
+template <class Law>
+constexpr DragModel drag_model_of() {
+  return DragLaws(Law{}).index();
 }
+/// The most inputs any law reads.
+inline constexpr std::size_t kMaxDragInputs = [] {
+  std::size_t most = 0;
+  [&]<std::size_t... i>(std::index_sequence<i...>) {
+    ((most = std::max(most, std::variant_alternative_t<i, DragLaws>::inputs.size())), ...);
+  }
+  (std::make_index_sequence<kDragModels>{});
+  return most;
+}();
+
+/// What the rest of strewn knows of a law without its type: name, inputs, validity.
+struct DragModelFacts {
+  const char* name;
+  std::span<const DragInput> inputs;
+  bool takes_mach_table;
+  DragValidity validity;
+};
+[[nodiscard]] const DragModelFacts& drag_model_facts(DragModel model);
+/// The model of a name, nullopt for none.
+[[nodiscard]] std::optional<DragModel> drag_model_named(std::string_view name);
+/// Every law's name, in registration order (for messages).
+[[nodiscard]] const std::vector<std::string>& drag_model_names();
+[[nodiscard]] inline const char* drag_model_name(DragModel model) {
+  return drag_model_facts(model).name;
+}
+
+/// A law's inputs' values, in the order of its `inputs`.
+struct DragValues {
+  std::array<double, kMaxDragInputs> value{};
+  std::size_t size = 0;
+  [[nodiscard]] std::span<const double> view() const { return {value.data(), size}; }
+};
+/// Builds law `model` from its inputs' values (as many as it declares; allocates nothing).
+[[nodiscard]] DragLaws make_drag_law(DragModel model, std::span<const double> values);
+[[nodiscard]] DragValues drag_values(const DragLaws& law);
 
 /// A piecewise-linear multiplier of Cd against Mach number, held constant beyond its ends.
 class MachTable {
@@ -47,42 +92,13 @@ class MachTable {
   std::vector<double> mach_, factor_;
 };
 
-namespace drag {
-/// Morrison (2013), "Data correlation for drag coefficient for sphere", Cd of a smooth sphere.
-double morrison_cd(double reynolds);
-/// Cd Re for Morrison (2013), written to stay finite as Re -> 0 (tends to 24).
-double morrison_cd_re(double reynolds);
-/// Schiller and Naumann (1933), Cd = 24/Re (1 + 0.15 Re^0.687), Re < 800: the cross-check.
-double schiller_naumann_cd(double reynolds);
-
-/// Coefficients A, B, C, D of Haider and Levenspiel (1989), Powder Technol. 58:63-70, eq. (10).
-struct HaiderLevenspiel {
-  double a = 0.0, b = 0.0, c = 0.0, d = 0.0;
-  HaiderLevenspiel() = default;  // unset: only `shape` bodies compute the coefficients
-  explicit HaiderLevenspiel(double sphericity);
-  [[nodiscard]] double cd(double reynolds) const;
-  /// Cd Re = 24 (1 + A Re^B) + C Re^2 / (Re + D); finite as Re -> 0 (tends to 24).
-  [[nodiscard]] double cd_re(double reynolds) const;
-};
-
-inline constexpr double kMorrisonMaxReynolds = 1.0e6;
-inline constexpr double kHaiderLevenspielMaxReynolds = 2.6e5;
-inline constexpr double kHaiderLevenspielMinSphericity = 0.026;
-inline constexpr double kStokesMaxReynolds = 1.0;      // common practice
-inline constexpr double kAreaMinReynolds = 1.0e3;      // Newton regime, common practice
-inline constexpr double kIncompressibleMaxMach = 0.3;  // common practice
-}  // namespace drag
-
-/// The drag of one body: its model and numbers (already sampled or nominal).
+/// The drag of one body: its law with its numbers (already sampled or nominal).
 struct DragSpec {
-  DragModel model = DragModel::area;
-  double cd = 1.0;          ///< area: drag coefficient
-  double area = 1.0;        ///< area: reference area, m^2
-  double diameter = 0.0;    ///< sphere, shape (volume-equivalent), stokes: m
-  double sphericity = 1.0;  ///< shape
+  DragLaws law = AreaDrag{};
   /// Optional Cd multiplier against Mach (not owned: tables are shared by every flight of a body
   /// kind, so that building a flight allocates nothing). Null for none.
   const MachTable* mach_table = nullptr;
+  [[nodiscard]] DragModel model() const { return law.index(); }
 };
 
 /// The evaluated drag law of one body, ready for the force loop.
@@ -93,14 +109,19 @@ class DragLaw {
   /// k (kg/s) for air-relative speed |u| (m/s) in the given air, such that F = -k u.
   [[nodiscard]] double coefficient(double speed, const Air& air) const {
     // The constant-Cd law without a Mach table is the common case of studies: kept inline.
-    if (spec_.model == DragModel::area && spec_.mach_table == nullptr)
-      return half_cd_area_ * air.density * speed;
+    if (constant_cd_) return half_cd_area_ * air.density * speed;
     return general_coefficient(speed, air);
   }
 
   /// Whether the law reads the viscosity or the speed of sound (to skip them otherwise).
   [[nodiscard]] bool needs_viscosity() const { return needs_viscosity_; }
-  [[nodiscard]] bool needs_sound_speed() const { return spec_.mach_table != nullptr; }
+  [[nodiscard]] bool needs_sound_speed() const { return mach_table_ != nullptr; }
+  /// A constant Cd A without a Mach table: k = (Cd A / 2) rho |u|.
+  [[nodiscard]] bool constant_cd() const { return constant_cd_; }
+  /// Cd A / 2 (m^2) of a constant-Cd law, 0 otherwise.
+  [[nodiscard]] double half_cd_area() const { return half_cd_area_; }
+  /// k independent of the speed (Stokes drag).
+  [[nodiscard]] bool linear() const { return linear_; }
 
   /// Length used for the Reynolds number: the diameter, or for `area` the diameter of the circle
   /// of the reference area.
@@ -115,16 +136,11 @@ class DragLaw {
 
  private:
   [[nodiscard]] double general_coefficient(double speed, const Air& air) const;
-  [[nodiscard]] double mach_factor(double mach) const {
-    return spec_.mach_table ? spec_.mach_table->at(mach) : 1.0;
-  }
   DragSpec spec_;
+  const MachTable* mach_table_ = nullptr;  // only for laws that take one
   double area_ = 0.0, length_ = 0.0;
-  double half_cd_area_ = 0.0;    // area: Cd A / 2
-  double viscous_factor_ = 0.0;  // sphere, shape: A / (2 D), so k = factor mu (Cd Re)
-  double stokes_factor_ = 0.0;   // stokes: 3 pi D
-  drag::HaiderLevenspiel shape_;
-  bool needs_viscosity_ = false;
+  double half_cd_area_ = 0.0;
+  bool constant_cd_ = false, needs_viscosity_ = false, linear_ = false;
 };
 
 }  // namespace strewn

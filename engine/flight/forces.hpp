@@ -35,8 +35,8 @@ class Forces {
         needs_full_air_(drag_.needs_viscosity() || drag_.needs_sound_speed()),
         constant_gravity_(environment.constant_gravity),
         // Constant Cd without a Mach table: k / m = (Cd A / 2m) rho |u|, the common case.
-        constant_cd_(body.drag.model == DragModel::area && body.drag.mach_table == nullptr),
-        half_cd_area_per_mass_(0.5 * body.drag.cd * body.drag.area / body.mass) {}
+        constant_cd_(drag_.constant_cd()),
+        half_cd_area_per_mass_(drag_.half_cd_area() / body.mass) {}
 
   /// Sets the drag stage; `fill_start` and `fill_time` matter for `filling`, `canopy_drag_area`
   /// (Cd S, m^2) for `filling` and `canopy`.

@@ -9,21 +9,10 @@ namespace strewn {
 
 ModelLimits model_limits(const Body& body, const Environment& environment) {
   ModelLimits l;
-  l.drag_model = body.drag.model;
-  switch (body.drag.model) {
-    case DragModel::sphere:
-      l.reynolds_max = drag::kMorrisonMaxReynolds;
-      break;
-    case DragModel::shape:
-      l.reynolds_max = drag::kHaiderLevenspielMaxReynolds;
-      break;
-    case DragModel::stokes:
-      l.reynolds_max = drag::kStokesMaxReynolds;
-      break;
-    case DragModel::area:
-      l.reynolds_min = drag::kAreaMinReynolds;
-      break;
-  }
+  l.drag_model = body.drag.model();
+  const DragValidity& validity = drag_model_facts(l.drag_model).validity;
+  l.reynolds_min = validity.reynolds_min;
+  l.reynolds_max = validity.reynolds_max;
   if (body.drag.mach_table != nullptr && !body.drag.mach_table->empty()) {
     l.mach_table = true;
     l.mach_max = body.drag.mach_table->highest_mach();
@@ -87,20 +76,11 @@ std::string describe(ModelRangeFlag flag, double extreme, double limit, DragMode
   auto number = [](double v) { return printf_text("%.3g", v); };  // three significant figures
   switch (flag) {
     case kReynoldsAboveLaw:
-      switch (model) {
-        case DragModel::stokes:
-          return "the Reynolds number reached " + number(extreme) + ", above " + number(limit) +
-                 " where Stokes (linear) drag underestimates the drag; consider the sphere model";
-        case DragModel::shape:
-          return "the Reynolds number reached " + number(extreme) + ", above " + number(limit) +
-                 " where the Haider-Levenspiel (1989) correlation ends";
-        default:
-          return "the Reynolds number reached " + number(extreme) + ", above " + number(limit) +
-                 " where the Morrison (2013) sphere correlation ends";
-      }
+      return "the Reynolds number reached " + number(extreme) + ", above " + number(limit) +
+             drag_model_facts(model).validity.above;
     case kReynoldsBelowLaw:
       return "the Reynolds number fell to " + number(extreme) + ", below " + number(limit) +
-             ": a constant drag coefficient assumes the Newton regime";
+             drag_model_facts(model).validity.below;
     case kMachBeyondTable:
       return "the Mach number reached " + number(extreme) + ", beyond the Mach table's last Mach " +
              number(limit) + "; its last factor was held";

@@ -4,7 +4,7 @@
 //
 // What is watched, at the release and at the end of every accepted step:
 // - the Reynolds number of the body's own drag law (Re = rho |u| L / mu), against the law's range
-//   (drag.hpp: sphere Re <= 1e6, shape Re <= 2.6e5, stokes Re <= 1, area Re >= 1e3);
+//   (each law's `validity`: sphere Re <= 1e6, shape Re <= 2.6e5, stokes Re <= 1, area Re >= 1e3);
 // - the Mach number |u| / a, against the Mach table's last Mach number, or against 0.3 without a
 //   table (compressibility ignored above it; common practice);
 // - the highest altitude, against the medium's top (a sounding's last level, US76's 86 km) and
@@ -82,7 +82,7 @@ struct ModelLimits {
   bool mach_table = false;                                      ///< a Mach table is given
   double medium_top = std::numeric_limits<double>::infinity();  ///< m above mean sea level
   double wind_top = std::numeric_limits<double>::infinity();    ///< m; infinite for one layer
-  DragModel drag_model = DragModel::area;
+  DragModel drag_model = drag_model_of<AreaDrag>();             ///< the body's law
 };
 ModelLimits model_limits(const Body& body, const Environment& environment);
 

@@ -103,14 +103,14 @@ nlohmann::json release_json(const ReleaseSpec& r) {
 
 // A body's drag: the keys its drag model reads, and its Mach table when it has one.
 nlohmann::json drag_json(const BodySpec& b) {
-  nlohmann::json drag{{"model", to_string(b.drag_model)}};
-  if (b.drag_model == DragModel::area) {
-    drag["cd"] = uncertain_json(b.cd);
-    drag["area"] = uncertain_json(b.area);
-    if (!(b.volume.is_fixed() && b.volume.p1() == 0.0)) drag["volume"] = uncertain_json(b.volume);
-  } else {
-    drag["diameter"] = uncertain_json(b.diameter);
-    if (b.drag_model == DragModel::shape) drag["sphericity"] = uncertain_json(b.sphericity);
+  const DragModelFacts& law = drag_model_facts(b.drag_model);
+  nlohmann::json drag{{"model", law.name}};
+  for (std::size_t i = 0; i < law.inputs.size(); ++i) {
+    const DragInput& input = law.inputs[i];
+    const Uncertain& u = b.drag_inputs[i];
+    // An optional key left at its fallback was not written: it is not reported either.
+    if (input.required || !(u.is_fixed() && u.p1() == input.fallback))
+      drag[input.key] = uncertain_json(u);
   }
   if (b.mach_table) {
     nlohmann::json table = nlohmann::json::array();

@@ -45,14 +45,11 @@ nlohmann::json flown_inputs(const TraceRecord& t) {
   const std::string n = spec.name + ".";
   nlohmann::json j;
   j[n + "mass"] = b.mass;
-  if (b.drag.model == DragModel::area) {
-    j[n + "drag.cd"] = b.drag.cd;
-    j[n + "drag.area"] = b.drag.area;
-    if (b.volume > 0.0) j[n + "drag.volume"] = b.volume;
-  } else {
-    j[n + "drag.diameter"] = b.drag.diameter;
-    if (b.drag.model == DragModel::shape) j[n + "drag.sphericity"] = b.drag.sphericity;
-  }
+  const DragModelFacts& law = drag_model_facts(b.drag.model());
+  const DragValues drag = drag_values(b.drag.law);
+  for (std::size_t i = 0; i < law.inputs.size(); ++i)
+    if (law.inputs[i].required || drag.value[i] != law.inputs[i].fallback)
+      j[n + "drag." + law.inputs[i].key] = drag.value[i];
   if (b.has_canopy) {
     const Canopy& c = b.canopy;
     if (c.trigger == Canopy::Trigger::time)
@@ -135,7 +132,7 @@ nlohmann::json trace_json(const TraceRecord& t) {
   j["regime"] = {{"reynolds", range_json(t.recorder.reynolds())},
                  {"mach", range_json(t.recorder.mach())},
                  {"quadratic_to_linear", range_json(t.recorder.quadratic_to_linear())},
-                 {"drag_model", to_string(t.inputs.body.drag.model)},
+                 {"drag_model", drag_model_name(t.inputs.body.drag.model())},
                  {"quasi_steady", r.quasi_steady},
                  {"warnings", t.warnings}};
   j["integration"] = {
@@ -194,7 +191,7 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
   if (!std::isnan(r.deploy_time))
     out << "canopy    deployed at " << fixed(r.deploy_time, 2) << " s\n";
   const auto& rec = t.recorder;
-  out << "regime    drag model " << to_string(t.inputs.body.drag.model);
+  out << "regime    drag model " << drag_model_name(t.inputs.body.drag.model());
   if (!rec.reynolds().empty())
     out << "   Reynolds " << general(rec.reynolds().min) << " .. " << general(rec.reynolds().max)
         << "   Mach " << fixed(rec.mach().min, 3) << " .. " << fixed(rec.mach().max, 3)

@@ -28,8 +28,6 @@ constexpr double kInf = std::numeric_limits<double>::infinity();
 constexpr Bounds kLatitude{-90.0, 90.0, false, false, "a latitude in [-90, 90] degrees"};
 constexpr Bounds kLongitude{-180.0, 180.0, false, false, "a longitude in [-180, 180] degrees"};
 constexpr Bounds kOpenUnit{0.0, 1.0, true, true, "a probability strictly between 0 and 1"};
-constexpr Bounds kSphericity{0.026, 1.0, false, false,
-                             "a sphericity in [0.026, 1] (the Haider-Levenspiel data range)"};
 constexpr Bounds kTemperatureOffset{-100.0, 100.0, false, false, "an offset in [-100, 100] K"};
 constexpr Bounds kCorrelation{-1.0, 1.0, false, false, "a correlation in [-1, 1]"};
 constexpr Bounds kAltitude{-5000.0, 86000.0, false, false,
@@ -378,44 +376,8 @@ class Loader {
     Table drag = t.table("drag");
     if (!drag.present())
       diagnostics_.add(t.key_path("drag"), t.line(), "is required ([body.drag] with a model)");
-    const auto model =
-        drag.present() ? drag.text("model", enum_names<DragModel>(), true) : std::nullopt;
-    b.drag_model = enum_from_name<DragModel>(model.value_or("")).value_or(DragModel::area);
-    const std::string dp = prefix + "drag.";
-    if (model == "area") {
-      if (auto cd = drag.uncertain("cd", kPositive, true)) b.cd = sampled(dp + "cd", *cd);
-      if (auto area = drag.uncertain("area", kPositive, true)) b.area = sampled(dp + "area", *area);
-    } else if (model) {
-      if (auto d = drag.uncertain("diameter", kPositive, true))
-        b.diameter = sampled(dp + "diameter", *d);
-      if (model == "shape")
-        if (auto phi = drag.uncertain("sphericity", kSphericity, true))
-          b.sphericity = sampled(dp + "sphericity", *phi);
-    }
-    if (model == "area")
-      b.volume = sampled(dp + "volume", drag.uncertain("volume", 0.0, kPositive));
-    if (const toml::array* table = drag.array("mach_table")) {
-      if (model == "stokes")
-        diagnostics_.add(drag.key_path("mach_table"), drag.line_of("mach_table"),
-                         "a Mach table does not apply to linear (stokes) drag");
-      read_mach_table(*table, drag.key_path("mach_table"), b);
-    }
-    if (model) {
-      static const std::map<std::string, std::vector<std::string>> uses{
-          {"area", {"cd", "area", "volume"}},
-          {"sphere", {"diameter"}},
-          {"stokes", {"diameter"}},
-          {"shape", {"diameter", "sphericity"}}};
-      for (const char* key : {"cd", "area", "volume", "diameter", "sphericity"}) {
-        const auto& used = uses.at(*model);
-        if (drag.has(key) && std::find(used.begin(), used.end(), key) == used.end()) {
-          drag.mark(key);
-          diagnostics_.add(
-              drag.key_path(key), drag.line_of(key),
-              "is not used by drag model \"" + *model + "\" (it takes " + join(used) + ")");
-        }
-      }
-    }
+    else
+      read_drag(drag, prefix + "drag.", b);
     drag.finish();
 
     Table chute = t.table("parachute");
@@ -423,6 +385,47 @@ class Loader {
     chute.finish();
     t.finish();
     scenario_.bodies.push_back(std::move(b));
+  }
+
+  // [body.drag]: the model, then the keys that its law declares (each an uncertain input,
+  // checked against the law's bounds), a Mach table where the law takes one, and a message for
+  // every key that belongs to another law.
+  void read_drag(Table& drag, const std::string& prefix, BodySpec& b) {
+    const auto model_name = drag.text("model", drag_model_names(), true);
+    if (!model_name) return;
+    b.drag_model = drag_model_named(*model_name).value_or(0);
+    const DragModelFacts& law = drag_model_facts(b.drag_model);
+    std::vector<std::string> used;
+    for (std::size_t i = 0; i < law.inputs.size(); ++i) {
+      const DragInput& input = law.inputs[i];
+      used.emplace_back(input.key);
+      if (input.required) {
+        if (auto u = drag.uncertain(input.key, input.bounds, true))
+          b.drag_inputs[i] = sampled(prefix + input.key, *u);
+      } else {
+        b.drag_inputs[i] =
+            sampled(prefix + input.key, drag.uncertain(input.key, input.fallback, input.bounds));
+      }
+    }
+    if (const toml::array* table = drag.array("mach_table")) {
+      if (!law.takes_mach_table)
+        diagnostics_.add(drag.key_path("mach_table"), drag.line_of("mach_table"),
+                         "a Mach table does not apply to drag model \"" + *model_name + "\"");
+      read_mach_table(*table, drag.key_path("mach_table"), b);
+    }
+    std::vector<std::string> reported;
+    for (DragModel other = 0; other < kDragModels; ++other)
+      for (const DragInput& input : drag_model_facts(other).inputs) {
+        const std::string key = input.key;
+        if (!drag.has(key) || std::find(used.begin(), used.end(), key) != used.end() ||
+            std::find(reported.begin(), reported.end(), key) != reported.end())
+          continue;
+        drag.mark(key);
+        reported.push_back(key);
+        diagnostics_.add(
+            drag.key_path(key), drag.line_of(key),
+            "is not used by drag model \"" + *model_name + "\" (it takes " + join(used) + ")");
+      }
   }
 
   static std::string join(const std::vector<std::string>& words) {

@@ -6,14 +6,6 @@
 
 namespace strewn::toml_input {
 
-std::string Bounds::describe() const {
-  if (words) return words;
-  std::string out = "a number";
-  if (std::isfinite(low)) out += (low_open ? " above " : " from ") + format_number(low);
-  if (std::isfinite(high)) out += (high_open ? " below " : " to ") + format_number(high);
-  return out;
-}
-
 long line_of(const toml::node* node) {
   if (!node) return 0;
   return static_cast<long>(node->source().begin.line);

@@ -11,30 +11,19 @@
 #include <string_view>
 #include <vector>
 
+#include "core/bounds.hpp"
 #include "core/errors.hpp"
 #include "core/uncertain.hpp"
 
 namespace strewn::toml_input {
 
-/// Where a value must lie. Bounds are closed unless marked open.
-struct Bounds {
-  double low = -std::numeric_limits<double>::infinity();
-  double high = std::numeric_limits<double>::infinity();
-  bool low_open = false, high_open = false;
-  const char* words = nullptr;  // e.g. "positive"; built from the bounds when null
-
-  [[nodiscard]] bool contains(double v) const {
-    return (low_open ? v > low : v >= low) && (high_open ? v < high : v <= high);
-  }
-  [[nodiscard]] std::string describe() const;
-};
-inline constexpr Bounds kAny{};
-inline constexpr Bounds kPositive{0.0, std::numeric_limits<double>::infinity(), true, false,
-                                  "positive"};
-inline constexpr Bounds kNonNegative{0.0, std::numeric_limits<double>::infinity(), false, false,
-                                     "zero or more"};
-inline constexpr Bounds kProbability{0.0, 1.0, false, false, "a probability in [0, 1]"};
-inline constexpr Bounds kDegrees{0.0, 360.0, false, false, "an angle in [0, 360] degrees"};
+// Bounds and the usual ones (kPositive, ...) are strewn's own (core/bounds.hpp).
+using strewn::Bounds;
+using strewn::kAny;
+using strewn::kDegrees;
+using strewn::kNonNegative;
+using strewn::kPositive;
+using strewn::kProbability;
 
 /// Largest probability a distribution may put outside a physical range; the rest is cut off
 /// (an implicit truncation at the physical bound, see docs/scenario.md).

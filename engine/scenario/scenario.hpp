@@ -87,13 +87,10 @@ struct ParachuteSpec {
 struct BodySpec {
   std::string name;
   long count = 1;
-  Uncertain mass = 1.0;  ///< kg
-  DragModel drag_model = DragModel::area;
-  Uncertain cd = 1.0;                           ///< "area"
-  Uncertain area = 1.0;                         ///< "area", m^2
-  Uncertain diameter = 0.0;                     ///< "sphere", "shape", "stokes", m
-  Uncertain sphericity = 1.0;                   ///< "shape"
-  Uncertain volume = 0.0;                       ///< m^3 for "area" bodies (0: unknown, no buoyancy)
+  Uncertain mass = 1.0;                              ///< kg
+  DragModel drag_model = drag_model_of<AreaDrag>();  ///< the law of [body.drag]
+  /// The law's inputs, in the order of its `inputs` (the rest unused).
+  std::array<Uncertain, kMaxDragInputs> drag_inputs{};
   std::shared_ptr<const MachTable> mach_table;  ///< null: none (shared, immutable)
   std::optional<ParachuteSpec> parachute;
 };

@@ -1,6 +1,7 @@
 #include "scenario/world.hpp"
 
 #include <algorithm>
+#include <variant>
 
 #include "core/constants.hpp"
 #include "medium/us1976.hpp"
@@ -40,18 +41,14 @@ FlightInputs build_flight(const Scenario& s, std::size_t body_index, const Input
   FlightInputs in;
   Body& body = in.body;
   body.mass = value(spec.mass);
-  body.drag.model = spec.drag_model;
-  body.drag.cd = value(spec.cd);
-  body.drag.area = value(spec.area);
-  body.drag.diameter = value(spec.diameter);
-  body.drag.sphericity = value(spec.sphericity);
+  // The law's inputs into a fixed array: building a sampled flight allocates nothing.
+  DragValues drag;
+  drag.size = drag_model_facts(spec.drag_model).inputs.size();
+  for (std::size_t i = 0; i < drag.size; ++i) drag.value[i] = value(spec.drag_inputs[i]);
+  body.drag.law = make_drag_law(spec.drag_model, drag.view());
   body.drag.mach_table = spec.mach_table.get();
-  if (spec.drag_model == DragModel::area) {
-    body.volume = value(spec.volume);
-  } else {
-    const double d = body.drag.diameter;
-    body.volume = constants::pi * d * d * d / 6.0;  // volume-equivalent sphere
-  }
+  // A law's volume: its optional input (0: unknown, no buoyancy) or its volume-equivalent sphere.
+  body.volume = std::visit([](const auto& law) { return law.volume(); }, body.drag.law);
   if (spec.parachute) {
     const auto& p = *spec.parachute;
     body.has_canopy = true;

@@ -22,9 +22,7 @@ struct BundleDrop {
   Vec3 reference;
   BundleDrop() {
     body.mass = 95.0;
-    body.drag.model = DragModel::area;
-    body.drag.cd = 1.05;
-    body.drag.area = 0.55;
+    body.drag.law = AreaDrag(1.05, 0.55);
     environment = Environment{&medium, {}, &wind, 540.0};
     release.position = Vec3(0.0, 0.0, 540.0 + 2700.0);
     release.velocity = Vec3(62.0, 0.0, 0.0);

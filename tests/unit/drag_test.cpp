@@ -64,32 +64,21 @@ TEST(DragShape, LessSphericalMeansMoreDrag) {
 
 TEST(DragLaw, ForceIsFiniteAtRestAndStokesAtLowReynolds) {
   const Air air{1.2, 1.8e-5, 340.0};
-  DragSpec sphere;
-  sphere.model = DragModel::sphere;
-  sphere.diameter = 1e-5;
-  const DragLaw law(sphere);
-  const double stokes = 3.0 * constants::pi * air.viscosity * sphere.diameter;  // Stokes (1851)
+  const double diameter = 1e-5;
+  const DragLaw law(DragSpec{SphereDrag(diameter)});
+  const double stokes = 3.0 * constants::pi * air.viscosity * diameter;  // Stokes (1851)
   EXPECT_NEAR(law.coefficient(0.0, air) / stokes, 1.0, 1e-9);
   EXPECT_NEAR(law.coefficient(1e-3, air) / stokes, 1.0, 1e-3);
-  DragSpec linear = sphere;
-  linear.model = DragModel::stokes;
-  EXPECT_DOUBLE_EQ(DragLaw(linear).coefficient(50.0, air), stokes);
-  DragSpec area;
-  area.model = DragModel::area;
-  area.cd = 1.1;
-  area.area = 0.5;
-  EXPECT_DOUBLE_EQ(DragLaw(area).coefficient(10.0, air), 0.5 * 1.2 * 1.1 * 0.5 * 10.0);
+  EXPECT_DOUBLE_EQ(DragLaw(DragSpec{StokesDrag(diameter)}).coefficient(50.0, air), stokes);
+  EXPECT_DOUBLE_EQ(DragLaw(DragSpec{AreaDrag(1.1, 0.5)}).coefficient(10.0, air),
+                   0.5 * 1.2 * 1.1 * 0.5 * 10.0);
 }
 
 TEST(DragLaw, MachTableMultipliesTheCoefficient) {
   const MachTable table({0.0, 0.9, 1.2, 3.0}, {1.0, 1.1, 1.6, 1.3});
   EXPECT_DOUBLE_EQ(table.at(0.45), 1.05);
   EXPECT_DOUBLE_EQ(table.at(5.0), 1.3);
-  DragSpec area;
-  area.model = DragModel::area;
-  area.cd = 1.0;
-  area.area = 1.0;
-  area.mach_table = &table;
+  const DragSpec area{AreaDrag(1.0, 1.0), &table};
   const Air air{1.0, 1.8e-5, 300.0};
   EXPECT_DOUBLE_EQ(DragLaw(area).coefficient(360.0, air), 0.5 * 360.0 * 1.6);
   EXPECT_THROW(MachTable({0.0, 0.0}, {1.0, 1.0}), std::invalid_argument);

@@ -33,7 +33,7 @@ TEST(FlightAnalytic, LinearDragTrajectoryByLambertW) {
   // release transient and the settling both shape the 2 s fall.
   const double mu = 0.01;
   Tank tank{Medium::uniform(1260.0, mu), WindProfile({{0.0, 0.02, 270.0}}, 0.0)};
-  const Body bead = test::round_body(DragModel::stokes, 2e-3, 2500.0);
+  const Body bead = test::round_body(StokesDrag(2e-3), 2500.0);
   const double tau = bead.mass / (3.0 * constants::pi * mu * 2e-3);
   const double g_eff = g * (1.0 - 1260.0 / 2500.0);
   const double vt = g_eff * tau;
@@ -55,7 +55,7 @@ TEST(FlightAnalytic, LinearDragTrajectoryByLambertW) {
 // equations from rest and given by the force balance.
 TEST(FlightAnalytic, StokesSettlingVelocity) {
   Tank tank{Medium::uniform(1260.0, 1.41), WindProfile()};
-  const Body bead = test::round_body(DragModel::sphere, 1e-3, 7800.0);  // steel, Re ~ 2e-3
+  const Body bead = test::round_body(SphereDrag(1e-3), 7800.0);  // steel, Re ~ 2e-3
   const double expected = (7800.0 - 1260.0) * g * 1e-6 / (18.0 * 1.41);
   FlightOptions options;
   options.tolerance = 1e-7;
@@ -136,7 +136,7 @@ TEST(FlightAnalytic, WaterDropTerminalVelocityGunnKinzer) {
     const double diameter = std::stod(row.at("diameter_mm")) * 1e-3;
     if (diameter > 1.0e-3 + 1e-12) continue;
     const double measured = std::stod(row.at("terminal_velocity_m_s"));
-    const Body drop = test::round_body(DragModel::sphere, diameter, 998.2);
+    const Body drop = test::round_body(SphereDrag(diameter), 998.2);
     // Dropped from rest from 30 m: long enough to reach the terminal velocity.
     const auto result = fly(drop, tank.environment(), test::release_at(0, 0, 30.0, 0, 0, 0));
     ASSERT_EQ(result.status, FlightStatus::landed);

@@ -63,7 +63,7 @@ TEST(FlightReference, QuasiSteadyFormMatchesFullEquations) {
   const Medium air = Medium::us1976();
   const WindProfile wind({{0.0, 0.3, 200.0}, {8.0, 1.0, 250.0}}, 0.0);
   const Environment environment{&air, {}, &wind, 0.0};
-  const Body drop = test::round_body(DragModel::sphere, 40e-6, 998.2);
+  const Body drop = test::round_body(SphereDrag(40e-6), 998.2);
   const ReleaseState release = test::release_at(0, 0, 15.0, 1.0, 0, 0);
   FlightOptions quasi;
   FlightOptions full;

@@ -40,7 +40,7 @@ TEST(ModelRange, StokesDropletReleasedFastIsFlaggedWithItsReynoldsNumber) {
   // A 100 um droplet leaving a carrier at 60 m/s at 5000 m: Re = rho u D / mu, about 271, far
   // above the linear law's Re ~ 1 (common practice); the release is the flight's fastest point.
   const Calm calm;
-  const Body droplet = test::round_body(DragModel::stokes, 100e-6, 1000.0);
+  const Body droplet = test::round_body(StokesDrag(100e-6), 1000.0);
   const auto result = fly(droplet, calm.environment, test::release_at(0, 0, 5000, 60, 0, 0));
   ASSERT_EQ(result.status, FlightStatus::landed);
   EXPECT_TRUE(result.regime.flags & kReynoldsAboveLaw);
@@ -61,7 +61,7 @@ TEST(ModelRange, ABodyAtRestInAWindIsJudged) {
   const Medium medium = Medium::us1976();
   const WindProfile wind({{0.0, 5.0, 270.0}}, 0.0);
   const Environment environment{&medium, {}, &wind, 0.0};
-  const Body droplet = test::round_body(DragModel::stokes, 100e-6, 1000.0);
+  const Body droplet = test::round_body(StokesDrag(100e-6), 1000.0);
   const auto result = fly(droplet, environment, test::release_at(0, 0, 5000, 0, 0, 0));
   ASSERT_TRUE(result.regime.flags & kReynoldsAboveLaw);
   const PrintedAir air = printed_air_at_5000();
@@ -74,7 +74,7 @@ TEST(ModelRange, MachBeyondTheTableAndWithoutOne) {
   const PrintedAir air = printed_air_at_5000();
   // A steel sphere at 450 m/s with a table that ends at Mach 0.8.
   const MachTable table({0.0, 0.8}, {1.0, 1.2});
-  Body sphere = test::round_body(DragModel::sphere, 0.1, 7800.0);
+  Body sphere = test::round_body(SphereDrag(0.1), 7800.0);
   sphere.drag.mach_table = &table;
   const auto fast = fly(sphere, calm.environment, test::release_at(0, 0, 5000, 450, 0, 0));
   EXPECT_TRUE(fast.regime.flags & kMachBeyondTable);
@@ -115,7 +115,7 @@ TEST(ModelRange, AboveTheSoundingAndTheWindProfile) {
       {{0.0, 288.15, 101325.0}, {1000.0, 281.65, 89876.0}, {1500.0, 278.4, 84559.7}});
   const WindProfile wind({{0.0, 2.0, 270.0}, {1450.0, 6.0, 280.0}}, 0.0);
   const Environment environment{&sounding, {}, &wind, 0.0};
-  const Body ball = test::round_body(DragModel::sphere, 0.05, 7800.0);
+  const Body ball = test::round_body(SphereDrag(0.05), 7800.0);
   const auto up = fly(ball, environment, test::release_at(0, 0, 1400, 0, 0, 60));
   ASSERT_EQ(up.status, FlightStatus::landed);
   EXPECT_TRUE(up.regime.flags & kAboveMedium);
@@ -233,7 +233,7 @@ TEST(ModelRange, FrameOffsetsBoundTheShiftsOfARoundRotatingEarth) {
   canopy.has_canopy = true;
   canopy.canopy.deploy_after = 2.0;
   canopy.canopy.drag_area = 60.0;
-  const Body debris = test::round_body(DragModel::sphere, 0.15, 2700.0);
+  const Body debris = test::round_body(SphereDrag(0.15), 2700.0);
   const std::vector<FrameCase> cases{
       // A bundle under canopy drifting 6 km in a strong wind: the ground curving away dominates.
       {"drifting canopy", canopy, test::release_at(0, 0, 3000, 0, 0, 0),

@@ -44,21 +44,20 @@ inline RandomFlight draw_flight(std::mt19937_64& rng) {
   // milliseconds: they fall from at most 20 m (and exercise the quasi-steady form).
   const double height = tank ? u(0.2, 5.0) : model == 2 ? u(1.0, 20.0) : u(5.0, 10000.0);
   if (model == 0 || model == 3) {
-    f.body =
-        test::round_body(model == 0 ? DragModel::sphere : DragModel::area,
-                         tank ? u(1e-3, 0.02) : u(1e-3, 0.5), u(tank ? 2000.0 : 300.0, 8000.0));
+    const double diameter = tank ? u(1e-3, 0.02) : u(1e-3, 0.5);
+    f.body = test::round_body(SphereDrag(diameter), u(tank ? 2000.0 : 300.0, 8000.0));
     if (model == 3) {
-      f.body.drag.cd = u(0.3, 1.5);
-      f.body.drag.area = u(0.001, 2.0);
+      const double cd = u(0.3, 1.5);
+      f.body.drag.law = AreaDrag(cd, u(0.001, 2.0));
       f.body.volume = 0.0;
     }
   } else if (model == 1) {
-    f.body =
-        test::round_body(DragModel::shape, tank ? u(1e-3, 0.02) : u(1e-3, 0.3), u(1500.0, 8000.0));
-    f.body.drag.sphericity = u(0.3, 1.0);
+    const double diameter = tank ? u(1e-3, 0.02) : u(1e-3, 0.3);
+    f.body = test::round_body(ShapeDrag(diameter, 1.0), u(1500.0, 8000.0));
+    f.body.drag.law = ShapeDrag(diameter, u(0.3, 1.0));
   } else {
-    f.body = test::round_body(DragModel::stokes, tank ? u(5e-4, 2e-3) : u(20e-6, 60e-6),
-                              u(1500.0, 3000.0));
+    const double diameter = tank ? u(5e-4, 2e-3) : u(20e-6, 60e-6);
+    f.body = test::round_body(StokesDrag(diameter), u(1500.0, 3000.0));
   }
   if (!tank && model != 2 && pick(3) == 0) {
     f.mach = std::make_unique<MachTable>(std::vector<double>{0.0, 0.8, 1.1, 3.0},
@@ -79,7 +78,7 @@ inline RandomFlight draw_flight(std::mt19937_64& rng) {
   const Eigen::Vector2d ahead = bearing_unit(u(0.0, 360.0));
   f.release = test::release_at(u(-500, 500), u(-500, 500), ground + height, speed * ahead.x(),
                                speed * ahead.y(), tank ? 0.0 : u(-10.0, 10.0));
-  f.description = std::string(to_string(f.body.drag.model)) + " mass " +
+  f.description = std::string(drag_model_name(f.body.drag.model())) + " mass " +
                   std::to_string(f.body.mass) + " height " + std::to_string(height) + " speed " +
                   std::to_string(speed) + (f.body.has_canopy ? " canopy" : "") +
                   (f.mach ? " mach" : "") + (tank ? " tank" : "") + " layers " +

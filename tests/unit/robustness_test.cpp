@@ -152,7 +152,7 @@ TEST(FlightEnds, AloftAtTheTimeCapEndsWithTimeLimit) {
   const Medium air = Medium::us1976();
   const WindProfile calm;
   const Environment environment{&air, {}, &calm, 0.0};
-  const Body drop40 = test::round_body(DragModel::sphere, 40e-6, 998.2);
+  const Body drop40 = test::round_body(SphereDrag(40e-6), 998.2);
   const ReleaseState release = test::release_at(0, 0, 15.0, 1.0, 0, 0);
   const FlightResult whole = fly(drop40, environment, release);
   ASSERT_EQ(whole.status, FlightStatus::landed);

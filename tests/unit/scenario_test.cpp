@@ -82,8 +82,8 @@ TEST(Scenario, GoodFileResolvesEveryInput) {
   // The median of a normal truncated 3.75 sd below the mean is above the mean by a hair.
   EXPECT_NEAR(nominal.body.mass, 95.0, 1e-3);
   EXPECT_GT(nominal.body.mass, 95.0);
-  EXPECT_DOUBLE_EQ(nominal.body.drag.cd, 1.05);            // uniform median
-  EXPECT_NEAR(nominal.release.velocity.x(), 62.0, 1e-12);  // track 90: due east
+  EXPECT_DOUBLE_EQ(std::get<AreaDrag>(nominal.body.drag.law).cd, 1.05);  // uniform median
+  EXPECT_NEAR(nominal.release.velocity.x(), 62.0, 1e-12);                // track 90: due east
   EXPECT_NEAR(nominal.release.velocity.y(), 0.0, 1e-12);
 }
 
@@ -293,8 +293,8 @@ drag_area = 2.0
 
   const FlightInputs crate = build_flight(s, 0, sample, CanopyState::full);
   EXPECT_EQ(crate.body.mass, value_of("crate.mass"));
-  EXPECT_EQ(crate.body.drag.cd, value_of("crate.drag.cd"));
-  EXPECT_EQ(crate.body.drag.area, value_of("crate.drag.area"));
+  EXPECT_EQ(std::get<AreaDrag>(crate.body.drag.law).cd, value_of("crate.drag.cd"));
+  EXPECT_EQ(std::get<AreaDrag>(crate.body.drag.law).area, value_of("crate.drag.area"));
   EXPECT_EQ(crate.body.volume, value_of("crate.drag.volume"));
   EXPECT_EQ(crate.body.canopy.deploy_after, value_of("crate.parachute.deploy_after"));
   EXPECT_EQ(crate.body.canopy.fill_time, value_of("crate.parachute.fill_time"));
@@ -313,14 +313,15 @@ drag_area = 2.0
 
   const FlightInputs ball = build_flight(s, 1, sample);
   EXPECT_EQ(ball.body.mass, value_of("ball.mass"));
-  EXPECT_EQ(ball.body.drag.diameter, value_of("ball.drag.diameter"));
-  EXPECT_EQ(ball.body.drag.sphericity, value_of("ball.drag.sphericity"));
+  EXPECT_EQ(std::get<ShapeDrag>(ball.body.drag.law).diameter, value_of("ball.drag.diameter"));
+  EXPECT_EQ(std::get<ShapeDrag>(ball.body.drag.law).sphericity, value_of("ball.drag.sphericity"));
   EXPECT_EQ(ball.body.canopy.deploy_height, value_of("ball.parachute.deploy_height"));
 
   // The nominal flight: every input at its median, through the same builder.
   const FlightInputs nominal = nominal_flight(s, 0);
   EXPECT_EQ(nominal.body.mass, s.bodies[0].mass.nominal());
-  EXPECT_DOUBLE_EQ(nominal.body.drag.cd, 1.0);  // the median of uniform(0.9, 1.1)
+  EXPECT_DOUBLE_EQ(std::get<AreaDrag>(nominal.body.drag.law).cd,
+                   1.0);  // the median of uniform(0.9, 1.1)
   EXPECT_EQ(nominal.body.canopy.drag_area, s.bodies[0].parachute->drag_area.nominal());
 }
 
@@ -340,7 +341,6 @@ void expect_names_round_trip() {
 }
 
 TEST(Scenario, EnumNamesRoundTrip) {
-  expect_names_round_trip<DragModel>();
   expect_names_round_trip<WindUncertaintyModel>();
   expect_names_round_trip<SamplingPlan>();
   expect_names_round_trip<Medium::Kind>();
@@ -349,8 +349,10 @@ TEST(Scenario, EnumNamesRoundTrip) {
   expect_names_round_trip<CanopyState>();
   expect_names_round_trip<ModelRangeFlag>();
   // The words the scenario reference (docs/scenario.md) gives for the drag models, in its order.
-  EXPECT_EQ(enum_names<DragModel>(),
-            (std::vector<std::string>{"sphere", "shape", "area", "stokes"}));
+  EXPECT_EQ(drag_model_names(), (std::vector<std::string>{"sphere", "shape", "area", "stokes"}));
+  for (DragModel model = 0; model < kDragModels; ++model)
+    EXPECT_EQ(drag_model_named(drag_model_name(model)), model);
+  EXPECT_FALSE(drag_model_named("spere").has_value());
 }
 
 }  // namespace

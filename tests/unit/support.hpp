@@ -45,18 +45,16 @@ inline std::vector<std::map<std::string, std::string>> read_reference(const std:
 inline Body area_body(double mass, double cd, double area) {
   Body b;
   b.mass = mass;
-  b.drag.model = DragModel::area;
-  b.drag.cd = cd;
-  b.drag.area = area;
+  b.drag.law = AreaDrag(cd, area);
   return b;
 }
 
-/// A sphere (or stokes) body of given diameter and material density, buoyancy included.
-inline Body round_body(DragModel model, double diameter, double material_density) {
+/// A body of a diameter law (sphere, shape, stokes) and material density, buoyancy included.
+template <class Law>
+inline Body round_body(const Law& law, double material_density) {
   Body b;
-  b.drag.model = model;
-  b.drag.diameter = diameter;
-  b.volume = constants::pi * diameter * diameter * diameter / 6.0;
+  b.drag.law = law;
+  b.volume = law.volume();
   b.mass = material_density * b.volume;
   return b;
 }
