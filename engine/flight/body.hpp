@@ -9,6 +9,7 @@
 #include "core/enum_names.hpp"
 #include "core/geometry.hpp"
 #include "flight/drag.hpp"
+#include "flight/ground.hpp"
 #include "medium/medium.hpp"
 #include "medium/wind.hpp"
 
@@ -62,13 +63,14 @@ struct ReleaseState {
   Vec3 velocity = Vec3::Zero();
 };
 
-/// The medium, its per-flight conditions, the wind and the ground elevation (m above sea level).
-/// Medium and wind are shared and must outlive the flight.
+/// The medium, its per-flight conditions, the wind and the ground (ground.hpp; a number is a
+/// level ground at that elevation, m above sea level). Medium and wind are shared and must
+/// outlive the flight.
 struct Environment {
   const Medium* medium = nullptr;
   MediumConditions conditions;
   const WindProfile* wind = nullptr;
-  double ground = 0.0;
+  Grounds ground = LevelGround{};
   /// Gravity held at g0 everywhere instead of the inverse-square law. Closed-form solutions assume
   /// it (the analytic tests use it); studies keep the default.
   bool constant_gravity = false;

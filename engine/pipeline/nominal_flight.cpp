@@ -24,7 +24,7 @@ TraceRecord trace_body(const Scenario& scenario, const World& world, const std::
   t.body_index = index;
   t.inputs = nominal_flight(scenario, index);
   t.tolerance = scenario.study.tolerance;
-  Environment environment{&world.medium, t.inputs.conditions, &world.wind, scenario.site.ground};
+  Environment environment{&world.medium, t.inputs.conditions, &world.wind, world.ground};
   FlightOptions options;
   options.tolerance = scenario.study.tolerance;
   // A first flight gives the time of flight, so the recorded points can be spread evenly

@@ -155,7 +155,7 @@ std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
   std::vector<RangeWarning> out;
   for (std::size_t b = 0; b < bodies; ++b) {
     const FlightInputs nominal = nominal_flight(s, b);
-    const Environment environment{&world.medium, nominal.conditions, &world.wind, s.site.ground};
+    const Environment environment{&world.medium, nominal.conditions, &world.wind, world.ground};
     ModelLimits limits = model_limits(nominal.body, environment);
     if (!s.wind.member_layers.empty()) limits.wind_top = wind_top;
     auto counted = [&](std::uint64_t count) {

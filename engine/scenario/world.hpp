@@ -13,9 +13,10 @@ namespace strewn {
 struct World {
   Medium medium;
   WindProfile wind;
+  Grounds ground;
 };
 
-/// Tabulates the medium and builds the wind profile once for the scenario.
+/// Tabulates the medium and builds the wind profile and the ground once for the scenario.
 World build_world(const Scenario& scenario);
 
 /// One flight's inputs: the body's numbers, the medium conditions and the release.

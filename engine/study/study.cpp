@@ -77,7 +77,6 @@ inline void store_row(StudyColumns& c, std::size_t row, std::size_t b, const Fli
 std::uint64_t fly_block(const SampleModel& model, const StudyOptions& options,
                         const FlightOptions& flight, StudyColumns& c, std::uint64_t first,
                         std::uint64_t last) {
-  const Scenario& s = model.scenario();
   const std::size_t bodies = model.bodies();
   SampleModel::Workspace w(model);  // once per block: nothing is allocated per sample
   std::vector<double> chosen(model.choice_names().size());
@@ -87,7 +86,7 @@ std::uint64_t fly_block(const SampleModel& model, const StudyOptions& options,
     model.prepare(i, w);
     for (std::size_t b = 0; b < bodies; ++b) {
       const FlightInputs in = model.flight(i, b, w, chosen);
-      const Environment env{&model.world().medium, in.conditions, &w.wind(), s.site.ground};
+      const Environment env{&model.world().medium, in.conditions, &w.wind(), model.world().ground};
       const FlightResult r = fly(in.body, env, in.release, flight);
       store_row(c, local * bodies + b, b, in, r, w.values(), chosen);
     }
@@ -214,7 +213,8 @@ ReplayedRow replay_row(const SampleModel& model, std::uint64_t sample, std::size
   row.inputs = model.flight(sample, body, w, chosen);
   row.values.insert(row.values.end(), chosen.begin(), chosen.end());
   const Scenario& s = model.scenario();
-  const Environment env{&model.world().medium, row.inputs.conditions, &w.wind(), s.site.ground};
+  const Environment env{&model.world().medium, row.inputs.conditions, &w.wind(),
+                        model.world().ground};
   FlightOptions options = flight_options(s);
   options.record_interval = record_interval;
   row.result = fly(row.inputs.body, env, row.inputs.release, options, observer);

@@ -60,7 +60,7 @@ void BM_BareFlightLoop(benchmark::State& state) {
   double sum = 0.0;
   for (auto _ : state) {
     for (const auto& in : s.flights) {
-      const Environment env{&s.world.medium, in.conditions, &s.world.wind, s.scenario.site.ground};
+      const Environment env{&s.world.medium, in.conditions, &s.world.wind, s.world.ground};
       sum += fly(in.body, env, in.release).position.x();
     }
     benchmark::DoNotOptimize(sum);

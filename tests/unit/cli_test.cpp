@@ -55,7 +55,7 @@ TEST(Cli, TraceJsonLandsOnTheIndependentReference) {
       const World world = build_world(scenario);
       const FlightInputs in =
           nominal_flight(scenario, static_cast<std::size_t>(scenario.body_index(body.name)));
-      const Environment env{&world.medium, in.conditions, &world.wind, scenario.site.ground};
+      const Environment env{&world.medium, in.conditions, &world.wind, world.ground};
       const auto reference = test::reference_fly(in.body, env, in.release);
       ASSERT_TRUE(reference.landed);
       const double miss =

@@ -137,7 +137,7 @@ RegimeExtent brute_force(const TrajectoryRecorder& recorder, const Body& body,
   const Forces forces(body, environment);
   const DragLaw law(body.drag);
   const double judged =
-      kDragShareWatched * body.mass * forces.effective_gravity(environment.ground);
+      kDragShareWatched * body.mass * forces.effective_gravity(lowest_ground(environment.ground));
   DragStage before = DragStage::body;
   for (const auto& p : recorder.points()) {
     const double z = p.point.position.z();

@@ -8,6 +8,7 @@
 #include <boost/math/tools/toms748_solve.hpp>
 #include <boost/numeric/odeint.hpp>
 #include <cmath>
+#include <functional>
 #include <limits>
 
 #include "flight/flight.hpp"
@@ -32,10 +33,13 @@ struct ReferenceImpact {
 /// - `spherical`: a round Earth of radius constants::earth_radius under the site's origin:
 ///   altitude is the distance from its centre less the radius, gravity points to the centre, and
 ///   the ground lies at site.ground above that sphere.
+/// - `ground`: a ground of height(east, north), m above mean sea level, instead of the
+///   environment's (level) one; not with `spherical`.
 struct ReferenceFrame {
   bool rotating = false;
   double latitude = 0.0;  ///< degrees
   bool spherical = false;
+  std::function<double(double, double)> ground;
 };
 
 inline ReferenceImpact reference_fly(const Body& body, const Environment& environment,
@@ -74,7 +78,10 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
       odeint::make_dense_output(tolerance, tolerance, odeint::runge_kutta_dopri5<OdeState>());
   OdeState x{release.position.x(), release.position.y(), release.position.z(),
              release.velocity.x(), release.velocity.y(), release.velocity.z()};
-  const double ground = environment.ground;
+  const double level = lowest_ground(environment.ground);
+  auto ground_at = [&](const OdeState& at) {
+    return frame.ground ? frame.ground(at[0], at[1]) : level;
+  };
   const Canopy& canopy = body.canopy;
   const bool opens = body.has_canopy && canopy.state != CanopyState::failed;
   double deploy_time = std::numeric_limits<double>::infinity();
@@ -82,7 +89,7 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
   if (opens) {
     if (canopy.trigger == Canopy::Trigger::time)
       deploy_time = canopy.deploy_after;
-    else if (x[2] - ground <= canopy.deploy_height)
+    else if (x[2] - ground_at(x) <= canopy.deploy_height)
       deploy_time = 0.0;
     else
       watch_height = true;
@@ -104,12 +111,13 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
   forces.set_stage(DragStage::body);
   if (deploy_time == 0.0) deploy(0.0);
   stepper.initialize(x, 0.0, 1e-4);
-  // The time in [a, b] where the altitude crosses `level`, on Odeint's dense output.
-  auto bisect = [&](double a, double b, double level) {
+  // The time in [a, b] where the height above the ground crosses `clearance`, on Odeint's
+  // dense output.
+  auto bisect = [&](double a, double b, double clearance) {
     OdeState s;
     auto offset = [&](double t) {
       stepper.calc_state(t, s);
-      return altitude(s) - level;
+      return altitude(s) - (ground_at(s) + clearance);
     };
     const double fa = offset(a), fb = offset(b);
     if (fb == 0.0) return b;
@@ -130,13 +138,13 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
     double event_time = std::numeric_limits<double>::infinity();
     int event = 0;  // 1 ground, 2 deployment height, 3 time event
     OdeState end = stepper.current_state();
-    if (altitude(end) <= ground) {
-      event_time = bisect(t0, t1, ground);
+    if (altitude(end) <= ground_at(end)) {
+      event_time = bisect(t0, t1, 0.0);
       event = 1;
     }
     if (watch_height && stage == DragStage::body &&
-        altitude(end) <= ground + canopy.deploy_height) {
-      const double te = bisect(t0, t1, ground + canopy.deploy_height);
+        altitude(end) <= ground_at(end) + canopy.deploy_height) {
+      const double te = bisect(t0, t1, canopy.deploy_height);
       if (te < event_time) {
         event_time = te;
         event = 2;
@@ -151,7 +159,7 @@ inline ReferenceImpact reference_fly(const Body& body, const Environment& enviro
     stepper.calc_state(event_time, s);
     if (event == 1) {
       impact.time = event_time;
-      impact.position = Vec3(s[0], s[1], frame.spherical ? s[2] : ground);
+      impact.position = Vec3(s[0], s[1], frame.spherical ? s[2] : ground_at(s));
       impact.velocity = Vec3(s[3], s[4], s[5]);
       impact.landed = true;
       return impact;
