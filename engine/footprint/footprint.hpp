@@ -148,7 +148,8 @@ struct Exceedance {
 
 /// A body's figures, or for "all" those of one object of a release: with several bodies, a
 /// mixture weighted by each body's objects per release, with bounds by Boole's inequality
-/// (footprint/mixture.hpp), about one common centre.
+/// (footprint/mixture.hpp), about one common centre. A new figure here is also described in
+/// footprint/figures.hpp, which every output form reads.
 struct GroupFootprint {
   std::string name;                ///< a body's name, or "all"
   double objects_per_release = 0;  ///< the body's count (sum for "all")

@@ -5,6 +5,7 @@
 #include <cstdio>
 
 #include "core/text.hpp"
+#include "footprint/figures.hpp"
 #include "report/cautions.hpp"
 #include "report/site_frame.hpp"
 
@@ -16,14 +17,14 @@ nlohmann::json json_number(double v) {
 
 namespace {
 
-nlohmann::json upper_quantiles_json(const std::vector<Containment>& list, const char* value,
-                                    const char* upper) {
+nlohmann::json upper_quantiles_json(const std::vector<Containment>& list, std::string_view value,
+                                    std::string_view upper) {
   nlohmann::json out = nlohmann::json::array();
   for (const auto& k : list) {
     nlohmann::json item{
         {"level", k.level},
-        {value, json_number(k.radius)},
-        {upper, k.radius_upper ? json_number(*k.radius_upper) : nullptr},
+        {std::string(value), json_number(k.radius)},
+        {std::string(upper), k.radius_upper ? json_number(*k.radius_upper) : nullptr},
         {"confidence", k.confidence},
         {"interval", {json_number(k.interval_lower), json_number(k.interval_upper)}},
         {"relative_width", json_number(k.relative_width())}};
@@ -42,35 +43,22 @@ nlohmann::json quantiles_json(const std::vector<QuantileEstimate>& list) {
   return out;
 }
 
-nlohmann::json group_json(const GroupFootprint& g) {
-  nlohmann::json j{
-      {"rows", g.rows},
-      {"landed", g.landed},
-      {"failed", g.failed},
-      {"objects_per_release", g.objects_per_release},
-      {"mean", {{"east", json_number(g.mean.east)}, {"north", json_number(g.mean.north)}}},
-      {"centre", {{"east", json_number(g.centre.east)}, {"north", json_number(g.centre.north)}}},
-      // Undetermined below two landed flights.
-      {"covariance",
-       {{"east_east", g.landed >= 2 ? json_number(g.covariance[0]) : nullptr},
-        {"east_north", g.landed >= 2 ? json_number(g.covariance[1]) : nullptr},
-        {"north_north", g.landed >= 2 ? json_number(g.covariance[2]) : nullptr}}},
-      {"containment", upper_quantiles_json(g.containment, "radius", "radius_upper")},
-      {"cep", {{"counted", json_number(g.cep)}, {"gaussian", json_number(g.cep_gaussian)}}}};
-  nlohmann::json ellipses = nlohmann::json::array();
-  for (const auto& e : g.ellipses)
-    ellipses.push_back({{"level", e.level},
-                        {"approximation", "gaussian"},
-                        {"scale", e.scale},
-                        {"semi_major", json_number(e.semi_major)},
-                        {"semi_minor", json_number(e.semi_minor)},
-                        {"bearing", json_number(e.bearing)},
-                        {"counted", json_number(e.counted)}});
-  j["ellipses"] = ellipses;
-  j["downrange"] = quantiles_json(g.downrange);
-  j["crossrange"] = quantiles_json(g.crossrange);
-  nlohmann::json polygons = nlohmann::json::array();
-  for (const auto& p : g.polygons) {
+nlohmann::json ellipses_json(const std::vector<DispersionEllipse>& list) {
+  nlohmann::json out = nlohmann::json::array();
+  for (const auto& e : list)
+    out.push_back({{"level", e.level},
+                   {"approximation", "gaussian"},
+                   {"scale", e.scale},
+                   {"semi_major", json_number(e.semi_major)},
+                   {"semi_minor", json_number(e.semi_minor)},
+                   {"bearing", json_number(e.bearing)},
+                   {"counted", json_number(e.counted)}});
+  return out;
+}
+
+nlohmann::json polygons_json(const std::vector<HazardPolygon>& list) {
+  nlohmann::json out = nlohmann::json::array();
+  for (const auto& p : list) {
     nlohmann::json item{{"level", p.level}, {"determined", p.determined}, {"rank", p.rank}};
     if (p.determined) {
       item["coverage"] = p.coverage;
@@ -82,32 +70,82 @@ nlohmann::json group_json(const GroupFootprint& g) {
       item["reason"] = p.reason;
       if (p.samples_needed) item["samples_needed"] = p.samples_needed;
     }
-    polygons.push_back(item);
+    out.push_back(item);
   }
-  j["polygons"] = polygons;
-  double peak = 0.0;
-  for (double d : g.grid.density) peak = std::max(peak, d);
-  j["grid"] = {{"cell", g.grid.cell}, {"cells", g.grid.count.size()}, {"peak_density", peak}};
-  j["speed"] = upper_quantiles_json(g.speed, "value", "upper");
-  const auto& x = g.energy_exceedance;
-  j["energy"] = {{"threshold", x.threshold},
-                 {"exceed", json_number(x.share)},
-                 {"exceed_lower", json_number(x.lower)},
-                 {"exceed_upper", json_number(x.upper)},
-                 {"quantiles", upper_quantiles_json(g.energy, "value", "upper")}};
-  j["time"] = {{"min", json_number(g.time_min)},
-               {"max", json_number(g.time_max)},
-               {"quantiles", quantiles_json(g.time)}};
-  nlohmann::json sensitivity = nlohmann::json::array();
-  for (const auto& s : g.sensitivity)
-    sensitivity.push_back({{"input", s.input},
-                           {"measure", s.categorical ? "correlation_ratio" : "spearman"},
-                           {"downrange", json_number(s.downrange)},
-                           {"crossrange", json_number(s.crossrange)},
-                           {"distance", json_number(s.distance)},
-                           {"energy", json_number(s.energy)},
-                           {"strength", s.strength()}});
-  j["sensitivity"] = sensitivity;
+  return out;
+}
+
+nlohmann::json sensitivity_json(const std::vector<InputSensitivity>& list) {
+  nlohmann::json out = nlohmann::json::array();
+  for (const auto& s : list)
+    out.push_back({{"input", s.input},
+                   {"measure", s.categorical ? "correlation_ratio" : "spearman"},
+                   {"downrange", json_number(s.downrange)},
+                   {"crossrange", json_number(s.crossrange)},
+                   {"distance", json_number(s.distance)},
+                   {"energy", json_number(s.energy)},
+                   {"strength", s.strength()}});
+  return out;
+}
+
+// One figure of a group, laid out by its shape. The exceedance's keys go beside the energy
+// quantiles (the JSON pointers of both start at /energy), so both add to what is there.
+void figure_json(nlohmann::json& j, const FigureDescription& d, const GroupFootprint& g) {
+  nlohmann::json& at = j[nlohmann::json::json_pointer(std::string(d.json))];
+  switch (d.shape) {
+    case FigureShape::count:
+      at = g.*d.count;
+      return;
+    case FigureShape::number:
+      at = json_number(g.*d.number);
+      return;
+    case FigureShape::point:
+      at["east"] = json_number((g.*d.point).east);
+      at["north"] = json_number((g.*d.point).north);
+      return;
+    case FigureShape::covariance: {
+      // Undetermined below two landed flights.
+      auto term = [&](double v) { return g.landed >= 2 ? json_number(v) : nullptr; };
+      at = {{"east_east", term(g.covariance[0])},
+            {"east_north", term(g.covariance[1])},
+            {"north_north", term(g.covariance[2])}};
+      return;
+    }
+    case FigureShape::bounded:
+      at = upper_quantiles_json(g.*d.bounded, d.estimate, d.bound);
+      return;
+    case FigureShape::quantiles:
+      at = quantiles_json(g.*d.quantiles);
+      return;
+    case FigureShape::ellipses:
+      at = ellipses_json(g.ellipses);
+      return;
+    case FigureShape::polygons:
+      at = polygons_json(g.polygons);
+      return;
+    case FigureShape::grid: {
+      double peak = 0.0;
+      for (double v : g.grid.density) peak = std::max(peak, v);
+      at = {{"cell", g.grid.cell}, {"cells", g.grid.count.size()}, {"peak_density", peak}};
+      return;
+    }
+    case FigureShape::exceedance: {
+      const auto& x = g.energy_exceedance;
+      at["threshold"] = x.threshold;
+      at["exceed"] = json_number(x.share);
+      at["exceed_lower"] = json_number(x.lower);
+      at["exceed_upper"] = json_number(x.upper);
+      return;
+    }
+    case FigureShape::sensitivity:
+      at = sensitivity_json(g.sensitivity);
+      return;
+  }
+}
+
+nlohmann::json group_json(const GroupFootprint& g) {
+  nlohmann::json j = nlohmann::json::object();
+  for (const FigureDescription& d : kGroupFigures) figure_json(j, d, g);
   return j;
 }
 

@@ -4,6 +4,7 @@
 #include <sstream>
 
 #include "core/text.hpp"
+#include "footprint/figures.hpp"
 #include "report/cautions.hpp"
 #include "report/footprint_report.hpp"
 #include "report/report_files.hpp"
@@ -18,6 +19,28 @@ std::string cell(double v, const char* format = "%.1f") {
   char text[48];
   std::snprintf(text, sizeof text, format, v);
   return text;
+}
+
+// A unit as HTML shows it: "m2" as m&sup2;.
+std::string html_unit(std::string_view unit) {
+  return unit == "m2" ? std::string("m&sup2;") : std::string(unit);
+}
+
+// A column heading of a figure, from its description: its label (or `label`), then a qualifier
+// such as "east", then its unit.
+std::string heading(std::string_view figure, std::string_view qualifier = {},
+                    std::string_view label = {}) {
+  const FigureDescription& d = group_figure(figure);
+  std::string text(label.empty() ? d.label : label);
+  for (const std::string& part : {std::string(qualifier), html_unit(d.unit)})
+    if (!part.empty()) {
+      text += ' ';
+      text += part;
+    }
+  std::string th = "<th>";
+  th += text;
+  th += "</th>";
+  return th;
 }
 
 // Energies span tiny droplets to tonnes: four figures, without an exponent above 1 J.
@@ -156,8 +179,10 @@ void page_head(std::ostream& h, const StudyRecord& r) {
 // The containment table: each level's radius, its bound and interval, and its hazard polygon.
 void containment_section(std::ostream& h, const Footprint& f) {
   h << "<h2>Containment</h2>\n<table id=\"containment\"><tr><th class=\"name\">group</th>"
-       "<th>level</th><th>radius m</th><th>upper bound m</th><th>interval m</th>"
-       "<th>polygon m&sup2;</th><th>polygon counted</th></tr>\n";
+       "<th>level</th>"
+    << heading("containment") << heading("containment", "", "upper bound")
+    << heading("containment", "", "interval") << heading("polygons") << "<th>"
+    << group_figure("polygons").label << " counted</th></tr>\n";
   for (const GroupFootprint* gp : shown_groups(f)) {
     const GroupFootprint& g = *gp;
     for (std::size_t k = 0; k < g.containment.size(); ++k) {
@@ -185,8 +210,9 @@ void containment_section(std::ostream& h, const Footprint& f) {
 void dispersion_section(std::ostream& h, const Footprint& f) {
   const std::vector<const GroupFootprint*> groups = shown_groups(f);
   h << "<h2>Dispersion</h2>\n<table id=\"dispersion\"><tr><th class=\"name\">group</th>"
-       "<th>mean east m</th><th>mean north m</th><th>&sigma; east m</th><th>&sigma; north m</th>"
-       "<th>correlation</th><th>CEP m</th><th>CEP (Gaussian) m</th></tr>\n";
+    << heading("mean", "east") << heading("mean", "north") << heading("mean", "east", "&sigma;")
+    << heading("mean", "north", "&sigma;") << "<th>correlation</th>" << heading("cep")
+    << heading("cep_gaussian") << "</tr>\n";
   for (const GroupFootprint* gp : groups) {
     const GroupFootprint& g = *gp;
     const double se = std::sqrt(g.covariance[0]), sn = std::sqrt(g.covariance[2]);
@@ -196,8 +222,8 @@ void dispersion_section(std::ostream& h, const Footprint& f) {
       << "</td><td>" << cell(g.cep) << "</td><td>" << cell(g.cep_gaussian) << "</td></tr>\n";
   }
   h << "</table>\n<table id=\"ellipses\"><tr><th class=\"name\">group</th><th>level</th>"
-       "<th>semi-major m</th><th>semi-minor m</th><th>bearing &deg;</th><th>counted inside</th>"
-       "</tr>\n";
+    << heading("ellipses", "", "semi-major") << heading("ellipses", "", "semi-minor")
+    << "<th>bearing &deg;</th><th>counted inside</th></tr>\n";
   for (const GroupFootprint* gp : groups)
     for (const auto& e : gp->ellipses)
       h << "<tr><td class=\"name\">" << group_cell(f, *gp) << "</td><td>" << e.level << "</td><td>"
@@ -213,7 +239,8 @@ void ranges_section(std::ostream& h, const Footprint& f) {
     << "&deg; (the release track), crossrange positive to its right and negative to its left, "
        "about the centre.</p>\n"
     << "<table id=\"ranges\"><tr><th class=\"name\">group</th><th>probability</th>"
-       "<th>downrange m</th><th>interval m</th><th>crossrange m</th><th>interval m</th></tr>\n";
+    << heading("downrange") << heading("downrange", "", "interval") << heading("crossrange")
+    << heading("crossrange", "", "interval") << "</tr>\n";
   for (const GroupFootprint* gp : shown_groups(f)) {
     const GroupFootprint& g = *gp;
     for (std::size_t k = 0; k < g.downrange.size() && k < g.crossrange.size(); ++k) {
@@ -232,8 +259,9 @@ void ranges_section(std::ostream& h, const Footprint& f) {
 void energy_section(std::ostream& h, const Footprint& f) {
   const std::vector<const GroupFootprint*> groups = shown_groups(f);
   h << "<h2>Impact speed and energy</h2>\n<table id=\"energy\"><tr><th class=\"name\">group</th>"
-       "<th>level</th><th>speed m/s</th><th>upper bound</th><th>energy J</th><th>upper bound</th>"
-       "</tr>\n";
+       "<th>level</th>"
+    << heading("speed") << "<th>upper bound</th>" << heading("energy")
+    << "<th>upper bound</th></tr>\n";
   for (const GroupFootprint* gp : groups) {
     const GroupFootprint& g = *gp;
     for (std::size_t k = 0; k < g.speed.size() && k < g.energy.size(); ++k) {
@@ -245,8 +273,9 @@ void energy_section(std::ostream& h, const Footprint& f) {
         << (en.radius_upper ? energy_cell(*en.radius_upper) : "&ndash;") << "</td></tr>\n";
     }
   }
-  h << "</table>\n<table id=\"exceedance\"><tr><th class=\"name\">group</th><th>threshold J</th>"
-       "<th>share above</th><th>lower</th><th>upper</th><th>time of flight s</th></tr>\n";
+  h << "</table>\n<table id=\"exceedance\"><tr><th class=\"name\">group</th>"
+    << heading("energy", "", "threshold") << heading("energy_exceedance")
+    << "<th>lower</th><th>upper</th>" << heading("time") << "</tr>\n";
   for (const GroupFootprint* gp : groups) {
     const GroupFootprint& g = *gp;
     const auto& x = g.energy_exceedance;

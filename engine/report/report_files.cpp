@@ -15,6 +15,7 @@
 
 #include "core/errors.hpp"
 #include "core/text.hpp"
+#include "footprint/figures.hpp"
 #include "report/cautions.hpp"
 #include "report/footprint_report.hpp"
 #include "store/results_file.hpp"
@@ -237,7 +238,7 @@ class FigureRows {
   FigureRows(std::string& out, double confidence) : out_(out), confidence_(confidence) {}
 
   void add(const std::string& group, const std::string& figure, double level, double estimate,
-           double lower, double upper, double bound, const char* unit,
+           double lower, double upper, double bound, const std::string& unit,
            const std::string& note) const {
     const auto number = csv_number;
     // The confidence belongs to a figure that has bounds; a mean or a CEP has none.
@@ -261,56 +262,86 @@ class FigureRows {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-// A group's position figures: mean, centre, CEPs, containment, polygons, ellipses and ranges.
-void group_position_rows(const FigureRows& rows, const StudyRecord& r, const GroupFootprint& g) {
-  const auto number = csv_number;
-  rows.add(g.name, "mean_east", kNaN, g.mean.east, kNaN, kNaN, kNaN, "m", "");
-  rows.add(g.name, "mean_north", kNaN, g.mean.north, kNaN, kNaN, kNaN, "m", "");
-  rows.add(g.name, "centre_east", kNaN, g.centre.east, kNaN, kNaN, kNaN, "m", r.footprint.centre);
-  rows.add(g.name, "centre_north", kNaN, g.centre.north, kNaN, kNaN, kNaN, "m", r.footprint.centre);
-  rows.add(g.name, "cep", 0.5, g.cep, kNaN, kNaN, kNaN, "m", "counted; about the mean");
-  rows.add(g.name, "cep_gaussian", 0.5, g.cep_gaussian, kNaN, kNaN, kNaN, "m",
-           "Gaussian approximation");
-  for (const auto& c : g.containment)
-    rows.add(g.name, "containment_radius", c.level, c.radius, c.interval_lower, c.interval_upper,
-             c.radius_upper ? *c.radius_upper : kNaN, "m",
-             c.radius_upper ? "" : "bound needs " + std::to_string(c.samples_needed) + " samples");
-  for (const auto& p : g.polygons)
-    rows.add(g.name, "hazard_polygon_area", p.level, p.determined ? p.area : kNaN, kNaN, kNaN, kNaN,
-             "m2", p.determined ? "counted coverage " + number(p.coverage) : p.reason);
-  for (const auto& e : g.ellipses) {
-    rows.add(g.name, "ellipse_semi_major", e.level, e.semi_major, kNaN, kNaN, kNaN, "m",
-             "Gaussian approximation; bearing " + number(e.bearing) + " deg");
-    rows.add(g.name, "ellipse_semi_minor", e.level, e.semi_minor, kNaN, kNaN, kNaN, "m",
-             "Gaussian approximation; counted " + number(e.counted));
+// The CSV note of a one-row figure or of a level: the description's fixed note, and what its
+// kind adds.
+std::string csv_note(const FigureDescription& d, const Footprint& f, const Containment* level) {
+  switch (d.note_kind) {
+    case CsvNote::text:
+      break;
+    case CsvNote::centre_rule:
+      return f.centre;
+    case CsvNote::along_bearing:
+      return "along " + csv_number(f.downrange_bearing) + " deg";
+    case CsvNote::samples_needed:
+      if (level && !level->radius_upper)
+        return "bound needs " + std::to_string(level->samples_needed) + " samples";
+      break;
   }
-  for (const auto& q : g.downrange)
-    rows.add(g.name, "downrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
-             "along " + number(r.footprint.downrange_bearing) + " deg");
-  for (const auto& q : g.crossrange)
-    rows.add(g.name, "crossrange", q.probability, q.value, q.lower, q.upper, kNaN, "m",
-             "to the right");
+  return std::string(d.note);
 }
 
-// A group's impact figures: speed, energy and its exceedance, time of flight, sensitivity.
-void group_impact_rows(const FigureRows& rows, const GroupFootprint& g) {
+// The rows of a figure of several columns: the ellipses' semi-axes, the polygons' areas, the
+// exceedance and the sensitivities.
+void compound_rows(const FigureRows& rows, const FigureDescription& d, const GroupFootprint& g) {
   const auto number = csv_number;
-  for (const auto& c : g.speed)
-    rows.add(g.name, "impact_speed", c.level, c.radius, c.interval_lower, c.interval_upper,
-             c.radius_upper ? *c.radius_upper : kNaN, "m/s", "");
-  for (const auto& c : g.energy)
-    rows.add(g.name, "impact_energy", c.level, c.radius, c.interval_lower, c.interval_upper,
-             c.radius_upper ? *c.radius_upper : kNaN, "J", "");
-  const auto& x = g.energy_exceedance;
-  rows.add(g.name, "energy_exceedance", kNaN, x.share, x.lower, kNaN, x.upper, "",
-           "above " + number(x.threshold) + " J; Clopper-Pearson");
-  for (const auto& q : g.time)
-    rows.add(g.name, "time_of_flight", q.probability, q.value, q.lower, q.upper, kNaN, "s", "");
-  for (const auto& s : g.sensitivity) {
-    rows.add(g.name, "spearman_downrange", kNaN, s.downrange, kNaN, kNaN, kNaN, "", s.input);
-    rows.add(g.name, "spearman_crossrange", kNaN, s.crossrange, kNaN, kNaN, kNaN, "", s.input);
-    rows.add(g.name, "spearman_distance", kNaN, s.distance, kNaN, kNaN, kNaN, "", s.input);
-    rows.add(g.name, "spearman_energy", kNaN, s.energy, kNaN, kNaN, kNaN, "", s.input);
+  const std::string csv(d.csv), unit(d.unit);
+  if (d.shape == FigureShape::polygons)
+    for (const auto& p : g.polygons)
+      rows.add(g.name, csv, p.level, p.determined ? p.area : kNaN, kNaN, kNaN, kNaN, unit,
+               p.determined ? "counted coverage " + number(p.coverage) : p.reason);
+  if (d.shape == FigureShape::ellipses)
+    for (const auto& e : g.ellipses) {
+      rows.add(g.name, csv + "semi_major", e.level, e.semi_major, kNaN, kNaN, kNaN, unit,
+               "Gaussian approximation; bearing " + number(e.bearing) + " deg");
+      rows.add(g.name, csv + "semi_minor", e.level, e.semi_minor, kNaN, kNaN, kNaN, unit,
+               "Gaussian approximation; counted " + number(e.counted));
+    }
+  if (d.shape == FigureShape::exceedance) {
+    const auto& x = g.energy_exceedance;
+    rows.add(g.name, csv, kNaN, x.share, x.lower, kNaN, x.upper, unit,
+             "above " + number(x.threshold) + " J; Clopper-Pearson");
+  }
+  if (d.shape == FigureShape::sensitivity)
+    for (const auto& s : g.sensitivity) {
+      rows.add(g.name, csv + "downrange", kNaN, s.downrange, kNaN, kNaN, kNaN, unit, s.input);
+      rows.add(g.name, csv + "crossrange", kNaN, s.crossrange, kNaN, kNaN, kNaN, unit, s.input);
+      rows.add(g.name, csv + "distance", kNaN, s.distance, kNaN, kNaN, kNaN, unit, s.input);
+      rows.add(g.name, csv + "energy", kNaN, s.energy, kNaN, kNaN, kNaN, unit, s.input);
+    }
+}
+
+// The rows of one figure of a group, laid out by its shape; none for a figure without a CSV name.
+void figure_rows(const FigureRows& rows, const FigureDescription& d, const Footprint& f,
+                 const GroupFootprint& g) {
+  if (d.csv.empty()) return;
+  const std::string csv(d.csv), unit(d.unit);
+  switch (d.shape) {
+    case FigureShape::count:
+      return rows.add(g.name, csv, d.level, static_cast<double>(g.*d.count), kNaN, kNaN, kNaN, unit,
+                      csv_note(d, f, nullptr));
+    case FigureShape::number:
+      return rows.add(g.name, csv, d.level, g.*d.number, kNaN, kNaN, kNaN, unit,
+                      csv_note(d, f, nullptr));
+    case FigureShape::point:
+      rows.add(g.name, csv + "_east", d.level, (g.*d.point).east, kNaN, kNaN, kNaN, unit,
+               csv_note(d, f, nullptr));
+      return rows.add(g.name, csv + "_north", d.level, (g.*d.point).north, kNaN, kNaN, kNaN, unit,
+                      csv_note(d, f, nullptr));
+    case FigureShape::bounded:
+      for (const auto& c : g.*d.bounded)
+        rows.add(g.name, csv, c.level, c.radius, c.interval_lower, c.interval_upper,
+                 c.radius_upper ? *c.radius_upper : kNaN, unit, csv_note(d, f, &c));
+      return;
+    case FigureShape::quantiles:
+      for (const auto& q : g.*d.quantiles)
+        rows.add(g.name, csv, q.probability, q.value, q.lower, q.upper, kNaN, unit,
+                 csv_note(d, f, nullptr));
+      return;
+    case FigureShape::covariance:
+    case FigureShape::grid:
+      return;  // no CSV form: a matrix and a map
+    default:
+      return compound_rows(rows, d, g);
   }
 }
 
@@ -344,10 +375,8 @@ std::string figures_csv(const StudyRecord& r) {
       "note\n";
   const auto number = csv_number;
   const FigureRows rows(out, r.footprint.confidence);
-  for (const auto& g : r.footprint.groups) {
-    group_position_rows(rows, r, g);
-    group_impact_rows(rows, g);
-  }
+  for (const auto& g : r.footprint.groups)
+    for (const FigureDescription& d : kGroupFigures) figure_rows(rows, d, r.footprint, g);
   // A rule's row holds the probability of its event (no level, no unit): the estimate, its lower
   // bound and its upper bound; the note says the threshold, the accepted probability and the
   // status.

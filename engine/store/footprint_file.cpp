@@ -4,6 +4,7 @@
 #include <cmath>
 #include <limits>
 
+#include "footprint/figures.hpp"
 #include "store/hdf5_support.hpp"
 
 namespace strewn {
@@ -20,18 +21,8 @@ std::optional<double> from_nan(double v) {
   return std::isnan(v) ? std::nullopt : std::optional<double>(v);
 }
 
-// The attributes of a body group, of the footprint and of the run the footprint group holds, each
-// list for both writing and reading.
-constexpr auto group_fields() {
-  return std::make_tuple(std::pair{"rows", &GroupFootprint::rows},
-                         std::pair{"landed", &GroupFootprint::landed},
-                         std::pair{"failed", &GroupFootprint::failed},
-                         std::pair{"objects_per_release", &GroupFootprint::objects_per_release},
-                         std::pair{"cep", &GroupFootprint::cep},
-                         std::pair{"cep_gaussian", &GroupFootprint::cep_gaussian},
-                         std::pair{"time_min", &GroupFootprint::time_min},
-                         std::pair{"time_max", &GroupFootprint::time_max});
-}
+// The attributes of the footprint and of the run the footprint group holds, each list for both
+// writing and reading. A body group's figures are described in footprint/figures.hpp.
 constexpr auto footprint_fields() {
   return std::make_tuple(std::pair{"levels", &Footprint::levels},
                          std::pair{"confidence", &Footprint::confidence},
@@ -65,14 +56,12 @@ std::vector<double> column(const std::vector<Item>& items, F field) {
   return out;
 }
 
-void write_containment(H5::Group& parent, const std::string& name,
-                       const std::vector<Containment>& c) {
-  H5::Group g = parent.createGroup(name);
+void write_bounded(H5::Group& parent, const FigureDescription& d,
+                   const std::vector<Containment>& c) {
+  H5::Group g = parent.createGroup(std::string(d.hdf5));
   write_vector(g, "level", column(c, [](const auto& k) { return k.level; }));
-  // "radius" for distances; the same layout serves speed and energy as "value".
-  write_vector(g, name == "containment" ? "radius" : "value",
-               column(c, [](const auto& k) { return k.radius; }));
-  write_vector(g, name == "containment" ? "radius_upper" : "upper",
+  write_vector(g, std::string(d.estimate), column(c, [](const auto& k) { return k.radius; }));
+  write_vector(g, std::string(d.bound),
                column(c, [](const auto& k) { return k.radius_upper ? *k.radius_upper : kNaN; }));
   std::vector<std::uint64_t> needed;
   for (const auto& k : c) needed.push_back(k.samples_needed);
@@ -82,13 +71,12 @@ void write_containment(H5::Group& parent, const std::string& name,
   write_vector(g, "relative_width", column(c, [](const auto& k) { return k.relative_width(); }));
 }
 
-std::vector<Containment> read_containment(const H5::Group& parent, const std::string& name,
-                                          double confidence) {
-  H5::Group g = parent.openGroup(name);
-  const bool distance = name == "containment";
+std::vector<Containment> read_bounded(const H5::Group& parent, const FigureDescription& d,
+                                      double confidence) {
+  H5::Group g = parent.openGroup(std::string(d.hdf5));
   const auto level = read_vector<double>(g, "level");
-  const auto value = read_vector<double>(g, distance ? "radius" : "value");
-  const auto upper = read_vector<double>(g, distance ? "radius_upper" : "upper");
+  const auto value = read_vector<double>(g, std::string(d.estimate));
+  const auto upper = read_vector<double>(g, std::string(d.bound));
   const auto needed = read_vector<std::uint64_t>(g, "samples_needed");
   const auto lower_i = read_vector<double>(g, "interval_lower");
   const auto upper_i = read_vector<double>(g, "interval_upper");
@@ -124,15 +112,16 @@ std::vector<QuantileEstimate> read_quantiles(const H5::Group& parent, const std:
 }
 
 // The covariance as a full, symmetric 2 x 2 matrix (east, north), m^2.
-void write_covariance(H5::Group& g, const GroupFootprint& f) {
+void write_covariance(H5::Group& g, const std::string& name, const GroupFootprint& f) {
   const hsize_t dims[2] = {2, 2};
   H5::DataSpace space(2, dims);
   const double c[4] = {f.covariance[0], f.covariance[1], f.covariance[1], f.covariance[2]};
-  g.createDataSet("covariance", type_of<double>(), space).write(c, type_of<double>());
+  g.createDataSet(name, type_of<double>(), space).write(c, type_of<double>());
 }
 
-void write_ellipses(H5::Group& g, const std::vector<DispersionEllipse>& el) {
-  H5::Group e = g.createGroup("ellipses");
+void write_ellipses(H5::Group& g, const std::string& name,
+                    const std::vector<DispersionEllipse>& el) {
+  H5::Group e = g.createGroup(name);
   write_attribute(e, "approximation", std::string("gaussian"));
   write_vector(e, "level", column(el, [](const auto& k) { return k.level; }));
   write_vector(e, "scale", column(el, [](const auto& k) { return k.scale; }));
@@ -144,8 +133,8 @@ void write_ellipses(H5::Group& g, const std::vector<DispersionEllipse>& el) {
 
 // The hazard polygons, a row each; their rings' vertices all in two columns, each polygon's
 // run of them given by its first vertex and vertex count.
-void write_polygons(H5::Group& g, const std::vector<HazardPolygon>& ps) {
-  H5::Group p = g.createGroup("polygons");
+void write_polygons(H5::Group& g, const std::string& name, const std::vector<HazardPolygon>& ps) {
+  H5::Group p = g.createGroup(name);
   write_vector(p, "level", column(ps, [](const auto& k) { return k.level; }));
   std::vector<std::uint64_t> rank, needed, first, count;
   std::vector<std::uint8_t> determined;
@@ -175,8 +164,8 @@ void write_polygons(H5::Group& g, const std::vector<HazardPolygon>& ps) {
   write_vector(p, "vertices_north", vn);
 }
 
-void write_grid(H5::Group& g, const GroupFootprint& f) {
-  H5::Group d = g.createGroup("grid");
+void write_grid(H5::Group& g, const std::string& name, const GroupFootprint& f) {
+  H5::Group d = g.createGroup(name);
   write_attribute(d, "cell", f.grid.cell);
   write_vector(d, "east_index", f.grid.east_index);
   write_vector(d, "north_index", f.grid.north_index);
@@ -184,8 +173,8 @@ void write_grid(H5::Group& g, const GroupFootprint& f) {
   write_vector(d, "density", f.grid.density);
 }
 
-void write_sensitivity(H5::Group& g, const GroupFootprint& f) {
-  H5::Group s = g.createGroup("sensitivity");
+void write_sensitivity(H5::Group& g, const std::string& name, const GroupFootprint& f) {
+  H5::Group s = g.createGroup(name);
   std::vector<std::string> names;
   for (const auto& k : f.sensitivity) names.push_back(k.input);
   write_strings(s, "input", names);
@@ -195,31 +184,46 @@ void write_sensitivity(H5::Group& g, const GroupFootprint& f) {
   write_vector(s, "energy", column(f.sensitivity, [](const auto& k) { return k.energy; }));
 }
 
+// One figure of a body's group, laid out by its shape (names from footprint/figures.hpp).
+void write_figure(H5::Group& g, const FigureDescription& d, const GroupFootprint& f) {
+  const std::string name(d.hdf5);
+  switch (d.shape) {
+    case FigureShape::count:
+      return write_attribute(g, name, f.*d.count);
+    case FigureShape::number:
+      return write_attribute(g, name, f.*d.number);
+    case FigureShape::point:
+      return write_vector(g, name, std::vector<double>{(f.*d.point).east, (f.*d.point).north});
+    case FigureShape::covariance:
+      return write_covariance(g, name, f);
+    case FigureShape::bounded:
+      return write_bounded(g, d, f.*d.bounded);
+    case FigureShape::quantiles:
+      return write_quantiles(g, name, f.*d.quantiles);
+    case FigureShape::ellipses:
+      return write_ellipses(g, name, f.ellipses);
+    case FigureShape::polygons:
+      return write_polygons(g, name, f.polygons);
+    case FigureShape::grid:
+      return write_grid(g, name, f);
+    case FigureShape::exceedance: {
+      // Attributes of the group of the energy quantiles, which the table lists before it.
+      H5::Group e = g.openGroup(name);
+      return write_attributes(e, f.energy_exceedance, exceedance_fields());
+    }
+    case FigureShape::sensitivity:
+      return write_sensitivity(g, name, f);
+  }
+}
+
 void write_group(H5::Group& root, const GroupFootprint& f) {
   H5::Group g = root.createGroup(f.name);
-  write_attributes(g, f, group_fields());
-  write_vector(g, "mean", std::vector<double>{f.mean.east, f.mean.north});
-  write_vector(g, "centre", std::vector<double>{f.centre.east, f.centre.north});
-  write_covariance(g, f);
-  write_containment(g, "containment", f.containment);
-  write_ellipses(g, f.ellipses);
-  write_quantiles(g, "downrange", f.downrange);
-  write_quantiles(g, "crossrange", f.crossrange);
-  write_quantiles(g, "time", f.time);
-  write_polygons(g, f.polygons);
-  write_grid(g, f);
-  write_containment(g, "speed", f.speed);
-  write_containment(g, "energy", f.energy);
-  {
-    H5::Group e = g.openGroup("energy");
-    write_attributes(e, f.energy_exceedance, exceedance_fields());
-  }
-  write_sensitivity(g, f);
+  for (const FigureDescription& d : kGroupFigures) write_figure(g, d, f);
 }
 
 // The covariance's three distinct terms (east-east, east-north, north-north) from its 2 x 2.
-std::array<double, 3> read_covariance(const H5::Group& g) {
-  H5::DataSet set = g.openDataSet("covariance");
+std::array<double, 3> read_covariance(const H5::Group& g, const std::string& name) {
+  H5::DataSet set = g.openDataSet(name);
   if (set.getSpace().getSimpleExtentNpoints() != 4)
     throw H5::DataSetIException("read_group", "covariance is not 2 x 2");
   double c[4];
@@ -227,8 +231,8 @@ std::array<double, 3> read_covariance(const H5::Group& g) {
   return {c[0], c[1], c[3]};
 }
 
-std::vector<DispersionEllipse> read_ellipses(const H5::Group& g) {
-  H5::Group e = g.openGroup("ellipses");
+std::vector<DispersionEllipse> read_ellipses(const H5::Group& g, const std::string& name) {
+  H5::Group e = g.openGroup(name);
   const auto level = read_vector<double>(e, "level"), scale = read_vector<double>(e, "scale"),
              major = read_vector<double>(e, "semi_major"),
              minor = read_vector<double>(e, "semi_minor"),
@@ -241,8 +245,8 @@ std::vector<DispersionEllipse> read_ellipses(const H5::Group& g) {
 }
 
 // The hazard polygons, each with its ring cut from the vertex columns (see write_polygons).
-std::vector<HazardPolygon> read_polygons(const H5::Group& g) {
-  H5::Group p = g.openGroup("polygons");
+std::vector<HazardPolygon> read_polygons(const H5::Group& g, const std::string& name) {
+  H5::Group p = g.openGroup(name);
   const auto level = read_vector<double>(p, "level");
   const auto rank = read_vector<std::uint64_t>(p, "rank");
   const auto determined = read_vector<std::uint8_t>(p, "determined");
@@ -271,8 +275,8 @@ std::vector<HazardPolygon> read_polygons(const H5::Group& g) {
 }
 
 // The density grid; refuses columns of different lengths.
-void read_grid(const H5::Group& g, GroupFootprint& f) {
-  H5::Group d = g.openGroup("grid");
+void read_grid(const H5::Group& g, const std::string& name, GroupFootprint& f) {
+  H5::Group d = g.openGroup(name);
   f.grid.cell = read_attribute<double>(d, "cell");
   f.grid.east_index = read_vector<std::int64_t>(d, "east_index");
   f.grid.north_index = read_vector<std::int64_t>(d, "north_index");
@@ -284,8 +288,8 @@ void read_grid(const H5::Group& g, GroupFootprint& f) {
     throw H5::DataSetIException("read_group", "grid columns differ in length");
 }
 
-void read_sensitivity(const H5::Group& g, GroupFootprint& f) {
-  H5::Group s = g.openGroup("sensitivity");
+void read_sensitivity(const H5::Group& g, const std::string& name, GroupFootprint& f) {
+  H5::Group s = g.openGroup(name);
   const auto names = read_strings(s, "input");
   const auto d = read_vector<double>(s, "downrange"), c = read_vector<double>(s, "crossrange"),
              r = read_vector<double>(s, "distance"), e = read_vector<double>(s, "energy");
@@ -293,29 +297,51 @@ void read_sensitivity(const H5::Group& g, GroupFootprint& f) {
     f.sensitivity.push_back({names[k], d.at(k), c.at(k), r.at(k), e.at(k)});
 }
 
+// One figure of a body's group, read back as write_figure laid it out.
+void read_figure(const H5::Group& g, const FigureDescription& d, GroupFootprint& f,
+                 double confidence) {
+  const std::string name(d.hdf5);
+  switch (d.shape) {
+    case FigureShape::count:
+      f.*d.count = read_attribute<std::uint64_t>(g, name);
+      return;
+    case FigureShape::number:
+      f.*d.number = read_attribute<double>(g, name);
+      return;
+    case FigureShape::point: {
+      const auto xy = read_vector<double>(g, name);
+      f.*d.point = {xy.at(0), xy.at(1)};
+      return;
+    }
+    case FigureShape::covariance:
+      f.covariance = read_covariance(g, name);
+      return;
+    case FigureShape::bounded:
+      f.*d.bounded = read_bounded(g, d, confidence);
+      return;
+    case FigureShape::quantiles:
+      f.*d.quantiles = read_quantiles(g, name);
+      return;
+    case FigureShape::ellipses:
+      f.ellipses = read_ellipses(g, name);
+      return;
+    case FigureShape::polygons:
+      f.polygons = read_polygons(g, name);
+      return;
+    case FigureShape::grid:
+      return read_grid(g, name, f);
+    case FigureShape::exceedance:
+      return read_attributes(g.openGroup(name), f.energy_exceedance, exceedance_fields());
+    case FigureShape::sensitivity:
+      return read_sensitivity(g, name, f);
+  }
+}
+
 GroupFootprint read_group(const H5::Group& root, const std::string& name, double confidence) {
   H5::Group g = root.openGroup(name);
   GroupFootprint f;
   f.name = name;
-  read_attributes(g, f, group_fields());
-  const auto mean = read_vector<double>(g, "mean"), centre = read_vector<double>(g, "centre");
-  f.mean = {mean.at(0), mean.at(1)};
-  f.centre = {centre.at(0), centre.at(1)};
-  f.covariance = read_covariance(g);
-  f.containment = read_containment(g, "containment", confidence);
-  f.ellipses = read_ellipses(g);
-  f.downrange = read_quantiles(g, "downrange");
-  f.crossrange = read_quantiles(g, "crossrange");
-  f.time = read_quantiles(g, "time");
-  f.polygons = read_polygons(g);
-  read_grid(g, f);
-  f.speed = read_containment(g, "speed", confidence);
-  f.energy = read_containment(g, "energy", confidence);
-  {
-    H5::Group e = g.openGroup("energy");
-    read_attributes(e, f.energy_exceedance, exceedance_fields());
-  }
-  read_sensitivity(g, f);
+  for (const FigureDescription& d : kGroupFigures) read_figure(g, d, f, confidence);
   return f;
 }
 
