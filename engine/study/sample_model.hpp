@@ -10,6 +10,7 @@
 
 #include "sampling/input_sampler.hpp"
 #include "scenario/world.hpp"
+#include "study/wind_source.hpp"
 
 namespace strewn {
 
@@ -46,10 +47,9 @@ class SampleModel {
    private:
     friend class SampleModel;
     InputSampler::Workspace sampler_;
-    std::vector<double> values_, add_east_, add_north_, normals_;
-    WindProfile perturbed_;
+    std::vector<double> values_;
+    WindScratch wind_scratch_;
     const WindProfile* wind_ = nullptr;
-    double member_ = 0.0, perturbation_east_ = 0.0, perturbation_north_ = 0.0;
   };
 
   /// Draws sample i's inputs and wind into the workspace (call before flight()).
@@ -63,9 +63,7 @@ class SampleModel {
   const Scenario& scenario_;
   const World& world_;
   InputSampler sampler_;
-  WindProfile base_wind_;             // the profile perturbations apply to
-  std::vector<WindProfile> members_;  // ensemble
-  Eigen::MatrixXd layer_factor_;      // layered: Cholesky factor of exp(-|dz|/L)
+  WindSources wind_source_;  // how a sample's wind is made (study/wind_source.hpp)
   std::vector<std::string> choice_names_;
 };
 

@@ -1,0 +1,73 @@
+#pragma once
+// Gaussian perturbations of each layer's east and north components, sd `speed_sd`, correlated in
+// altitude by exp(-|dz| / L) (L the correlation length): drawn as sd L n, with L the Cholesky
+// factor of that kernel (factored once) and n standard normals from the sample's own wind
+// stream (Boost.Random). Records the perturbation's mean over the layers as two choices.
+#include <boost/random/normal_distribution.hpp>
+#include <cmath>
+
+#include "sampling/random_stream.hpp"
+#include "study/wind_sources/source.hpp"
+
+namespace strewn {
+
+class LayeredWind {
+ public:
+  static constexpr WindUncertaintyModel model = WindUncertaintyModel::layered;
+  static constexpr std::array<const char*, 2> choices{"wind.perturbation_east",
+                                                      "wind.perturbation_north"};
+  struct Scratch {
+    std::vector<double> add_east, add_north, normals;
+    WindProfile wind;
+    double mean_east = 0.0, mean_north = 0.0;
+  };
+
+  LayeredWind(const Scenario& scenario, const World& world)
+      : seed_(scenario.study.seed),
+        speed_sd_(scenario.wind.speed_sd),
+        base_(perturbable_profile(scenario, world)) {
+    // Exponential correlation in altitude between the layers' perturbations, factored once.
+    const auto& z = base_.layer_altitudes();
+    const auto n = static_cast<Eigen::Index>(z.size());
+    Eigen::MatrixXd kernel(n, n);
+    for (Eigen::Index i = 0; i < n; ++i)
+      for (Eigen::Index j = 0; j < n; ++j)
+        kernel(i, j) =
+            std::exp(-std::abs(z[static_cast<std::size_t>(i)] - z[static_cast<std::size_t>(j)]) /
+                     scenario.wind.correlation_length);
+    factor_ = Eigen::LLT<Eigen::MatrixXd>(kernel).matrixL();
+  }
+  [[nodiscard]] Scratch scratch() const {
+    return {std::vector<double>(base_.layers()), std::vector<double>(base_.layers()),
+            std::vector<double>(2 * base_.layers()), base_};
+  }
+  [[nodiscard]] const WindProfile& wind(std::uint64_t sample, const InputValues& /*values*/,
+                                        Scratch& s) const {
+    RandomStream stream(seed_, sample, purpose::wind);
+    boost::random::normal_distribution<double> normal;
+    for (double& v : s.normals) v = normal(stream);
+    const auto n = static_cast<Eigen::Index>(s.add_east.size());
+    Eigen::Map<const Eigen::VectorXd> ne(s.normals.data(), n), nn(s.normals.data() + n, n);
+    Eigen::Map<Eigen::VectorXd> east(s.add_east.data(), n), north(s.add_north.data(), n);
+    east.noalias() = factor_.triangularView<Eigen::Lower>() * ne;
+    north.noalias() = factor_.triangularView<Eigen::Lower>() * nn;
+    east *= speed_sd_;
+    north *= speed_sd_;
+    s.mean_east = east.mean();
+    s.mean_north = north.mean();
+    s.wind.assign_perturbed(base_, s.add_east, s.add_north);
+    return s.wind;
+  }
+  void choices_of(const Scratch& s, std::span<double> out) const {
+    out[0] = s.mean_east;
+    out[1] = s.mean_north;
+  }
+
+ private:
+  std::uint64_t seed_;
+  double speed_sd_;
+  WindProfile base_;
+  Eigen::MatrixXd factor_;
+};
+
+}  // namespace strewn
