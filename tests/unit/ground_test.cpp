@@ -42,6 +42,13 @@ struct HillDrop {
   Environment environment{&medium, {}, &wind, 300.0};
   ReleaseState release = test::release_at(0.0, 0.0, 300.0 + 1500.0, 62.0, 0.0, 0.0);
   Body bundle = test::area_body(95.0, 1.05, 0.55);
+
+  // The independent reference's flight over the hill.
+  [[nodiscard]] test::ReferenceImpact reference_over(const Hill& hill) const {
+    test::ReferenceFrame frame;
+    frame.ground = [&](double e, double n) { return hill.height(e, n); };
+    return test::reference_fly(bundle, environment, release, 1e-10, 1e6, frame);
+  }
 };
 
 // A bundle dropped toward a hill lands on its slope where the reference does, at the hill's
@@ -57,9 +64,7 @@ TEST(Ground, ContactOnAHillsideIsLocatedOnTheHeightUnderTheTrajectory) {
   const Hill hill{300.0, 400.0, top.x(), top.y(), 250.0};
   const FlightResult result = detail::fly_over(hill, d.bundle, d.environment, d.release);
   ASSERT_EQ(result.status, FlightStatus::landed);
-  test::ReferenceFrame frame;
-  frame.ground = [&](double e, double n) { return hill.height(e, n); };
-  const auto reference = test::reference_fly(d.bundle, d.environment, d.release, 1e-10, 1e6, frame);
+  const test::ReferenceImpact reference = d.reference_over(hill);
   ASSERT_TRUE(reference.landed);
   // The flight's accuracy target, 0.05 m (FlightOptions::tolerance), against the reference.
   EXPECT_LT((result.position - reference.position).norm(), 0.05);
@@ -83,9 +88,7 @@ TEST(Ground, DeploymentHeightIsAboveTheGroundUnderTheBody) {
   const Hill hill{300.0, 500.0, 250.0, 0.0, 400.0};
   const FlightResult result = detail::fly_over(hill, d.bundle, d.environment, d.release);
   ASSERT_EQ(result.status, FlightStatus::landed);
-  test::ReferenceFrame frame;
-  frame.ground = [&](double e, double n) { return hill.height(e, n); };
-  const auto reference = test::reference_fly(d.bundle, d.environment, d.release, 1e-10, 1e6, frame);
+  const test::ReferenceImpact reference = d.reference_over(hill);
   ASSERT_TRUE(reference.landed);
   EXPECT_NEAR(result.deploy_time, reference.deploy_time, 1e-3);
   EXPECT_LT((result.position - reference.position).norm(), 0.05);
