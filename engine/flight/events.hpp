@@ -8,7 +8,9 @@
 //   it, so that the forces are smooth inside every step and the error estimate honest;
 // - a deployment height or the ground: the surface `clearance` m above the ground, z = h(x, y) + c,
 //   is located by Newton steps on the dense output (with the ground's slope in the derivative),
-//   kept inside the bracket of the step; the integrator restarts there.
+//   kept inside the bracket of the step; the integrator restarts there. A crossing is seen where a
+//   step ends below the surface: a ridge of a ground that is not level, passed under the body
+//   within one step with both ends above it, is not.
 // A ground that is `level` (ground.hpp) is one altitude, located as the kinks are.
 //
 // Bracketing root finding: Newton with bisection safeguard for the altitude surfaces, Alefeld-
@@ -243,10 +245,14 @@ double FlightEvents<Ground>::foresee(const Stepper& stepper) const {
   if constexpr (Ground::level) {
     consider(ground_.height(0.0, 0.0) - 0.5 * sliver);
   } else {
-    const double below = -0.5 * sliver;  // the surface aimed at, as a clearance
+    // The sliver of the height above the ground (not of the altitude): a shallow glide into a
+    // slope closes on it with little change of altitude.
+    const double above = offset(stepper.y(), 0.0);
+    const double ground_sliver = kSliver * std::abs(dense_offset(stepper, 0.0, t_end) - above);
+    const double below = -0.5 * ground_sliver;  // the surface aimed at, as a clearance
     const double now = offset(stepper.y(), below);
     const double then = dense_offset(stepper, below, t_end);
-    if (std::abs(now) > sliver && now > 0.0 && then < 0.0)
+    if (std::abs(now) > ground_sliver && now > 0.0 && then < 0.0)
       aimed_ground =
           solve(stepper, below, stepper.t(), t_end, now, then, 1e-6 * (t_end - stepper.t()));
   }
@@ -265,9 +271,14 @@ double FlightEvents<Ground>::foresee(const Stepper& stepper) const {
 template <class Ground>
 template <class Stepper>
 double FlightEvents<Ground>::landing_just_ahead(const Stepper& stepper, double t_stop) const {
-  const double z0 = stepper.y_previous()[2], z = stepper.y()[2];
   const double above = offset(stepper.y(), 0.0);
-  if (!(above > 0.0 && above <= kSliver * std::abs(z - z0))) return kNone;
+  // The last step's change of the height above the ground: of the altitude for a level ground.
+  double change;
+  if constexpr (Ground::level)
+    change = stepper.y()[2] - stepper.y_previous()[2];
+  else
+    change = above - offset(stepper.y_previous(), 0.0);
+  if (!(above > 0.0 && above <= kSliver * std::abs(change))) return kNone;
   const double t = stepper.t();
   const double t_far = std::min(t + 4.0 * kSliver * (t - stepper.t_previous()), t_stop);
   if (!(t_far > t)) return kNone;

@@ -8,7 +8,9 @@
 //   std::array<double, 2> slope(double east, double north) const;    // its gradient
 //   double lowest() const, highest() const;  // bounds of the height anywhere (m)
 // Ground contact and deployment heights are located on the height above the ground along the
-// trajectory (events.hpp): nothing outside a ground's file assumes it is level.
+// trajectory (events.hpp), and the flight's bounds take its lowest point. What still reads the
+// scenario's one `site.ground` (the wind's power-law floor, the release check of the loader, the
+// trace's heights) is listed in DEVELOPERS.md, "A ground".
 #include <variant>
 
 #include "flight/grounds/level.hpp"
@@ -22,10 +24,6 @@ using Grounds = std::variant<LevelGround>;
 /// a body settles slowest (the bounds of a flight's estimates).
 [[nodiscard]] inline double lowest_ground(const Grounds& ground) {
   return std::visit([](const auto& g) { return g.lowest(); }, ground);
-}
-/// The ground's height at a point, m above mean sea level.
-[[nodiscard]] inline double ground_height(const Grounds& ground, double east, double north) {
-  return std::visit([&](const auto& g) { return g.height(east, north); }, ground);
 }
 
 }  // namespace strewn

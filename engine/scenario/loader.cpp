@@ -392,8 +392,16 @@ class Loader {
   // every key that belongs to another law.
   void read_drag(Table& drag, const std::string& prefix, BodySpec& b) {
     const auto model_name = drag.text("model", drag_model_names(), true);
-    if (!model_name) return;
-    b.drag_model = drag_model_named(*model_name).value_or(0);
+    const auto model = drag_model_named(model_name.value_or(""));
+    // The Mach table is read whatever the model, so that a misspelt model is the one message.
+    if (const toml::array* table = drag.array("mach_table")) {
+      if (model && !drag_model_facts(*model).takes_mach_table)
+        diagnostics_.add(drag.key_path("mach_table"), drag.line_of("mach_table"),
+                         "a Mach table does not apply to drag model \"" + *model_name + "\"");
+      read_mach_table(*table, drag.key_path("mach_table"), b);
+    }
+    if (!model) return;
+    b.drag_model = *model;
     const DragModelFacts& law = drag_model_facts(b.drag_model);
     std::vector<std::string> used;
     for (std::size_t i = 0; i < law.inputs.size(); ++i) {
@@ -406,12 +414,6 @@ class Loader {
         b.drag_inputs[i] =
             sampled(prefix + input.key, drag.uncertain(input.key, input.fallback, input.bounds));
       }
-    }
-    if (const toml::array* table = drag.array("mach_table")) {
-      if (!law.takes_mach_table)
-        diagnostics_.add(drag.key_path("mach_table"), drag.line_of("mach_table"),
-                         "a Mach table does not apply to drag model \"" + *model_name + "\"");
-      read_mach_table(*table, drag.key_path("mach_table"), b);
     }
     std::vector<std::string> reported;
     for (DragModel other = 0; other < kDragModels; ++other)

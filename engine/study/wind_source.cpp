@@ -13,8 +13,9 @@ constexpr bool each_model_has_one_source(std::index_sequence<i...>) {
       return false;
   return true;
 }
-static_assert(each_model_has_one_source(std::make_index_sequence<std::variant_size_v<WindSources>>{}),
-              "register one wind source per WindUncertaintyModel in WindSources");
+static_assert(
+    each_model_has_one_source(std::make_index_sequence<std::variant_size_v<WindSources>>{}),
+    "register one wind source per WindUncertaintyModel in WindSources");
 
 template <std::size_t... i>
 WindSources make(const Scenario& s, const World& world, std::index_sequence<i...>) {

@@ -1,8 +1,9 @@
 #pragma once
 // Where a sample's wind comes from, behind a static seam: each source is one file under
-// wind_sources/ (what it reads of the scenario, its checks, its sampled inputs and random choices,
-// and how it makes a sample's profile) and one entry in `WindSources`. A study visits the variant
-// once per sample; the flight then reads a WindProfile, whatever its source.
+// wind_sources/ (what it takes of the scenario's wind, its precomputation, the sampled inputs it
+// reads by handle, its random choices, and how it makes a sample's profile) and one entry in
+// `WindSources`. Its keys are read by the loader (read_wind), below this module. A study visits the
+// variant once per sample; the flight then reads a WindProfile, whatever its source.
 #include <cstddef>
 #include <optional>
 #include <utility>

@@ -158,6 +158,14 @@ TEST(ScenarioBadInput, ModelSpecificKeys) {
                  "is not used by drag model \"area\"");
   expect_problem(edit("model = \"area\"", "model = \"spere\""), "body[0].drag.model", 14,
                  "did you mean \"sphere\"?");
+  // A misspelt model is the one problem of a body with a Mach table: the table is still read.
+  const std::string misspelt =
+      edit("model = \"area\"", "model = \"spere\"\nmach_table = [[0.0, 1.0], [1.2, 1.5]]");
+  for (const auto& p : problems_of(misspelt))
+    EXPECT_EQ(p.key_path.find("mach_table"), std::string::npos) << p.describe();
+  // Linear drag takes no Mach table (docs/scenario.md).
+  expect_problem(edit("model = \"area\"", "model = \"stokes\"\nmach_table = [[0.0, 1.0]]"),
+                 "body[0].drag.mach_table", 15, "does not apply to drag model \"stokes\"");
 }
 
 TEST(ScenarioBadInput, MissingSections) {

@@ -10,7 +10,7 @@
 //   explicit Law(std::span<const double, N> values);    // built from its inputs' values
 //   std::array<double, N> values() const;               // the same values back (for reports)
 //   double coefficient(double speed, const Air&) const; // k, kg/s, F = -k u, without Mach factor
-//   double cd(double re) const, quadratic_cd(double re) const;
+//   double cd_at(double re) const, quadratic_cd(double re) const;  // Cd, and its non-Stokes part
 //   double length() const, reference_area() const, volume() const;  // volume 0: unknown
 //   static constexpr bool needs_viscosity;
 // and, for a law with a constant Cd A (the quick path of the force loop), a member
