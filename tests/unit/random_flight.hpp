@@ -44,20 +44,24 @@ inline RandomFlight draw_flight(std::mt19937_64& rng) {
   // milliseconds: they fall from at most 20 m (and exercise the quasi-steady form).
   const double height = tank ? u(0.2, 5.0) : model == 2 ? u(1.0, 20.0) : u(5.0, 10000.0);
   if (model == 0 || model == 3) {
+    // (The material density is drawn before the diameter, as in the family's first draws.)
+    const double density = u(tank ? 2000.0 : 300.0, 8000.0);
     const double diameter = tank ? u(1e-3, 0.02) : u(1e-3, 0.5);
-    f.body = test::round_body(SphereDrag(diameter), u(tank ? 2000.0 : 300.0, 8000.0));
+    f.body = test::round_body(SphereDrag(diameter), density);
     if (model == 3) {
       const double cd = u(0.3, 1.5);
       f.body.drag.law = AreaDrag(cd, u(0.001, 2.0));
       f.body.volume = 0.0;
     }
   } else if (model == 1) {
+    const double density = u(1500.0, 8000.0);
     const double diameter = tank ? u(1e-3, 0.02) : u(1e-3, 0.3);
-    f.body = test::round_body(ShapeDrag(diameter, 1.0), u(1500.0, 8000.0));
+    f.body = test::round_body(ShapeDrag(diameter, 1.0), density);
     f.body.drag.law = ShapeDrag(diameter, u(0.3, 1.0));
   } else {
+    const double density = u(1500.0, 3000.0);
     const double diameter = tank ? u(5e-4, 2e-3) : u(20e-6, 60e-6);
-    f.body = test::round_body(StokesDrag(diameter), u(1500.0, 3000.0));
+    f.body = test::round_body(StokesDrag(diameter), density);
   }
   if (!tank && model != 2 && pick(3) == 0) {
     f.mach = std::make_unique<MachTable>(std::vector<double>{0.0, 0.8, 1.1, 3.0},
