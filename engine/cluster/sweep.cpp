@@ -522,6 +522,21 @@ SweepOutcome gather_cases(const Job& job, const SweepPlan& plan, const std::stri
 
 constexpr int kRequestTag = 21, kAnswerTag = 22;
 
+// A rank other than 0: asks rank 0 for the next case and runs it, until told none is left (-1).
+void run_cases_asked(const Job& job, const SweepPlan& plan, const std::string& folder,
+                     int threads) {
+  while (true) {
+    const std::int64_t ask = 0;
+    job.send(0, std::as_bytes(std::span(&ask, 1)), kRequestTag);
+    const auto answer = job.receive(0, kAnswerTag);
+    std::int64_t index = -1;
+    std::memcpy(&index, answer.data(), sizeof index);
+    if (index < 0) return;
+    run_case(plan, static_cast<std::size_t>(index),
+             case_file(folder, static_cast<std::size_t>(index)), threads);
+  }
+}
+
 }  // namespace
 
 std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
@@ -586,16 +601,7 @@ std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
     manager.join();
   } else {
     try {
-      while (true) {
-        const std::int64_t ask = 0;
-        job.send(0, std::as_bytes(std::span(&ask, 1)), kRequestTag);
-        const auto answer = job.receive(0, kAnswerTag);
-        std::int64_t index = -1;
-        std::memcpy(&index, answer.data(), sizeof index);
-        if (index < 0) break;
-        run_case(plan, static_cast<std::size_t>(index),
-                 case_file(folder, static_cast<std::size_t>(index)), threads);
-      }
+      run_cases_asked(job, plan, folder, threads);
     } catch (const std::exception& e) {
       fail_on_rank(e);
     }

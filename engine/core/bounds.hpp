@@ -27,5 +27,9 @@ inline constexpr Bounds kNonNegative{0.0, std::numeric_limits<double>::infinity(
                                      "zero or more"};
 inline constexpr Bounds kProbability{0.0, 1.0, false, false, "a probability in [0, 1]"};
 inline constexpr Bounds kDegrees{0.0, 360.0, false, false, "an angle in [0, 360] degrees"};
+/// The altitudes strewn's air covers: its U.S. Standard Atmosphere 1976 tables run from -5 km
+/// to 86 km geometric (medium/us1976.hpp).
+inline constexpr Bounds kAltitude{-5000.0, 86000.0, false, false,
+                                  "an altitude from -5000 to 86000 m above mean sea level"};
 
 }  // namespace strewn

@@ -43,6 +43,8 @@ class FlightRun {
     if (observer_) observer_->record({t, position, velocity, forces_.stage(), quasi}, forces_);
   }
   [[nodiscard]] bool quasi_steady_eligible(double z) const;
+  // The rest of the fall in the quasi-steady form, on positions only; returns its evaluations.
+  long fly_quasi_steady(FlightState& y, double& t, double position_tolerance);
   // A flight that ends where it starts: non-finite, released on the ground, or lighter than the
   // medium. Sets the result and returns true then.
   bool ends_at_release(const FlightState& y, const ReleaseState& release);
@@ -313,6 +315,18 @@ double FlightRun<Ground>::stage_end(DragStage stage, double z, double t, double 
 }
 
 template <class Ground>
+long FlightRun<Ground>::fly_quasi_steady(FlightState& y, double& t, double position_tolerance) {
+  result_.quasi_steady = true;
+  PositionState tolerance = PositionState::Constant(position_tolerance);
+  DormandPrince5<3> stepper(tolerance);
+  PositionState r = y.head<3>();
+  const Next end = integrate(stepper, r, t, options_.max_time, false);
+  if (end == Next::stage_change) result_.status = FlightStatus::time_limit;
+  y.head<3>() = r;
+  return stepper.evaluations();
+}
+
+template <class Ground>
 FlightResult FlightRun<Ground>::run(const ReleaseState& release) {
   result_ = FlightResult{};
   FlightState y;
@@ -365,15 +379,7 @@ FlightResult FlightRun<Ground>::run(const ReleaseState& release) {
       break;
     }
     if (quasi_next) {
-      // The rest of the fall in the quasi-steady form, on positions only.
-      result_.quasi_steady = true;
-      PositionState tolerance3 = PositionState::Constant(position_tolerance);
-      DormandPrince5<3> quasi_stepper(tolerance3);
-      PositionState r = y.head<3>();
-      const Next end = integrate(quasi_stepper, r, t, options_.max_time, false);
-      evaluations += quasi_stepper.evaluations();
-      if (end == Next::stage_change) result_.status = FlightStatus::time_limit;
-      y.head<3>() = r;
+      evaluations += fly_quasi_steady(y, t, position_tolerance);
       break;
     }
     // A stage boundary: deployment (by time or height) or the end of filling.

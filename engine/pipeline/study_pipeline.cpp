@@ -117,6 +117,17 @@ void mark_interrupted(StudyRun& run, std::uint64_t finished, std::uint64_t plann
   run.result.planned = planned;
 }
 
+// The sample count to grow to when the footprint is not yet as precise as the scenario's
+// target_width asks (0: no more samples).
+std::uint64_t grown_total(const Scenario& s, const Footprint& footprint, std::uint64_t total) {
+  if (!s.study.target_width) return 0;
+  const double width = footprint.widest_relative_width();
+  const auto max_samples = static_cast<std::uint64_t>(s.study.max_samples);
+  if (width > *s.study.target_width && total < max_samples)
+    return next_sample_count(total, width, *s.study.target_width, footprint, max_samples);
+  return 0;
+}
+
 }  // namespace
 
 StudyRun run_pipeline(const SampleModel& model, const World& world, StudyOptions options,
@@ -184,14 +195,8 @@ StudyRun run_pipeline(const SampleModel& model, const World& world, StudyOptions
       mark_interrupted(run, done, total);
       return run;
     }
-    std::uint64_t next = 0;  // no more samples
-    if (flights.gathers() && s.study.target_width) {
-      const double width = footprint.widest_relative_width();
-      const auto max_samples = static_cast<std::uint64_t>(s.study.max_samples);
-      if (width > *s.study.target_width && total < max_samples)
-        next = next_sample_count(total, width, *s.study.target_width, footprint, max_samples);
-    }
-    next = flights.agree(next);
+    const std::uint64_t next =
+        flights.agree(flights.gathers() ? grown_total(s, footprint, total) : 0);
     if (next == 0) break;
     total = next;
   }

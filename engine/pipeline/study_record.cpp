@@ -150,14 +150,15 @@ std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
   // The limits of each body, from its nominal flight in the scenario's medium and wind (for an
   // ensemble, the lowest top among the members).
   double wind_top = std::numeric_limits<double>::infinity();
-  for (const auto& layers : s.wind.member_layers)
+  const auto own_profiles = own_wind_profiles(s.wind.uncertainty);
+  for (const auto& layers : own_profiles)
     if (layers.size() >= 2) wind_top = std::min(wind_top, layers.back().altitude);
   std::vector<RangeWarning> out;
   for (std::size_t b = 0; b < bodies; ++b) {
     const FlightInputs nominal = nominal_flight(s, b);
     const Environment environment{&world.medium, nominal.conditions, &world.wind, world.ground};
     ModelLimits limits = model_limits(nominal.body, environment);
-    if (!s.wind.member_layers.empty()) limits.wind_top = wind_top;
+    if (!own_profiles.empty()) limits.wind_top = wind_top;
     auto counted = [&](std::uint64_t count) {
       return printf_text("%s: %llu of %llu samples (%s %%): ", s.bodies[b].name.c_str(),
                          static_cast<unsigned long long>(count),
@@ -219,7 +220,7 @@ StudyRecord make_record(const Scenario& s, const World& world, const StudyResult
   r.threads = threads;
   r.latitude = s.site.latitude;
   r.longitude = s.site.longitude;
-  r.ground = s.site.ground;
+  r.ground = s.site.ground_level();
   r.release = {s.release.east.nominal(), s.release.north.nominal()};
   r.release_altitude = s.release.altitude.nominal();
   r.release_track = s.release.track.nominal();

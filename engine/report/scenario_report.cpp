@@ -71,18 +71,15 @@ nlohmann::json wind_json(const Scenario& s) {
   for (const auto& l : s.wind.layers)
     layers.push_back({{"altitude", l.altitude}, {"speed", l.speed}, {"from", l.from}});
   nlohmann::json wind{{"layers", layers},
-                      {"uncertainty", {{"model", to_string(s.wind.uncertainty)}}}};
+                      {"uncertainty", {{"model", wind_source_name(s.wind.uncertainty)}}}};
   if (!s.wind.file.empty()) wind["file"] = as_read(s, s.wind.file);
-  auto& wu = wind["uncertainty"];
-  if (s.wind.uncertainty == WindUncertaintyModel::bias ||
-      s.wind.uncertainty == WindUncertaintyModel::layered)
-    wu["speed_sd"] = s.wind.speed_sd;
-  if (s.wind.uncertainty == WindUncertaintyModel::layered)
-    wu["correlation_length"] = s.wind.correlation_length;
-  if (s.wind.uncertainty == WindUncertaintyModel::ensemble) {
-    wu["members"] = nlohmann::json::array();
-    for (const auto& member : s.wind.members) wu["members"].push_back(as_read(s, member));
-  }
+  // The keys of the wind source, as its file writes them back.
+  std::visit(
+      [&](const auto& settings) {
+        settings.echo(wind["uncertainty"],
+                      [&](const std::string& file) { return as_read(s, file); });
+      },
+      s.wind.uncertainty);
   return wind;
 }
 
@@ -177,7 +174,8 @@ nlohmann::json rules_json(const RulesSpec& rules_in) {
 nlohmann::json scenario_json(const Scenario& s) {
   nlohmann::json j;
   j["title"] = s.title;
-  j["site"] = {{"ground", s.site.ground}};
+  j["site"] = nlohmann::json::object();
+  for (const auto& [key, value] : ground_settings(s.site.ground)) j["site"][key] = value;
   if (s.site.latitude) j["site"]["latitude"] = *s.site.latitude;
   if (s.site.longitude) j["site"]["longitude"] = *s.site.longitude;
   j["medium"] = medium_json(s);

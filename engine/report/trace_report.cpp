@@ -138,7 +138,7 @@ nlohmann::json trace_json(const TraceRecord& t) {
   j["integration"] = {
       {"tolerance", t.tolerance}, {"steps", r.steps}, {"evaluations", r.evaluations}};
   nlohmann::json points = nlohmann::json::array();
-  const double ground = t.scenario->site.ground;
+  const double ground = t.scenario->site.ground_level();
   for (const auto& p : t.recorder.points()) {
     points.push_back({{"time", p.point.time},
                       {"east", p.point.position.x()},
@@ -158,7 +158,7 @@ nlohmann::json trace_json(const TraceRecord& t) {
 
 void write_trace_csv(std::ostream& out, const TraceRecord& t) {
   out << "time_s,east_m,north_m,altitude_m,height_m,speed_ms,air_speed_ms,reynolds,mach,stage\n";
-  const double ground = t.scenario->site.ground;
+  const double ground = t.scenario->site.ground_level();
   out << std::setprecision(10);
   for (const auto& p : t.recorder.points()) {
     out << p.point.time << ',' << p.point.position.x() << ',' << p.point.position.y() << ','
@@ -213,7 +213,7 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
     std::vector<std::size_t> rows;
     for (std::size_t i = 0; i < points.size(); i += stride) rows.push_back(i);
     if (rows.back() != points.size() - 1) rows.push_back(points.size() - 1);
-    const double ground = t.scenario->site.ground;
+    const double ground = t.scenario->site.ground_level();
     char line[160];
     for (std::size_t i : rows) {
       const auto& p = points[i];

@@ -5,7 +5,7 @@
 #include <numeric>
 #include <stdexcept>
 
-#include "sampling/random_stream.hpp"
+#include "core/random_stream.hpp"
 
 namespace strewn {
 

@@ -30,8 +30,6 @@ constexpr Bounds kLongitude{-180.0, 180.0, false, false, "a longitude in [-180, 
 constexpr Bounds kOpenUnit{0.0, 1.0, true, true, "a probability strictly between 0 and 1"};
 constexpr Bounds kTemperatureOffset{-100.0, 100.0, false, false, "an offset in [-100, 100] K"};
 constexpr Bounds kCorrelation{-1.0, 1.0, false, false, "a correlation in [-1, 1]"};
-constexpr Bounds kAltitude{-5000.0, 86000.0, false, false,
-                           "an altitude from -5000 to 86000 m above mean sea level"};
 
 class Loader {
  public:
@@ -103,7 +101,14 @@ class Loader {
     if (site.has("latitude") != site.has("longitude"))
       diagnostics_.add(site.key_path(site.has("latitude") ? "longitude" : "latitude"), site.line(),
                        "latitude and longitude go together: give both or neither");
-    scenario_.site.ground = site.number("ground", 0.0, kAltitude);
+    // The ground: the kind its keys choose, read as that kind declares them.
+    const std::size_t kind = choose_ground([&](const char* key) { return site.has(key); });
+    std::array<double, kMaxGroundKeys> values{};
+    const auto keys = ground_keys(kind);
+    for (std::size_t k = 0; k < keys.size(); ++k)
+      values[k] =
+          site.number(keys[k].key, keys[k].bounds, keys[k].required).value_or(keys[k].fallback);
+    scenario_.site.ground = make_ground(kind, std::span<const double>(values.data(), keys.size()));
     site.finish();
   }
 
@@ -248,58 +253,70 @@ class Loader {
       w.file = *file;
       w.layers = read_wind_file(read_from(*file), wind.key_path("file"), wind.line_of("file"));
     }
-    Table u = wind.table("uncertainty");
-    const auto model = u.text("model", enum_names<WindUncertaintyModel>());
-    w.uncertainty = enum_from_name<WindUncertaintyModel>(model.value_or(""))
-                        .value_or(WindUncertaintyModel::none);
-    const bool spread = w.uncertainty == WindUncertaintyModel::bias ||
-                        w.uncertainty == WindUncertaintyModel::layered;
-    if (spread) w.speed_sd = u.number("speed_sd", kNonNegative, true).value_or(0.0);
-    // A bias is one Gaussian vector per sample: two sampled inputs, so that sampling plans and
-    // rank correlations apply to it like to any other input.
-    if (w.uncertainty == WindUncertaintyModel::bias && w.speed_sd > 0.0) {
-      w.bias_east = sampled("wind.bias_east", Uncertain::normal(0.0, w.speed_sd));
-      w.bias_north = sampled("wind.bias_north", Uncertain::normal(0.0, w.speed_sd));
-    }
-    if (w.uncertainty == WindUncertaintyModel::layered)
-      w.correlation_length = u.number("correlation_length", kPositive, true).value_or(1.0);
-    if (w.uncertainty == WindUncertaintyModel::ensemble) {
-      if (const toml::array* members = u.array("members")) {
-        for (std::size_t i = 0; i < members->size(); ++i) {
-          const toml::node* item = members->get(i);
-          const std::string path = u.key_path("members") + "[" + std::to_string(i) + "]";
-          if (!item->is_string()) {
-            diagnostics_.add(path, item, "expected a file name");
-            continue;
-          }
-          const std::string name = item->as_string()->get();
-          w.members.push_back(name);
-          w.member_layers.push_back(read_wind_file(read_from(name), path, line_of(item)));
-        }
-        if (members->empty())
-          diagnostics_.add(u.key_path("members"), u.line_of("members"), "lists no profile");
-      } else {
-        diagnostics_.add(u.key_path("members"), u.line(),
-                         "is required for model \"ensemble\" (a list of wind files)");
-      }
-    }
-    for (const char* key : {"speed_sd", "correlation_length", "members"}) {
-      if (u.has(key) && !u_uses(w.uncertainty, key)) {
-        u.mark(key);
-        diagnostics_.add(u.key_path(key), u.line_of(key),
-                         std::string("is not used by wind uncertainty model \"") +
-                             to_string(w.uncertainty) + "\"");
-      }
-    }
-    u.finish();
+    read_wind_uncertainty(wind.table("uncertainty"));
     wind.finish();
   }
 
-  static bool u_uses(WindUncertaintyModel m, const std::string& key) {
-    if (key == "speed_sd")
-      return m == WindUncertaintyModel::bias || m == WindUncertaintyModel::layered;
-    if (key == "correlation_length") return m == WindUncertaintyModel::layered;
-    return m == WindUncertaintyModel::ensemble;
+  // [wind.uncertainty], read by the wind source its model names (scenario/wind_sources/): the
+  // loader lends it the table, the sampled-input register and the reading of profile files.
+  class WindKeys final : public WindSourceKeys {
+   public:
+    WindKeys(Loader& loader, Table& table, std::string model)
+        : loader_(loader), table_(table), model_(std::move(model)) {}
+    double number(const char* key, const Bounds& bounds, bool required, double fallback) override {
+      return table_.number(key, bounds, required).value_or(fallback);
+    }
+    Uncertain sampled(const char* name, Uncertain input) override {
+      return loader_.sampled(std::string("wind.") + name, input);
+    }
+    WindFiles profile_files(const char* key) override {
+      WindFiles files;
+      const toml::array* list = table_.array(key);
+      if (list == nullptr) {
+        loader_.diagnostics_.add(table_.key_path(key), table_.line(),
+                                 "is required for model \"" + model_ + "\" (a list of wind files)");
+        return files;
+      }
+      for (std::size_t i = 0; i < list->size(); ++i) {
+        const toml::node* item = list->get(i);
+        const std::string path = table_.key_path(key) + "[" + std::to_string(i) + "]";
+        if (!item->is_string()) {
+          loader_.diagnostics_.add(path, item, "expected a file name");
+          continue;
+        }
+        const std::string name = item->as_string()->get();
+        files.names.push_back(name);
+        files.layers.push_back(
+            loader_.read_wind_file(loader_.read_from(name), path, line_of(item)));
+      }
+      if (list->empty())
+        loader_.diagnostics_.add(table_.key_path(key), table_.line_of(key), "lists no profile");
+      return files;
+    }
+
+   private:
+    Loader& loader_;
+    Table& table_;
+    std::string model_;
+  };
+
+  void read_wind_uncertainty(Table u) {
+    const std::vector<std::string> names = wind_source_names();
+    const std::string model = u.text("model", names).value_or(names.front());
+    WindKeys keys(*this, u, model);
+    // An unknown model is reported by text(); its keys are then read as those of the default.
+    auto settings = read_wind_source(model, keys);
+    if (!settings) settings = read_wind_source(names.front(), keys);
+    scenario_.wind.uncertainty = std::move(*settings);
+    for (const auto& [key, used] : wind_source_keys(scenario_.wind.uncertainty)) {
+      if (u.has(key) && !used) {
+        u.mark(key);
+        diagnostics_.add(u.key_path(key), u.line_of(key),
+                         std::string("is not used by wind uncertainty model \"") +
+                             wind_source_name(scenario_.wind.uncertainty) + "\"");
+      }
+    }
+    u.finish();
   }
 
   void read_release(Table release, bool present) {
@@ -623,7 +640,7 @@ class Loader {
 
   void cross_checks() {
     const auto& r = scenario_.release;
-    const double ground = scenario_.site.ground;
+    const double ground = scenario_.site.ground_level();
     // Release below the ground: refused when any real share of the release altitudes is.
     if (r.altitude.probability_below(ground + 1e-9) > kOutsideTolerance ||
         r.altitude.nominal() <= ground)

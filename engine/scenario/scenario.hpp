@@ -18,13 +18,18 @@
 #include "flight/drag.hpp"
 #include "medium/medium.hpp"
 #include "medium/wind.hpp"
+#include "scenario/wind_source.hpp"
 
 namespace strewn {
 
 struct SiteSpec {
   std::optional<double> latitude;   ///< WGS84 degrees of the local origin
   std::optional<double> longitude;  ///< WGS84 degrees
-  double ground = 0.0;              ///< m above mean sea level
+  /// The ground flights end on, of the kind its [site] keys choose (flight/ground.hpp).
+  Grounds ground;
+  /// The ground's lowest altitude, m above mean sea level (for a level ground its one altitude):
+  /// what still takes the ground as one number (DEVELOPERS.md, "A ground").
+  [[nodiscard]] double ground_level() const { return lowest_ground(ground); }
 };
 
 struct MediumSpec {
@@ -38,27 +43,11 @@ struct MediumSpec {
   double sound_speed = std::numeric_limits<double>::infinity();  ///< "uniform", m/s
 };
 
-enum class WindUncertaintyModel { none, bias, layered, ensemble };
-template <>
-struct EnumNames<WindUncertaintyModel> {
-  static constexpr std::array names{std::pair{WindUncertaintyModel::none, "none"},
-                                    std::pair{WindUncertaintyModel::bias, "bias"},
-                                    std::pair{WindUncertaintyModel::layered, "layered"},
-                                    std::pair{WindUncertaintyModel::ensemble, "ensemble"}};
-};
-inline const char* to_string(WindUncertaintyModel model) {
-  return name_of(model);
-}
-
 struct WindSpec {
   std::vector<WindLayer> layers;
   std::string file;  ///< when the layers came from a CSV file
-  WindUncertaintyModel uncertainty = WindUncertaintyModel::none;
-  double speed_sd = 0.0;                        ///< m/s, per horizontal component
-  Uncertain bias_east = 0.0, bias_north = 0.0;  ///< "bias": the wind's offset, m/s (sampled)
-  double correlation_length = 0.0;              ///< m, "layered"
-  std::vector<std::string> members;             ///< "ensemble": profile files, as written
-  std::vector<std::vector<WindLayer>> member_layers;
+  /// The [wind.uncertainty] model, its source's settings (scenario/wind_source.hpp).
+  WindSettings uncertainty;
 };
 
 struct ReleaseSpec {

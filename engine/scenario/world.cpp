@@ -20,7 +20,7 @@ World build_world(const Scenario& s) {
     }
     return Medium::us1976();
   }();
-  return {std::move(medium), WindProfile(s.wind.layers, s.site.ground), LevelGround{s.site.ground}};
+  return {std::move(medium), WindProfile(s.wind.layers, s.site.ground_level()), s.site.ground};
 }
 
 ReleaseState release_state(double altitude, double east, double north, double speed, double track,

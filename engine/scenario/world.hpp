@@ -6,6 +6,7 @@
 #include <vector>
 
 #include "flight/flight.hpp"
+#include "scenario/input_values.hpp"
 #include "scenario/scenario.hpp"
 
 namespace strewn {
@@ -24,28 +25,6 @@ struct FlightInputs {
   Body body;
   MediumConditions conditions;
   ReleaseState release;
-};
-
-/// Where a flight's inputs take their values: every input at its median (nominal), or a sample's
-/// values of the sampled inputs, read by their handles (Uncertain::sampled_index), the others at
-/// their fixed numbers.
-class InputValues {
- public:
-  /// Every input at its median.
-  static InputValues nominal() { return InputValues({}); }
-  /// A sample's values, in the order of Scenario::sampled_inputs.
-  static InputValues of_sample(std::span<const double> values) { return InputValues(values); }
-  /// Refused: the values must outlive the InputValues that reads them.
-  static InputValues of_sample(std::vector<double>&& values) = delete;
-  [[nodiscard]] double operator()(const Uncertain& input) const {
-    const int index = input.sampled_index();
-    return index >= 0 && !values_.empty() ? values_[static_cast<std::size_t>(index)]
-                                          : input.nominal();
-  }
-
- private:
-  explicit InputValues(std::span<const double> values) : values_(values) {}
-  std::span<const double> values_;
 };
 
 /// The one builder of a flight's inputs (nominal, sampled and replayed flights alike): body

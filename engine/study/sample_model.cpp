@@ -3,7 +3,7 @@
 #include <cmath>
 
 #include "core/constants.hpp"
-#include "sampling/random_stream.hpp"
+#include "core/random_stream.hpp"
 
 namespace strewn {
 
@@ -15,7 +15,11 @@ std::uint32_t body_purpose(std::uint32_t base, std::size_t body) {
 }  // namespace
 
 SampleModel::SampleModel(const Scenario& s, const World& world, std::uint64_t samples)
-    : scenario_(s), world_(world), sampler_(s, samples), wind_source_(make_wind_source(s, world)) {
+    : scenario_(s),
+      world_(world),
+      sampler_(s, samples),
+      wind_source_(
+          make_wind_source(s.wind.uncertainty, {world.wind, s.site.ground_level(), s.study.seed})) {
   // The wind's choices first, then the burst's.
   std::visit(
       [&](const auto& source) {

@@ -9,8 +9,8 @@
 #include <vector>
 
 #include "sampling/input_sampler.hpp"
+#include "scenario/wind_source.hpp"
 #include "scenario/world.hpp"
-#include "study/wind_source.hpp"
 
 namespace strewn {
 
@@ -63,7 +63,7 @@ class SampleModel {
   const Scenario& scenario_;
   const World& world_;
   InputSampler sampler_;
-  WindSources wind_source_;  // how a sample's wind is made (study/wind_source.hpp)
+  WindSources wind_source_;  // how a sample's wind is made (scenario/wind_source.hpp)
   std::vector<std::string> choice_names_;
 };
 

@@ -14,9 +14,9 @@
 #include <numeric>
 
 #include "core/errors.hpp"
+#include "core/random_stream.hpp"
 #include "sampling/input_sampler.hpp"
 #include "sampling/plan.hpp"
-#include "sampling/random_stream.hpp"
 
 namespace strewn {
 namespace {

@@ -2,8 +2,10 @@
 // the line and what was expected, all problems in one pass.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <limits>
 #include <string>
+#include <variant>
 #include <vector>
 
 #include "core/errors.hpp"
@@ -72,7 +74,7 @@ TEST(Scenario, GoodFileResolvesEveryInput) {
   const Scenario s = parse_scenario(kGood, "good.toml");
   ASSERT_EQ(s.bodies.size(), 1u);
   EXPECT_EQ(s.bodies[0].name, "bundle");
-  EXPECT_EQ(s.site.ground, 540.0);
+  EXPECT_EQ(s.site.ground_level(), 540.0);
   EXPECT_EQ(s.wind.layers.size(), 2u);
   EXPECT_EQ(s.study.tolerance, 0.05);  // the documented default
   ASSERT_EQ(s.sampled_inputs.size(), 2u);
@@ -166,6 +168,68 @@ TEST(ScenarioBadInput, ModelSpecificKeys) {
   // Linear drag takes no Mach table (docs/scenario.md).
   expect_problem(edit("model = \"area\"", "model = \"stokes\"\nmach_table = [[0.0, 1.0]]"),
                  "body[0].drag.mach_table", 15, "does not apply to drag model \"stokes\"");
+}
+
+// Each wind source reads its own keys of [wind.uncertainty] and the loader names the keys of the
+// other sources as theirs; the keys, defaults and ranges are those of docs/scenario.md,
+// "[wind.uncertainty]".
+TEST(Scenario, WindSourcesReadTheirOwnKeys) {
+  const auto with = [](const std::string& table) {
+    return edit("[release]", "[wind.uncertainty]\n" + table + "\n[release]");
+  };
+  const Scenario layered =
+      parse_scenario(with("model = \"layered\"\nspeed_sd = 1.5\ncorrelation_length = 600.0"), "t");
+  const auto* l = std::get_if<LayeredWind::Settings>(&layered.wind.uncertainty);
+  ASSERT_NE(l, nullptr);
+  EXPECT_EQ(l->speed_sd, 1.5);
+  EXPECT_EQ(l->correlation_length, 600.0);
+  EXPECT_STREQ(wind_source_name(layered.wind.uncertainty), "layered");
+  // The default model is "none", the profile as given.
+  EXPECT_TRUE(
+      std::holds_alternative<ProfileWind::Settings>(parse_scenario(kGood, "t").wind.uncertainty));
+  // The bias is two sampled inputs, each normal with sd speed_sd.
+  const Scenario bias = parse_scenario(with("model = \"bias\"\nspeed_sd = 2.0"), "t");
+  std::vector<std::string> names;
+  for (const auto& input : bias.sampled_inputs) names.push_back(input.name);
+  EXPECT_NE(std::find(names.begin(), names.end(), "wind.bias_east"), names.end());
+  EXPECT_NE(std::find(names.begin(), names.end(), "wind.bias_north"), names.end());
+  const auto& b = std::get<BiasWind::Settings>(bias.wind.uncertainty);
+  EXPECT_EQ(b.east.kind(), DistributionKind::normal);
+  EXPECT_EQ(b.north.nominal(), 0.0);
+
+  const long line = 7;  // the line of the key after "[wind.uncertainty]" in the edited text
+  expect_problem(with("model = \"layered\"\nspeed_sd = 1.5"), "wind.uncertainty.correlation_length",
+                 line - 1, "required");
+  expect_problem(with("model = \"ensemble\""), "wind.uncertainty.members", line - 1,
+                 "is required for model \"ensemble\" (a list of wind files)");
+  expect_problem(with("model = \"ensemble\"\nmembers = []"), "wind.uncertainty.members", line + 1,
+                 "lists no profile");
+  expect_problem(
+      with(
+          "model = \"layered\"\nspeed_sd = 1.5\ncorrelation_length = 600.0\nmembers = [\"a.csv\"]"),
+      "wind.uncertainty.members", line + 3, "is not used by wind uncertainty model \"layered\"");
+  expect_problem(with("model = \"bias\"\nspeed_sd = -1.0"), "wind.uncertainty.speed_sd", line + 1,
+                 "");
+  expect_problem(with("model = \"layerd\""), "wind.uncertainty.model", line,
+                 "did you mean \"layered\"?");
+}
+
+// The ground is chosen and read by its own keys of [site]: a level ground at `ground` m above mean
+// sea level, 0 when absent, in -5000 .. 86000 (docs/scenario.md, "[site]").
+TEST(Scenario, TheGroundIsReadByItsKeys) {
+  const Scenario s = parse_scenario(kGood, "t");
+  ASSERT_TRUE(std::holds_alternative<LevelGround>(s.site.ground));
+  EXPECT_EQ(std::get<LevelGround>(s.site.ground).height(1e4, -3e3), 540.0);
+  const auto settings = ground_settings(s.site.ground);
+  ASSERT_EQ(settings.size(), 1u);
+  EXPECT_STREQ(settings[0].first, "ground");
+  EXPECT_EQ(settings[0].second, 540.0);
+  const Scenario at_sea = parse_scenario(edit("ground = 540.0\n", ""), "t");
+  EXPECT_EQ(at_sea.site.ground_level(), 0.0);
+  expect_problem(edit("ground = 540.0", "ground = 90000.0"), "site.ground", 3,
+                 "an altitude from -5000 to 86000 m above mean sea level");
+  // With no key given, the ground is the default, the last registered (the level).
+  EXPECT_EQ(choose_ground([](const char*) { return false; }), kGroundKinds - 1);
 }
 
 TEST(ScenarioBadInput, MissingSections) {
@@ -295,8 +359,10 @@ drag_area = 2.0
     return 0.0;
   };
   const InputValues sample = InputValues::of_sample(values);
-  EXPECT_EQ(sample(s.wind.bias_east), value_of("wind.bias_east"));
-  EXPECT_EQ(sample(s.wind.bias_north), value_of("wind.bias_north"));
+  EXPECT_EQ(sample(std::get<BiasWind::Settings>(s.wind.uncertainty).east),
+            value_of("wind.bias_east"));
+  EXPECT_EQ(sample(std::get<BiasWind::Settings>(s.wind.uncertainty).north),
+            value_of("wind.bias_north"));
   EXPECT_EQ(sample(s.release.burst_speed), value_of("release.burst.speed"));
 
   const FlightInputs crate = build_flight(s, 0, sample, CanopyState::full);
@@ -349,7 +415,6 @@ void expect_names_round_trip() {
 }
 
 TEST(Scenario, EnumNamesRoundTrip) {
-  expect_names_round_trip<WindUncertaintyModel>();
   expect_names_round_trip<SamplingPlan>();
   expect_names_round_trip<Medium::Kind>();
   expect_names_round_trip<DistributionKind>();
@@ -358,6 +423,8 @@ TEST(Scenario, EnumNamesRoundTrip) {
   expect_names_round_trip<ModelRangeFlag>();
   // The words the scenario reference (docs/scenario.md) gives for the drag models, in its order.
   EXPECT_EQ(drag_model_names(), (std::vector<std::string>{"sphere", "shape", "area", "stokes"}));
+  // ... and for the wind uncertainty models, each a wind source, in its order.
+  EXPECT_EQ(wind_source_names(), (std::vector<std::string>{"none", "bias", "layered", "ensemble"}));
   for (DragModel model = 0; model < kDragModels; ++model)
     EXPECT_EQ(drag_model_named(drag_model_name(model)), model);
   EXPECT_FALSE(drag_model_named("spere").has_value());

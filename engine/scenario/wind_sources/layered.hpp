@@ -1,19 +1,37 @@
 #pragma once
-// Gaussian perturbations of each layer's east and north components, sd `speed_sd`, correlated in
-// altitude by exp(-|dz| / L) (L the correlation length): drawn as sd L n, with L the Cholesky
-// factor of that kernel (factored once) and n standard normals from the sample's own wind
-// stream (Boost.Random). Records the perturbation's mean over the layers as two choices.
+// Gaussian perturbations of each layer's east and north components ([wind.uncertainty] model
+// "layered"), sd `speed_sd`, correlated in altitude by exp(-|dz| / L) (L the
+// `correlation_length`): drawn as sd C n, with C the Cholesky factor of that kernel (factored
+// once) and n standard normals from the sample's own wind stream (Boost.Random). Records the
+// perturbation's mean over the layers as two choices.
 #include <boost/random/normal_distribution.hpp>
 #include <cmath>
 
-#include "sampling/random_stream.hpp"
-#include "study/wind_sources/source.hpp"
+#include "core/random_stream.hpp"
+#include "scenario/wind_sources/source.hpp"
 
 namespace strewn {
 
 class LayeredWind {
  public:
-  static constexpr WindUncertaintyModel model = WindUncertaintyModel::layered;
+  static constexpr const char* name = "layered";
+  static constexpr std::array<const char*, 2> keys{"speed_sd", "correlation_length"};
+  struct Settings {
+    double speed_sd = 0.0;            ///< m/s, per horizontal component
+    double correlation_length = 0.0;  ///< m
+
+    static Settings read(WindSourceKeys& keys) {
+      Settings s;
+      s.speed_sd = keys.number("speed_sd", kNonNegative, true, 0.0);
+      s.correlation_length = keys.number("correlation_length", kPositive, true, 1.0);
+      return s;
+    }
+    void echo(auto& table, auto&& /*as_read*/) const {
+      table["speed_sd"] = speed_sd;
+      table["correlation_length"] = correlation_length;
+    }
+    [[nodiscard]] std::span<const std::vector<WindLayer>> own_profiles() const { return {}; }
+  };
   static constexpr std::array<const char*, 2> choices{"wind.perturbation_east",
                                                       "wind.perturbation_north"};
   struct Scratch {
@@ -22,10 +40,8 @@ class LayeredWind {
     double mean_east = 0.0, mean_north = 0.0;
   };
 
-  LayeredWind(const Scenario& scenario, const World& world)
-      : seed_(scenario.study.seed),
-        speed_sd_(scenario.wind.speed_sd),
-        base_(perturbable_profile(scenario, world)) {
+  LayeredWind(const Settings& settings, const WindBase& base)
+      : seed_(base.seed), speed_sd_(settings.speed_sd), base_(perturbable_profile(base)) {
     // Exponential correlation in altitude between the layers' perturbations, factored once.
     const auto& z = base_.layer_altitudes();
     const auto n = static_cast<Eigen::Index>(z.size());
@@ -34,7 +50,7 @@ class LayeredWind {
       for (Eigen::Index j = 0; j < n; ++j)
         kernel(i, j) =
             std::exp(-std::abs(z[static_cast<std::size_t>(i)] - z[static_cast<std::size_t>(j)]) /
-                     scenario.wind.correlation_length);
+                     settings.correlation_length);
     factor_ = Eigen::LLT<Eigen::MatrixXd>(kernel).matrixL();
   }
   [[nodiscard]] Scratch scratch() const {
