@@ -17,8 +17,10 @@
 #include <algorithm>
 #include <array>
 #include <cstddef>
-#include <functional>
+#include <optional>
 #include <span>
+#include <string>
+#include <string_view>
 #include <utility>
 #include <variant>
 #include <vector>
@@ -32,54 +34,106 @@ namespace strewn {
 /// none, is the default and stays last.
 using Grounds = std::variant<LevelGround>;
 
-namespace ground_detail {
-template <std::size_t i>
-using GroundAt = std::variant_alternative_t<i, Grounds>;
-template <std::size_t... i>
-constexpr std::size_t max_keys(std::index_sequence<i...>) {
-  return std::max({std::size_t{0}, GroundAt<i>::keys.size()...});
-}
-}  // namespace ground_detail
-inline constexpr std::size_t kGroundKinds = std::variant_size_v<Grounds>;
+/// The kinds of ground of a variant (Grounds; tests give their own): their keys, the choice of
+/// a kind from the keys a [site] table gives, and the ground built from its keys' values.
+template <class Variant>
+struct GroundKinds {
+  static constexpr std::size_t count = std::variant_size_v<Variant>;
+  template <std::size_t i>
+  using At = std::variant_alternative_t<i, Variant>;
+
+  /// The keys of kind `kind` (its index in the variant).
+  static std::span<const GroundKey> keys(std::size_t kind) {
+    std::span<const GroundKey> out;
+    [&]<std::size_t... i>(std::index_sequence<i...>) {
+      ((kind == i ? (out = At<i>::keys, 0) : 0), ...);
+    }
+    (std::make_index_sequence<count>{});
+    return out;
+  }
+  static const char* name(std::size_t kind) {
+    const char* out = "";
+    [&]<std::size_t... i>(std::index_sequence<i...>) {
+      ((kind == i ? (out = At<i>::name, 0) : 0), ...);
+    }
+    (std::make_index_sequence<count>{});
+    return out;
+  }
+  /// The most keys any kind reads.
+  static constexpr std::size_t max_keys() {
+    return [&]<std::size_t... i>(std::index_sequence<i...>) {
+      return std::max({std::size_t{0}, At<i>::keys.size()...});
+    }
+    (std::make_index_sequence<count>{});
+  }
+  /// Exactly one kind, the last, requires no key: it is the default, and every other kind can be
+  /// chosen.
+  static constexpr bool default_is_last() {
+    auto requires_none = [](const auto& keys) {
+      return std::none_of(keys.begin(), keys.end(), [](const GroundKey& k) { return k.required; });
+    };
+    return [&]<std::size_t... i>(std::index_sequence<i...>) {
+      return ((requires_none(At<i>::keys) == (i + 1 == count)) && ...);
+    }
+    (std::make_index_sequence<count>{});
+  }
+  /// The first kind whose required keys are all present.
+  template <class HasKey>
+  static std::size_t choose(HasKey&& has_key) {
+    for (std::size_t kind = 0; kind < count; ++kind) {
+      const auto k = keys(kind);
+      if (std::all_of(k.begin(), k.end(),
+                      [&](const GroundKey& key) { return !key.required || has_key(key.key); }))
+        return kind;
+    }
+    return count - 1;
+  }
+  /// The ground of kind `kind` from its keys' values, in the order of its keys.
+  static Variant make(std::size_t kind, std::span<const double> values) {
+    std::optional<Variant> ground;
+    [&]<std::size_t... i>(std::index_sequence<i...>) {
+      ((kind == i ? (ground.emplace(std::in_place_index<i>, values), 0) : 0), ...);
+    }
+    (std::make_index_sequence<count>{});
+    return std::move(ground.value());
+  }
+  /// The keys present that kind `kind` does not read, each with the kind of ground it belongs to
+  /// and that kind's required keys that are missing (the words of a message).
+  template <class HasKey>
+  static std::vector<std::pair<std::string, std::string>> keys_of_others(std::size_t kind,
+                                                                         HasKey&& has_key) {
+    std::vector<std::pair<std::string, std::string>> out;
+    const auto own = keys(kind);
+    auto read_here = [&](const char* key) {
+      return std::any_of(own.begin(), own.end(),
+                         [&](const GroundKey& k) { return std::string_view(k.key) == key; });
+    };
+    for (std::size_t other = 0; other < count; ++other) {
+      if (other == kind) continue;
+      for (const GroundKey& k : keys(other)) {
+        if (!has_key(k.key) || read_here(k.key) ||
+            std::any_of(out.begin(), out.end(), [&](const auto& o) { return o.first == k.key; }))
+          continue;
+        std::string missing;
+        for (const GroundKey& r : keys(other))
+          if (r.required && !has_key(r.key))
+            missing += (missing.empty() ? "" : ", ") + std::string(r.key);
+        out.emplace_back(k.key, "is a key of ground \"" + std::string(name(other)) + "\"" +
+                                    (missing.empty() ? "" : ", which also needs " + missing) +
+                                    ", not of the ground \"" + name(kind) +
+                                    "\" this [site] describes");
+      }
+    }
+    return out;
+  }
+};
+
+using GroundKindsOf = GroundKinds<Grounds>;
+inline constexpr std::size_t kGroundKinds = GroundKindsOf::count;
 /// The most keys any ground reads.
-inline constexpr std::size_t kMaxGroundKeys =
-    ground_detail::max_keys(std::make_index_sequence<kGroundKinds>{});
-static_assert(ground_detail::GroundAt<kGroundKinds - 1>::keys.end() ==
-                  std::find_if(ground_detail::GroundAt<kGroundKinds - 1>::keys.begin(),
-                               ground_detail::GroundAt<kGroundKinds - 1>::keys.end(),
-                               [](const GroundKey& k) { return k.required; }),
-              "the last registered ground is the default: it may require no key");
-
-/// The keys of ground kind `kind` (its index in Grounds).
-[[nodiscard]] inline std::span<const GroundKey> ground_keys(std::size_t kind) {
-  std::span<const GroundKey> keys;
-  [&]<std::size_t... i>(std::index_sequence<i...>) {
-    ((kind == i ? (keys = ground_detail::GroundAt<i>::keys, 0) : 0), ...);
-  }
-  (std::make_index_sequence<kGroundKinds>{});
-  return keys;
-}
-
-/// The kind of ground a [site] table describes, given which of its keys are present.
-[[nodiscard]] inline std::size_t choose_ground(const std::function<bool(const char*)>& has_key) {
-  for (std::size_t kind = 0; kind < kGroundKinds; ++kind) {
-    const auto keys = ground_keys(kind);
-    if (std::all_of(keys.begin(), keys.end(),
-                    [&](const GroundKey& k) { return !k.required || has_key(k.key); }))
-      return kind;
-  }
-  return kGroundKinds - 1;
-}
-
-/// The ground of kind `kind` from its keys' values, in the order of its keys.
-[[nodiscard]] inline Grounds make_ground(std::size_t kind, std::span<const double> values) {
-  Grounds ground;
-  [&]<std::size_t... i>(std::index_sequence<i...>) {
-    ((kind == i ? (ground.emplace<i>(values), 0) : 0), ...);
-  }
-  (std::make_index_sequence<kGroundKinds>{});
-  return ground;
-}
+inline constexpr std::size_t kMaxGroundKeys = GroundKindsOf::max_keys();
+static_assert(GroundKindsOf::default_is_last(),
+              "exactly one registered ground, the last, may require no key: it is the default");
 
 /// A ground's keys with their values (what a scenario report writes back).
 [[nodiscard]] inline std::vector<std::pair<const char*, double>> ground_settings(

@@ -101,14 +101,21 @@ class Loader {
     if (site.has("latitude") != site.has("longitude"))
       diagnostics_.add(site.key_path(site.has("latitude") ? "longitude" : "latitude"), site.line(),
                        "latitude and longitude go together: give both or neither");
-    // The ground: the kind its keys choose, read as that kind declares them.
-    const std::size_t kind = choose_ground([&](const char* key) { return site.has(key); });
+    // The ground: the kind its keys choose, read as that kind declares them; the keys of other
+    // kinds are named as theirs.
+    const auto has = [&](const char* key) { return site.has(key); };
+    const std::size_t kind = GroundKindsOf::choose(has);
     std::array<double, kMaxGroundKeys> values{};
-    const auto keys = ground_keys(kind);
+    const auto keys = GroundKindsOf::keys(kind);
     for (std::size_t k = 0; k < keys.size(); ++k)
       values[k] =
           site.number(keys[k].key, keys[k].bounds, keys[k].required).value_or(keys[k].fallback);
-    scenario_.site.ground = make_ground(kind, std::span<const double>(values.data(), keys.size()));
+    for (const auto& [key, message] : GroundKindsOf::keys_of_others(kind, has)) {
+      site.mark(key);
+      diagnostics_.add(site.key_path(key), site.line_of(key), message);
+    }
+    scenario_.site.ground =
+        GroundKindsOf::make(kind, std::span<const double>(values.data(), keys.size()));
     site.finish();
   }
 
@@ -303,11 +310,9 @@ class Loader {
   void read_wind_uncertainty(Table u) {
     const std::vector<std::string> names = wind_source_names();
     const std::string model = u.text("model", names).value_or(names.front());
+    // An unknown model is reported by text() and read as the default ("none").
     WindKeys keys(*this, u, model);
-    // An unknown model is reported by text(); its keys are then read as those of the default.
-    auto settings = read_wind_source(model, keys);
-    if (!settings) settings = read_wind_source(names.front(), keys);
-    scenario_.wind.uncertainty = std::move(*settings);
+    scenario_.wind.uncertainty = read_wind_source(model, keys).value();
     for (const auto& [key, used] : wind_source_keys(scenario_.wind.uncertainty)) {
       if (u.has(key) && !used) {
         u.mark(key);

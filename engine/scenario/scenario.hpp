@@ -26,7 +26,7 @@ struct SiteSpec {
   std::optional<double> latitude;   ///< WGS84 degrees of the local origin
   std::optional<double> longitude;  ///< WGS84 degrees
   /// The ground flights end on, of the kind its [site] keys choose (flight/ground.hpp).
-  Grounds ground;
+  Grounds ground = LevelGround{};
   /// The ground's lowest altitude, m above mean sea level (for a level ground its one altitude):
   /// what still takes the ground as one number (DEVELOPERS.md, "A ground").
   [[nodiscard]] double ground_level() const { return lowest_ground(ground); }

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cstring>
+#include <stdexcept>
 
 namespace strewn {
 
@@ -31,13 +32,40 @@ constexpr bool settings_follow_sources(std::index_sequence<i...>) {
 }
 static_assert(settings_follow_sources(std::make_index_sequence<kSources>{}));
 
+// The keys lent to a source, which may read only the keys it declares: the loader names every
+// other source's keys as theirs, and `echo` writes back what `keys` lists.
+template <class Source>
+class DeclaredKeys final : public WindSourceKeys {
+ public:
+  explicit DeclaredKeys(WindSourceKeys& keys) : keys_(keys) {}
+  double number(const char* key, const Bounds& bounds, bool required, double fallback) override {
+    return keys_.number(declared(key), bounds, required, fallback);
+  }
+  Uncertain sampled(const char* name, Uncertain input) override {
+    return keys_.sampled(name, input);
+  }
+  WindFiles profile_files(const char* key) override { return keys_.profile_files(declared(key)); }
+
+ private:
+  static const char* declared(const char* key) {
+    if (std::none_of(Source::keys.begin(), Source::keys.end(),
+                     [&](const char* k) { return std::strcmp(k, key) == 0; }))
+      throw std::logic_error(std::string("wind source \"") + Source::name + "\" reads key \"" +
+                             key + "\" that its `keys` does not declare");
+    return key;
+  }
+  WindSourceKeys& keys_;
+};
+
 template <std::size_t... i>
 std::optional<WindSettings> read(const std::string& name, WindSourceKeys& keys,
                                  std::index_sequence<i...>) {
   std::optional<WindSettings> settings;
   auto read_one = [&]<std::size_t n>() {
-    if (!settings && name == SourceAt<n>::name)
-      settings.emplace(std::in_place_index<n>, SourceAt<n>::Settings::read(keys));
+    if (!settings && name == SourceAt<n>::name) {
+      DeclaredKeys<SourceAt<n>> declared(keys);
+      settings.emplace(std::in_place_index<n>, SourceAt<n>::Settings::read(declared));
+    }
   };
   (read_one.template operator()<i>(), ...);
   return settings;
@@ -50,6 +78,7 @@ WindSources make(const WindSettings& settings, const WindBase& base, std::index_
     if (settings.index() == n) source.emplace(std::in_place_index<n>, std::get<n>(settings), base);
   };
   (make_one.template operator()<i>(), ...);
+  if (!source) throw std::logic_error("make_wind_source: settings of no registered source");
   return std::move(*source);
 }
 }  // namespace

@@ -18,8 +18,8 @@ SampleModel::SampleModel(const Scenario& s, const World& world, std::uint64_t sa
     : scenario_(s),
       world_(world),
       sampler_(s, samples),
-      wind_source_(
-          make_wind_source(s.wind.uncertainty, {world.wind, s.site.ground_level(), s.study.seed})) {
+      wind_source_(make_wind_source(s.wind.uncertainty,
+                                    {&world.wind, s.site.ground_level(), s.study.seed})) {
   // The wind's choices first, then the burst's.
   std::visit(
       [&](const auto& source) {

@@ -15,12 +15,47 @@ import pathlib
 import re
 import sys
 
-SCOPE = re.compile(r"\b(namespace|class|struct|union|enum)\b")
+SCOPE = re.compile(r"^(extern\b|(namespace|class|struct|union|enum)\b)")
 CONTROL = re.compile(r"^\s*(if|for|while|switch|catch|do|else|return)\b")
+# What may follow a function's parameter list before its body.
+QUALIFIERS = re.compile(r"(\s|const\b|noexcept\b(\s*\([^()]*\))?|override\b|final\b|mutable\b|"
+                        r"volatile\b|&&?|->[^;{}]*|requires\b[^;{}]*)*")
+
+
+def without_templates(header: str) -> str:
+    """The header with every template parameter list `template <...>` removed (balanced)."""
+    while True:
+        m = re.search(r"\btemplate\s*<", header)
+        if not m:
+            return header
+        depth, j = 1, m.end()
+        while j < len(header) and depth:
+            depth += {"<": 1, ">": -1}.get(header[j], 0)
+            j += 1
+        header = header[:m.start()] + header[j:]
+
+
+def kind_of(header: str) -> str:
+    """What the brace after `header` opens: "scope", "function", "initializer" (a member's
+    brace initializer inside a constructor's initializer list) or "block"."""
+    text = without_templates(header).strip()
+    text = re.sub(r"\[\[[^\]]*\]\]", " ", text).strip()  # attributes
+    if SCOPE.match(text):
+        return "scope"
+    if ")" not in text or CONTROL.match(text):
+        return "block"
+    if QUALIFIERS.fullmatch(text[text.rfind(")") + 1:]):
+        return "function"
+    if re.search(r"\)(\s|const\b|noexcept\b)*:(?!:)", text):
+        # A constructor's initializer list: a brace right after a name initializes a member.
+        return "initializer" if re.search(r"[\w>]\s*$", text) else "function"
+    return "block"
 
 
 def blank(text: str) -> str:
-    """Comments, strings and character literals as spaces, the newlines kept."""
+    """Comments, strings, character literals and preprocessor lines as spaces, the newlines
+    kept."""
+    text = re.sub(r"(?m)^[ \t]*#.*$", lambda m: " " * len(m.group(0)), text)
     out, i, n = [], 0, len(text)
     while i < n:
         c = text[i]
@@ -58,22 +93,20 @@ def functions(text: str):
         c = code[i]
         if c == "{":
             header = code[header_start:i]
-            in_scope = all(stack)
-            if in_scope and SCOPE.search(header) and "(" not in header.split("=")[0][-200:]:
-                stack.append(True)
-            elif in_scope and ")" in header and not CONTROL.match(header.strip()) \
-                    and not header.rstrip().endswith("=") and "=" not in header.strip()[:1]:
-                # A function body: find its matching brace.
+            kind = kind_of(header) if all(stack) else "block"
+            if kind in ("function", "initializer"):
                 depth, j = 1, i + 1
                 while j < len(code) and depth:
                     depth += {"{": 1, "}": -1}.get(code[j], 0)
                     j += 1
+                if kind == "initializer":
+                    i = j  # the header goes on to the body's brace
+                    continue
                 sig = header_start + len(header) - len(header.lstrip())
                 found.append((code.count("\n", 0, sig) + 1, code.count("\n", 0, j) + 1))
                 i, header_start = j, j
                 continue
-            else:
-                stack.append(False)
+            stack.append(kind == "scope")
             header_start = i + 1
         elif c == "}":
             if stack:
@@ -87,28 +120,53 @@ def functions(text: str):
 
 
 def self_test() -> int:
-    """Made-up code: a namespace, a class with an inline member, a free function holding a
-    lambda, an if block and a string with braces, a struct with an initializer."""
+    """Made-up code whose functions are known: a namespace, a class with an inline member and a
+    constructor with brace initializers, a free function holding a lambda, a block and a string
+    with braces, a template with a default argument, a table sized by sizeof, an extern "C"
+    block, preprocessor lines and an operator()."""
     body = "\n".join("  x += 1;" for _ in range(5))
-    text = (
-        "namespace a {\n"                       # 1
-        "struct S { int v = {1}; };\n"          # 2
-        "class C {\n"                           # 3
-        " public:\n"                            # 4
-        "  int f() const {\n"                   # 5
-        "    return 1;\n"                       # 6
-        "  }\n"                                 # 7
-        "};\n"                                  # 8
-        "// says \"{\" in a comment\n"           # 9
-        "void g(int x) {\n"                     # 10
-        "  auto l = [&](int y) { return y; };\n"  # 11
-        "  if (x) { x = 2; }\n"                 # 12
-        "  const char* s = \"}{\";\n"            # 13
-        + body + "\n"                           # 14-18
-        "}\n"                                   # 19
-        "}  // namespace a\n")
+    text = "\n".join([
+        "namespace a {",                         # 1
+        "struct S { int v = {1}; };",            # 2
+        "class C : public B<decltype(f(1))> {",  # 3
+        " public:",                              # 4
+        "  int f() const {",                     # 5
+        "    return 1;",                         # 6
+        "  }",                                   # 7
+        "  C(int x) : a_{x}, b_(x) {",           # 8
+        "  }",                                   # 9
+        "  int a_, b_;",                         # 10
+        "};",                                    # 11
+        "// says \"{\" in a comment",             # 12
+        "void g(int x) {",                       # 13
+        "  auto l = [&](int y) { return y; };",  # 14
+        "  if (x) { x = 2; }",                   # 15
+        "  const char* s = \"}{\";",              # 16
+        body,                                    # 17-21
+        "}",                                     # 22
+        "template <class T = int>",              # 23
+        "T h() {",                               # 24
+        "  return T{};",                         # 25
+        "}",                                     # 26
+        "std::array<int, sizeof(long)> t{1, 2};",  # 27
+        "extern \"C\" {",                         # 28
+        "#ifdef X",                              # 29
+        "int k(int) {",                          # 30
+        "#if Y > 1",                             # 31
+        "  return 1;",                           # 32
+        "#endif",                                # 33
+        "  return 0;",                           # 34
+        "}",                                     # 35
+        "}",                                     # 36
+        "struct D {",                            # 37
+        "  int operator()(int v) const noexcept { return v; }",  # 38
+        "  D() : m_{0} {}",                      # 39
+        "  int m_;",                             # 40
+        "};",                                    # 41
+        "}  // namespace a",                     # 42
+    ])
     got = functions(text)
-    want = [(5, 7), (10, 19)]
+    want = [(5, 7), (8, 9), (13, 22), (23, 26), (30, 35), (38, 38), (39, 39)]
     print(f"self-test: found {got}, expected {want}")
     return 0 if got == want else 1
 
@@ -130,7 +188,7 @@ def main() -> int:
                 continue
             # The comment block above the signature.
             above, k = [], first - 2
-            while k >= 0 and (lines[k].strip().startswith("//") or lines[k].strip().startswith("template")):
+            while k >= 0 and lines[k].strip().startswith(("//", "template", "#")):
                 above.append(lines[k]); k -= 1
             reason = any("long because" in line.lower() for line in above)
             where = f"{source.relative_to(engine.parent)}:{first}"

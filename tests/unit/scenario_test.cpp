@@ -3,7 +3,10 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <fstream>
 #include <limits>
+#include <set>
+#include <span>
 #include <string>
 #include <variant>
 #include <vector>
@@ -11,8 +14,10 @@
 #include "core/errors.hpp"
 #include "core/text.hpp"
 #include "flight/model_range.hpp"
+#include "report/scenario_report.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/world.hpp"
+#include "support.hpp"
 
 namespace strewn {
 namespace {
@@ -187,15 +192,21 @@ TEST(Scenario, WindSourcesReadTheirOwnKeys) {
   // The default model is "none", the profile as given.
   EXPECT_TRUE(
       std::holds_alternative<ProfileWind::Settings>(parse_scenario(kGood, "t").wind.uncertainty));
-  // The bias is two sampled inputs, each normal with sd speed_sd.
+  // The bias is two sampled inputs, each normal with sd speed_sd, registered where [wind] is read:
+  // after the medium's and before the release's and the bodies' (the order of the columns and of
+  // the sampling plan's dimensions, so of a seed's results).
   const Scenario bias = parse_scenario(with("model = \"bias\"\nspeed_sd = 2.0"), "t");
   std::vector<std::string> names;
   for (const auto& input : bias.sampled_inputs) names.push_back(input.name);
-  EXPECT_NE(std::find(names.begin(), names.end(), "wind.bias_east"), names.end());
-  EXPECT_NE(std::find(names.begin(), names.end(), "wind.bias_north"), names.end());
+  EXPECT_EQ(names, (std::vector<std::string>{"wind.bias_east", "wind.bias_north", "bundle.mass",
+                                             "bundle.drag.cd"}));
   const auto& b = std::get<BiasWind::Settings>(bias.wind.uncertainty);
-  EXPECT_EQ(b.east.kind(), DistributionKind::normal);
-  EXPECT_EQ(b.north.nominal(), 0.0);
+  EXPECT_EQ(b.east.sampled_index(), 0);
+  EXPECT_EQ(b.north.sampled_index(), 1);
+  // One standard deviation above the mean at the normal's 0.841344746 quantile (standard normal
+  // table: Phi(1) = 0.8413447460685429).
+  EXPECT_NEAR(b.east.quantile(0.8413447460685429), 2.0, 1e-9);
+  EXPECT_NEAR(b.north.quantile(1.0 - 0.8413447460685429), -2.0, 1e-9);
 
   const long line = 7;  // the line of the key after "[wind.uncertainty]" in the edited text
   expect_problem(with("model = \"layered\"\nspeed_sd = 1.5"), "wind.uncertainty.correlation_length",
@@ -209,10 +220,47 @@ TEST(Scenario, WindSourcesReadTheirOwnKeys) {
           "model = \"layered\"\nspeed_sd = 1.5\ncorrelation_length = 600.0\nmembers = [\"a.csv\"]"),
       "wind.uncertainty.members", line + 3, "is not used by wind uncertainty model \"layered\"");
   expect_problem(with("model = \"bias\"\nspeed_sd = -1.0"), "wind.uncertainty.speed_sd", line + 1,
-                 "");
+                 "zero or more");
   expect_problem(with("model = \"layerd\""), "wind.uncertainty.model", line,
                  "did you mean \"layered\"?");
+  // An unknown model is read as the default, "none": the keys of the others are named as theirs.
+  expect_problem(with("model = \"layerd\"\nspeed_sd = 1.5"), "wind.uncertainty.speed_sd", line + 1,
+                 "is not used by wind uncertainty model \"none\"");
 }
+
+// What `check --json` writes back of each wind source is exactly the keys the source declares.
+TEST(Scenario, EachWindSourceWritesBackItsKeys) {
+  const test::ScratchFolder folder("wind-echo");
+  const std::string member = (folder / "member.csv").string();
+  std::ofstream(member) << "altitude_m,speed_ms,from_deg\n540,3,240\n1500,8,255\n";
+  const std::vector<std::pair<std::string, std::string>> tables{
+      {"bias", "speed_sd = 2.0"},
+      {"layered", "speed_sd = 1.5\ncorrelation_length = 600.0"},
+      {"ensemble", "members = [\"member.csv\", \"member.csv\"]"}};
+  for (const auto& [model, keys] : tables) {
+    const Scenario s = parse_scenario(
+        edit("[release]", "[wind.uncertainty]\nmodel = \"" + model + "\"\n" + keys + "\n[release]"),
+        (folder / "s.toml").string());
+    ASSERT_STREQ(wind_source_name(s.wind.uncertainty), model.c_str());
+    std::set<std::string> declared, written;
+    for (const auto& [key, own] : wind_source_keys(s.wind.uncertainty))
+      if (own) declared.insert(key);
+    const auto json = scenario_json(s);
+    for (const auto& [key, value] : json["wind"]["uncertainty"].items())
+      if (key != "model") written.insert(key);
+    EXPECT_EQ(written, declared) << model;
+    EXPECT_FALSE(declared.empty()) << model;
+  }
+}
+
+// A made-up kind of ground for the choice among kinds: a hill of two required keys.
+struct TestHill {
+  static constexpr const char* name = "test hill";
+  static constexpr std::array<GroundKey, 2> keys{
+      {{"hill_top", kAltitude, true, 0.0}, {"hill_width", kPositive, true, 0.0}}};
+  double top = 0.0, width = 0.0;
+  explicit TestHill(std::span<const double> values) : top(values[0]), width(values[1]) {}
+};
 
 // The ground is chosen and read by its own keys of [site]: a level ground at `ground` m above mean
 // sea level, 0 when absent, in -5000 .. 86000 (docs/scenario.md, "[site]").
@@ -228,8 +276,33 @@ TEST(Scenario, TheGroundIsReadByItsKeys) {
   EXPECT_EQ(at_sea.site.ground_level(), 0.0);
   expect_problem(edit("ground = 540.0", "ground = 90000.0"), "site.ground", 3,
                  "an altitude from -5000 to 86000 m above mean sea level");
-  // With no key given, the ground is the default, the last registered (the level).
-  EXPECT_EQ(choose_ground([](const char*) { return false; }), kGroundKinds - 1);
+}
+
+// Choosing among kinds of ground by the keys [site] gives (the rule of flight/ground.hpp), on a
+// made-up pair: a hill that requires `hill_top` and `hill_width`, before the level ground.
+TEST(Scenario, AGroundIsChosenByItsRequiredKeys) {
+  using Pair = std::variant<TestHill, LevelGround>;
+  static_assert(GroundKinds<Pair>::default_is_last());
+  static_assert(!GroundKinds<std::variant<LevelGround, TestHill>>::default_is_last());
+  const auto given = [](std::set<std::string> keys) {
+    return [keys](const char* key) { return keys.count(key) > 0; };
+  };
+  EXPECT_EQ(GroundKinds<Pair>::choose(given({})), 1u);
+  EXPECT_EQ(GroundKinds<Pair>::choose(given({"ground"})), 1u);
+  EXPECT_EQ(GroundKinds<Pair>::choose(given({"hill_top"})), 1u);
+  EXPECT_EQ(GroundKinds<Pair>::choose(given({"hill_top", "hill_width"})), 0u);
+  const std::array<double, 2> hill_values{900.0, 250.0};
+  const Pair hill = GroundKinds<Pair>::make(0, hill_values);
+  EXPECT_EQ(std::get<TestHill>(hill).top, 900.0);
+  EXPECT_EQ(std::get<TestHill>(hill).width, 250.0);
+  // A hill's key given without its partner is named as the hill's, with what it lacks.
+  const auto others = GroundKinds<Pair>::keys_of_others(1, given({"hill_top"}));
+  ASSERT_EQ(others.size(), 1u);
+  EXPECT_EQ(others[0].first, "hill_top");
+  EXPECT_NE(others[0].second.find("is a key of ground \"test hill\", which also needs hill_width"),
+            std::string::npos)
+      << others[0].second;
+  EXPECT_TRUE(GroundKinds<Pair>::keys_of_others(0, given({"hill_top", "hill_width"})).empty());
 }
 
 TEST(ScenarioBadInput, MissingSections) {

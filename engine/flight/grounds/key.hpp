@@ -9,7 +9,6 @@ struct GroundKey {
   Bounds bounds;
   bool required;    ///< a ground is chosen when all its required keys are given
   double fallback;  ///< the value when an optional key is absent
-  const char* meaning;
 };
 
 }  // namespace strewn

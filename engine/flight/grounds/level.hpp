@@ -11,8 +11,8 @@ namespace strewn {
 struct LevelGround {
   static constexpr const char* name = "level";
   /// Its keys of [site]; none required, so a scenario without them is on level ground.
-  static constexpr std::array<GroundKey, 1> keys{
-      {{"ground", kAltitude, false, 0.0, "the ground's altitude, m above mean sea level"}}};
+  /// `ground`: the ground's altitude, m above mean sea level.
+  static constexpr std::array<GroundKey, 1> keys{{{"ground", kAltitude, false, 0.0}}};
   /// The ground is one altitude: events on it are located as altitude levels (events.hpp).
   static constexpr bool level = true;
 

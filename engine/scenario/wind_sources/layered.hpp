@@ -4,6 +4,8 @@
 // `correlation_length`): drawn as sd C n, with C the Cholesky factor of that kernel (factored
 // once) and n standard normals from the sample's own wind stream (Boost.Random). Records the
 // perturbation's mean over the layers as two choices.
+#include <Eigen/Cholesky>
+#include <Eigen/Core>
 #include <boost/random/normal_distribution.hpp>
 #include <cmath>
 

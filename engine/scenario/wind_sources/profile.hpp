@@ -17,7 +17,7 @@ class ProfileWind {
   static constexpr std::array<const char*, 0> choices{};
   struct Scratch {};
 
-  ProfileWind(const Settings& /*settings*/, const WindBase& base) : wind_(base.profile) {}
+  ProfileWind(const Settings& /*settings*/, const WindBase& base) : wind_(*base.profile) {}
   [[nodiscard]] Scratch scratch() const { return {}; }
   [[nodiscard]] const WindProfile& wind(std::uint64_t /*sample*/, const InputValues& /*values*/,
                                         Scratch& /*scratch*/) const {

@@ -9,7 +9,7 @@
 //     void echo(auto& table, auto&& as_read) const;      //   writes them back (scenario report)
 //     std::span<const std::vector<WindLayer>> own_profiles() const;  // flown instead of the
 //   };                                                   //   scenario's layers (none: empty)
-//   Source(const Settings&, const WindBase&);            // checks and precomputes, once a study
+//   Source(const Settings&, const WindBase&);            // precomputes, once a study
 //   static constexpr std::array<const char*, N> choices; // its random choices' column names
 //   struct Scratch;                                      // per-thread storage (no allocation per
 //   Scratch scratch() const;                             //   sample once made)
@@ -17,8 +17,6 @@
 //   void choices_of(const Scratch&, std::span<double> out) const;  // after wind(), N numbers
 // A sampled input of a source (the bias's east and north offsets) is registered while its keys
 // are read (WindSourceKeys::sampled) and read back by its handle through InputValues.
-#include <Eigen/Cholesky>
-#include <Eigen/Core>
 #include <array>
 #include <cstdint>
 #include <span>
@@ -59,7 +57,7 @@ class WindSourceKeys {
 /// What a source is built on, once per study: the scenario's wind profile (which outlives the
 /// source), the ground's altitude (the profiles' power-law floor) and the study's seed.
 struct WindBase {
-  const WindProfile& profile;
+  const WindProfile* profile = nullptr;
   double ground = 0.0;  ///< m above mean sea level
   std::uint64_t seed = 0;
 };
@@ -67,7 +65,7 @@ struct WindBase {
 /// The profile that perturbations apply to: the scenario's, or for calm air one calm layer at
 /// the ground (a perturbation needs a layer to act on).
 inline WindProfile perturbable_profile(const WindBase& base) {
-  if (!base.profile.calm()) return base.profile;
+  if (!base.profile->calm()) return *base.profile;
   return WindProfile({{base.ground, 0.0, 0.0}}, base.ground);
 }
 
