@@ -21,8 +21,9 @@ class InputValues {
   static InputValues of_sample(std::vector<double>&& values) = delete;
   [[nodiscard]] double operator()(const Uncertain& input) const {
     const int index = input.sampled_index();
-    return index >= 0 && !values_.empty() ? values_[static_cast<std::size_t>(index)]
-                                          : input.nominal();
+    if (index >= 0 && !values_.empty()) return values_[static_cast<std::size_t>(index)];
+    // A fixed number is read as it is, without the quantile function (a flight reads a dozen).
+    return input.is_fixed() ? input.p1() : input.nominal();
   }
 
  private:
