@@ -27,6 +27,7 @@
 #include "core/version.hpp"
 #include "report/atmosphere_table.hpp"
 #include "report/footprint_report.hpp"
+#include "report/json_text.hpp"
 #include "report/report_files.hpp"
 #include "report/scenario_report.hpp"
 #include "report/trace_report.hpp"
@@ -50,7 +51,7 @@ int run_trace(const TraceArguments& a, std::ostream& out) {
   const World world = build_world(scenario);
   const TraceRecord trace = trace_body(scenario, world, a.body);
   if (a.json)
-    out << trace_json(trace).dump(2) << '\n';
+    out << json_text(trace_json(trace)) << '\n';
   else if (a.csv)
     write_trace_csv(out, trace);
   else
@@ -232,7 +233,7 @@ int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& ou
          {"trajectory_columns", {"time", "east", "north", "altitude"}},
          {"trajectory", points}});
   }
-  out << j.dump(2) << '\n';
+  out << json_text(j) << '\n';
   return all_landed ? kExitDone : kExitFailure;
 }
 
@@ -346,7 +347,7 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
         << " s for the study on " << job.size() << (job.size() == 1 ? " rank" : " ranks") << " of "
         << threads << (threads == 1 ? " thread\n" : " threads\n");
   if (a.json)
-    out << record_json(run.record, false).dump(2) << '\n';
+    out << json_text(record_json(run.record, false)) << '\n';
   else
     write_record_text(out, run.record);
   return too_many_failed(run.result, scenario.study.max_failed, err) ? kExitFailure : kExitDone;
@@ -397,7 +398,7 @@ int run_report(const ReportArguments& a, std::ostream& out) {
     written.push_back(a.csv);
   }
   if (a.json)
-    out << record_json(record, true).dump(2) << '\n';
+    out << json_text(record_json(record, true)) << '\n';
   else if (written.empty())
     write_record_text(out, record);
   else
@@ -580,7 +581,7 @@ int run_check(const CheckArguments& a, std::ostream& out) {
   prepare_output(output_path(as_run, scenario), output_origin(as_run, scenario), false,
                  scenario.files_read);
   if (a.json)
-    out << scenario_json(scenario).dump(2) << '\n';
+    out << json_text(scenario_json(scenario)) << '\n';
   else
     write_scenario_text(out, scenario);
   return kExitDone;

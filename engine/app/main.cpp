@@ -1,8 +1,11 @@
+#include <cerrno>
 #include <csignal>
 #include <cstdlib>
+#include <cstring>
 #include <iostream>
 
 #include "app/commands.hpp"
+#include "app/printable_output.hpp"
 #include "cluster/job.hpp"
 #include "store/results_file.hpp"
 
@@ -24,7 +27,21 @@ int main(int argc, char** argv) {
   int status = 0;
   {
     const strewn::Job job(argc, argv);  // MPI, when built with it
-    status = strewn::run_command_line(argc, argv, std::cout, std::cerr, job);
+    // Everything written to the terminal is made inert (app/printable_output.hpp).
+    strewn::PrintableOutput out_text(std::cout.rdbuf()), err_text(std::cerr.rdbuf());
+    std::ostream out(&out_text), err(&err_text);
+    status = strewn::run_command_line(argc, argv, out, err, job);
+    // What could not be written to standard output (a full disk behind `> summary.json`) is a
+    // failure of the run, not a success: status 3, as for any file that cannot be written.
+    errno = 0;
+    out.flush();
+    if (out_text.failed() || !out) {
+      const int error = out_text.error() != 0 ? out_text.error() : errno;
+      err << "strewn: writing to standard output failed"
+          << (error != 0 ? std::string(": ") + std::strerror(error) : std::string()) << '\n';
+      if (status == 0) status = 3;
+    }
+    err.flush();
   }
   return finish(status);
 }

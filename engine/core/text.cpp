@@ -6,6 +6,7 @@
 #include <cmath>
 #include <cstdarg>
 #include <cstdio>
+#include <utility>
 
 namespace strewn {
 
@@ -78,6 +79,77 @@ std::string csv_number(double value) {
   if (std::isnan(value)) return "";
   if (std::isinf(value)) return value > 0 ? "inf" : "-inf";
   return printf_text("%.10g", value);
+}
+
+std::pair<char32_t, std::size_t> decode_utf8(std::string_view text, std::size_t i) {
+  const auto byte = [&](std::size_t k) { return static_cast<unsigned char>(text[k]); };
+  const unsigned char lead = byte(i);
+  if (lead < 0x80) return {lead, 1};
+  std::size_t length = 0;
+  char32_t code = 0, lowest = 0;
+  if (lead >= 0xC2 && lead <= 0xDF) {
+    length = 2, code = lead & 0x1Fu, lowest = 0x80;
+  } else if (lead >= 0xE0 && lead <= 0xEF) {
+    length = 3, code = lead & 0x0Fu, lowest = 0x800;
+  } else if (lead >= 0xF0 && lead <= 0xF4) {
+    length = 4, code = lead & 0x07u, lowest = 0x10000;
+  } else {
+    return {0, 0};
+  }
+  if (i + length > text.size()) return {0, 0};
+  for (std::size_t k = 1; k < length; ++k) {
+    if ((byte(i + k) & 0xC0u) != 0x80u) return {0, 0};
+    code = (code << 6) | (byte(i + k) & 0x3Fu);
+  }
+  if (code < lowest || code > 0x10FFFF || (code >= 0xD800 && code <= 0xDFFF)) return {0, 0};
+  return {code, length};
+}
+
+namespace {
+// Characters a terminal acts on or that reorder the text around them.
+bool inert_needed(char32_t c) {
+  return (c < 0x20 && c != U'\n' && c != U'\t') || (c >= 0x7F && c <= 0x9F) || c == 0x200E ||
+         c == 0x200F || (c >= 0x202A && c <= 0x202E) || (c >= 0x2066 && c <= 0x2069);
+}
+}  // namespace
+
+std::size_t invalid_utf8_at(std::string_view text) {
+  for (std::size_t i = 0; i < text.size();) {
+    const auto [code, length] = decode_utf8(text, i);
+    if (length == 0) return i;
+    i += length;
+  }
+  return std::string_view::npos;
+}
+
+std::string printable(std::string_view text) {
+  std::string out;
+  out.reserve(text.size());
+  for (std::size_t i = 0; i < text.size();) {
+    const auto [code, length] = decode_utf8(text, i);
+    if (length == 0) {
+      out += printf_text("\\x%02X", static_cast<unsigned>(static_cast<unsigned char>(text[i])));
+      ++i;
+      continue;
+    }
+    if (inert_needed(code))
+      out += printf_text("\\u%04X", static_cast<unsigned>(code));
+    else
+      out.append(text.substr(i, length));
+    i += length;
+  }
+  return out;
+}
+
+std::string csv_text(std::string_view text) {
+  std::string cell;
+  if (!text.empty() && std::string_view("=+-@\t\r").find(text.front()) != std::string_view::npos)
+    cell += '\'';
+  cell.append(text);
+  if (cell.find_first_of(",\"\n\r") == std::string::npos) return cell;
+  std::string quoted = "\"";
+  for (char c : cell) quoted += c == '"' ? std::string("\"\"") : std::string(1, c);
+  return quoted + '"';
 }
 
 std::string readable_number(double value, int significant) {

@@ -2,6 +2,7 @@
 // Small text helpers for messages.
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 namespace strewn {
@@ -21,6 +22,25 @@ std::string format_number(double value);
 
 /// A number for a CSV cell: ten significant digits; empty for NaN (no value), "inf" or "-inf".
 std::string csv_number(double value);
+
+/// The code point starting at byte `i` of `text` and its length in bytes; length 0 when the bytes
+/// there are not UTF-8 (RFC 3629, section 4).
+std::pair<char32_t, std::size_t> decode_utf8(std::string_view text, std::size_t i);
+
+/// The byte offset where `text` stops being UTF-8 (RFC 3629: no overlong forms, no surrogates,
+/// nothing above U+10FFFF), or std::string_view::npos when it is UTF-8 throughout.
+std::size_t invalid_utf8_at(std::string_view text);
+
+/// Text as a terminal may show it, inert: control characters (C0 but line feed and tab, DEL,
+/// C1) and the marks that reorder text (U+200E, U+200F, U+202A..U+202E, U+2066..U+2069, the
+/// bidirectional controls of Unicode's UAX #9) written as \uXXXX, and bytes that are not UTF-8
+/// as \xNN. Other text is left as it is.
+std::string printable(std::string_view text);
+
+/// A text cell of a CSV file: quoted when it holds a comma, a quote or a line break (RFC 4180),
+/// and led by an apostrophe when a spreadsheet would take it for a formula (it starts with =, +,
+/// -, @, a tab or a carriage return: OWASP, "CSV Injection"). Numbers are not text cells.
+std::string csv_text(std::string_view text);
 
 /// A number for a reader: `significant` figures, without an exponent from 1 up to 1e12 (16090,
 /// not 1.609e+04); small numbers keep theirs (5.72e-09).

@@ -18,6 +18,7 @@
 #include "footprint/figures.hpp"
 #include "report/cautions.hpp"
 #include "report/footprint_report.hpp"
+#include "report/json_text.hpp"
 #include "store/results_file.hpp"
 
 namespace strewn {
@@ -25,8 +26,9 @@ namespace strewn {
 std::string escape_markup(const std::string& text) {
   std::string out;
   out.reserve(text.size());
-  for (char c : text) {
-    switch (c) {
+  for (std::size_t i = 0; i < text.size();) {
+    const auto [code, length] = decode_utf8(text, i);
+    switch (code) {
       case '&':
         out += "&amp;";
         break;
@@ -43,13 +45,16 @@ std::string escape_markup(const std::string& text) {
         out += "&#39;";
         break;
       default:
-        // XML 1.0 admits no C0 control character but tab, line feed and carriage return: any
-        // other would make the map a parse error, so it is shown as the replacement character.
-        if ((static_cast<unsigned char>(c) < 0x20 && c != '\t' && c != '\n' && c != '\r'))
+        // XML 1.0 (section 2.2, Char) admits no C0 control character but tab, line feed and
+        // carriage return, and neither U+FFFE nor U+FFFF; any of them, or bytes that are not
+        // UTF-8 (a damaged file), would make the map a parse error: shown as U+FFFD instead.
+        if (length == 0 || (code < 0x20 && code != '\t' && code != '\n' && code != '\r') ||
+            code == 0xFFFE || code == 0xFFFF)
           out += "\xEF\xBF\xBD";
         else
-          out += c;
+          out.append(text, i, length);
     }
+    i += length == 0 ? 1 : length;
   }
   return out;
 }
@@ -250,10 +255,10 @@ class FigureRows {
   }
 
  private:
+  // Always quoted, and defused when a spreadsheet would read it as a formula (csv_text).
   static std::string quoted(const std::string& text) {
-    std::string q = "\"";
-    for (char c : text) q += c == '"' ? std::string("\"\"") : std::string(1, c);
-    return q + "\"";
+    const std::string cell = csv_text(text);
+    return !cell.empty() && cell.front() == '"' ? cell : "\"" + cell + "\"";
   }
 
   std::string& out_;
@@ -366,7 +371,7 @@ std::string geojson_text(const StudyRecord& r, const StudyColumns* impacts) {
                               {"samples", r.samples},
                               {"confidence", r.footprint.confidence},
                               {"cautions", cautions()}};
-  return collection.dump() + "\n";
+  return json_text(collection, -1) + "\n";
 }
 
 std::string figures_csv(const StudyRecord& r) {

@@ -1,5 +1,7 @@
 #include "report/scenario_report.hpp"
 
+#include "report/json_text.hpp"
+
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -199,9 +201,9 @@ nlohmann::json scenario_json(const Scenario& s) {
 
 void write_scenario_text(std::ostream& out, const Scenario& s) {
   out << "# " << s.path << " resolved: every key with its value or default\n"
-      << scenario_json(s).dump(2) << "\n\nsampled inputs (" << s.sampled_inputs.size() << "):\n";
+      << json_text(scenario_json(s)) << "\n\nsampled inputs (" << s.sampled_inputs.size() << "):\n";
   for (const auto& in : s.sampled_inputs)
-    out << "  " << in.name << "  " << uncertain_json(in.distribution).dump() << "  nominal "
+    out << "  " << in.name << "  " << json_text(uncertain_json(in.distribution), -1) << "  nominal "
         << in.distribution.nominal() << "\n";
 }
 

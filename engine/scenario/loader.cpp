@@ -1,6 +1,7 @@
 // Scenario loading: TOML (toml++) into the validated Scenario model. Every problem is collected
 // with its key path and line; nothing is thrown until the whole file has been read.
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
@@ -41,6 +42,22 @@ class Loader {
   }
 
   Scenario load() {
+    // Names and titles go to HDF5, JSON, SVG and the terminal, which all need UTF-8: text in
+    // another encoding is refused here, with its line, rather than failing in a writer later.
+    if (const auto bad = invalid_utf8_at(scenario_.text); bad != std::string::npos) {
+      const auto line_start = scenario_.text.rfind('\n', bad == 0 ? 0 : bad - 1);
+      const std::size_t column =
+          line_start == std::string::npos || bad == 0 ? bad + 1 : bad - line_start;
+      diagnostics_.add(
+          "",
+          static_cast<long>(std::count(scenario_.text.begin(),
+                                       scenario_.text.begin() + static_cast<long>(bad), '\n')) +
+              1,
+          "byte " + std::to_string(column) +
+              " of the line is not UTF-8 text; a scenario is a UTF-8 TOML file (was it "
+              "saved in another encoding?)");
+      throw ScenarioError(diagnostics_.take());
+    }
     toml::table root;
     try {
       root = toml::parse(scenario_.text, path_);
@@ -52,7 +69,16 @@ class Loader {
     }
     Table top(diagnostics_, &root, "", 1);
     if (const toml::node* n = top.node("title")) {
-      if (const auto* s = n->as_string())
+      // The title is an attribute of the results file, whose attributes share one object header
+      // of 64 KiB (HDF5 File Format Specification, version 2 object headers): a title far below
+      // that, refused here rather than when the file is written after every flight.
+      constexpr std::size_t kLongestTitle = 4096;
+      if (const auto* s = n->as_string(); s && s->get().size() > kLongestTitle)
+        diagnostics_.add("title", n,
+                         "is " + std::to_string(s->get().size()) +
+                             " bytes long; a title may have at most " +
+                             std::to_string(kLongestTitle));
+      else if (s)
         scenario_.title = s->get();
       else
         diagnostics_.add("title", n, "expected a string");
@@ -356,6 +382,15 @@ class Loader {
     auto bodies = top.tables("body");
     if (bodies.empty() && !top.has("body"))
       diagnostics_.add("body", 0L, "at least one [[body]] is required");
+    // Each body's name and inputs are listed in the results file's attributes and its footprint
+    // has a group per body: a release of many kinds of objects is described by fewer bodies with
+    // a count each.
+    constexpr std::size_t kMostBodies = 256;
+    if (bodies.size() > kMostBodies)
+      diagnostics_.add("body", 0L,
+                       std::to_string(bodies.size()) + " bodies; a scenario may have at most " +
+                           std::to_string(kMostBodies) +
+                           " (give identical objects one body and a count)");
     for (std::size_t i = 0; i < bodies.size(); ++i) read_body(bodies[i], i, bodies.size());
   }
 
@@ -388,9 +423,27 @@ class Loader {
                          "\"" + *name +
                              "\" is the name of a section of the scenario, which starts the "
                              "names of its inputs; choose another name for the body");
-    if (scenario_.body_index(b.name) >= 0 && name)
+    // A name is shown in terminals, maps and tables and names files: nothing in it may act on a
+    // terminal or reorder the text around it.
+    if (name && (printable(*name) != *name || name->find('\n') != std::string::npos))
+      diagnostics_.add(t.key_path("name"), t.line_of("name"),
+                       "must not hold control characters, line breaks or marks that reorder text "
+                       "(it is shown on maps and terminals and names files)");
+    if (scenario_.body_index(b.name) >= 0 && name) {
       diagnostics_.add(t.key_path("name"), t.line_of("name"),
                        "duplicate body name \"" + b.name + "\": each [[body]] needs its own name");
+    } else if (name) {
+      const auto folded = [](std::string text) {
+        for (char& c : text) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+        return text;
+      };
+      for (const auto& other : scenario_.bodies)
+        if (folded(other.name) == folded(b.name))
+          diagnostics_.add(t.key_path("name"), t.line_of("name"),
+                           "\"" + b.name + "\" differs from body \"" + other.name +
+                               "\" only in case: their map files (<map>-<name>.svg) would be one "
+                               "file where case is ignored; choose names that differ otherwise");
+    }
     b.count = t.integer("count", 1, 1000000).value_or(1);
     const std::string prefix = b.name + ".";
     if (auto mass = t.uncertain("mass", kPositive, true)) b.mass = sampled(prefix + "mass", *mass);

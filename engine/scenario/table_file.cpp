@@ -6,6 +6,8 @@
 #include <fstream>
 #include <sstream>
 
+#include "core/text.hpp"
+
 namespace strewn {
 
 namespace {
@@ -46,14 +48,27 @@ TableFile read_table_file(const std::string& path, const std::vector<std::string
   long number = 0;
   while (std::getline(in, line)) {
     ++number;
+    // A byte-order mark that some editors put before the first line is not part of the header;
+    // line ends of CR LF lose their CR in trim().
+    if (number == 1 && line.starts_with("\xEF\xBB\xBF")) line.erase(0, 3);
+    if (const auto bad = invalid_utf8_at(line); bad != std::string::npos)
+      throw TableFileError(path + ":" + std::to_string(number) + ": byte " +
+                           std::to_string(bad + 1) +
+                           " of the line is not UTF-8 text (is the file in another encoding?)");
     const std::string content = trim(line);
     if (content.empty() || content[0] == '#') continue;
     const auto cells = split(content);
     if (index.empty()) {
       for (const auto& column : columns) {
         std::size_t found = cells.size();
-        for (std::size_t i = 0; i < cells.size(); ++i)
-          if (cells[i] == column) found = i;
+        for (std::size_t i = 0; i < cells.size(); ++i) {
+          if (cells[i] != column) continue;
+          if (found != cells.size())
+            throw TableFileError(path + ":" + std::to_string(number) +
+                                 ": the header names column \"" + column +
+                                 "\" twice; which one holds the values is not clear");
+          found = i;
+        }
         if (found == cells.size())
           throw TableFileError(path + ":" + std::to_string(number) +
                                ": the header lacks column \"" + column + "\" (expected columns: " +

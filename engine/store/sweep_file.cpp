@@ -160,24 +160,20 @@ std::vector<std::string> write_summary(H5::H5File& file, const SummaryColumns& t
 // The same table as CSV: the header `order`, then a line a case.
 std::string summary_csv(const SummaryColumns& table, const std::vector<std::string>& order) {
   std::string csv;
-  auto cell = [&](const std::string& value, bool first) {
+  // Names and labels are text cells (quoted when needed, defused when a spreadsheet would take
+  // them for a formula: csv_text); numbers are written as they are.
+  auto cell = [&](const std::string& text, bool first) {
     if (!first) csv += ',';
-    // A name holding a comma, a quote or a line break is quoted (RFC 4180).
-    if (value.find_first_of(",\"\n\r") == std::string::npos) {
-      csv += value;
-      return;
-    }
-    csv += '"';
-    for (char ch : value) csv += ch == '"' ? std::string("\"\"") : std::string(1, ch);
-    csv += '"';
+    csv += csv_text(text);
   };
+  auto number_cell = [&](const std::string& number) { csv += ',' + number; };
   for (std::size_t c = 0; c < order.size(); ++c) cell(order[c], c == 0);
   csv += '\n';
   for (std::size_t i = 0; i < table.index.size(); ++i) {
-    cell(std::to_string(i), true);
-    for (std::size_t a = 0; a < table.axes.size(); ++a) cell(csv_number(table.axes[a][i]), false);
+    csv += std::to_string(i);
+    for (std::size_t a = 0; a < table.axes.size(); ++a) number_cell(csv_number(table.axes[a][i]));
     for (std::size_t k = 0; k < table.number_names.size(); ++k)
-      cell(csv_number(table.numbers[k][i]), false);
+      number_cell(csv_number(table.numbers[k][i]));
     for (std::size_t k = 0; k < table.text_names.size(); ++k) cell(table.texts[k][i], false);
     csv += '\n';
   }
