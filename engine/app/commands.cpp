@@ -361,6 +361,54 @@ struct ReportArguments {
   bool impacts = false;
 };
 
+// One file `report` writes: its path, the option that named it, and for a body's own map the
+// body.
+struct ReportOutput {
+  std::string path, option, body;
+  [[nodiscard]] std::string what() const {
+    return body.empty() ? option : "the map of body " + body + " beside --svg";
+  }
+};
+
+// The files `report` writes, in the order it writes them: GeoJSON, the map (and with several
+// bodies a map of each beside it, <name>-<body>.svg), the HTML page, the CSV figures.
+std::vector<ReportOutput> report_outputs(const ReportArguments& a, const StudyRecord& record) {
+  std::vector<ReportOutput> outputs;
+  if (!a.geojson.empty()) outputs.push_back({a.geojson, "--geojson", ""});
+  if (!a.svg.empty()) {
+    outputs.push_back({a.svg, "--svg", ""});
+    const auto& groups = record.footprint.groups;
+    if (groups.size() > 2) {
+      const std::filesystem::path svg(a.svg);
+      for (std::size_t b = 0; b + 1 < groups.size(); ++b)
+        outputs.push_back(
+            {(svg.parent_path() / (svg.stem().string() + "-" + groups[b].name + ".svg")).string(),
+             "--svg", groups[b].name});
+    }
+  }
+  if (!a.html.empty()) outputs.push_back({a.html, "--html", ""});
+  if (!a.csv.empty()) outputs.push_back({a.csv, "--csv", ""});
+  return outputs;
+}
+
+// Every output is checked before any is written: none may be a file the command reads, a
+// folder, a device or a link, and no two may be one file (the second would replace the first).
+void refuse_report_outputs(const std::vector<ReportOutput>& outputs, const std::string& results) {
+  namespace fs = std::filesystem;
+  std::vector<fs::path> seen;
+  for (const auto& output : outputs) {
+    refuse_unsafe_output(output.path, "", {results});
+    std::error_code ec;
+    fs::path resolved = fs::weakly_canonical(fs::absolute(output.path), ec);
+    if (ec) resolved = fs::absolute(output.path).lexically_normal();
+    for (std::size_t k = 0; k < seen.size(); ++k)
+      if (seen[k] == resolved)
+        throw UsageError(output.path + ": named for two outputs (" + outputs[k].what() + " and " +
+                         output.what() + "); give each output its own file");
+    seen.push_back(resolved);
+  }
+}
+
 int run_report(const ReportArguments& a, std::ostream& out) {
   const bool need_samples = !a.geojson.empty() && a.impacts;
   ResultsFile file = read_results(a.results, need_samples, a.sweep_case);
@@ -369,33 +417,21 @@ int run_report(const ReportArguments& a, std::ostream& out) {
                      ": --impacts needs the per-sample table, which this study did "
                      "not keep (output.samples = false)");
   const StudyRecord& record = file.record;
-  if (!a.geojson.empty())
-    write_report_file(a.geojson, geojson_text(record, need_samples ? &file.columns : nullptr),
-                      {a.results});
+  const auto outputs = report_outputs(a, record);
+  refuse_report_outputs(outputs, a.results);
   std::vector<std::string> written;
-  if (!a.geojson.empty()) written.push_back(a.geojson);
-  if (!a.svg.empty()) {
-    write_report_file(a.svg, map_svg(record), {a.results});
-    written.push_back(a.svg);
-    // With several bodies, a map of each beside the map of all: <name>-<body>.svg.
-    const auto& groups = record.footprint.groups;
-    if (groups.size() > 2) {
-      const std::filesystem::path svg(a.svg);
-      for (std::size_t b = 0; b + 1 < groups.size(); ++b) {
-        const std::string path =
-            (svg.parent_path() / (svg.stem().string() + "-" + groups[b].name + ".svg")).string();
-        write_report_file(path, map_svg(record, groups[b].name), {a.results});
-        written.push_back(path);
-      }
-    }
-  }
-  if (!a.html.empty()) {
-    write_report_file(a.html, html_report(record), {a.results});
-    written.push_back(a.html);
-  }
-  if (!a.csv.empty()) {
-    write_report_file(a.csv, figures_csv(record), {a.results});
-    written.push_back(a.csv);
+  for (const auto& output : outputs) {
+    std::string text;
+    if (output.option == "--geojson")
+      text = geojson_text(record, need_samples ? &file.columns : nullptr);
+    else if (output.option == "--html")
+      text = html_report(record);
+    else if (output.option == "--csv")
+      text = figures_csv(record);
+    else
+      text = output.body.empty() ? map_svg(record) : map_svg(record, output.body);
+    write_report_file(output.path, text, {a.results});
+    written.push_back(output.path);
   }
   if (a.json)
     out << json_text(record_json(record, true)) << '\n';

@@ -39,4 +39,15 @@ expect 0 "a small study" -- "$strewn" run "$source_dir/tests/data/canopy-by-heig
 head -c 4000 "$work/small.h5" >"$work/truncated.h5"
 expect 2 "report of a truncated results file" -- "$strewn" report "$work/truncated.h5" --json
 expect 0 "report of a whole results file" -- "$strewn" report "$work/small.h5" --json
+# report: every output is checked before any is written; no two outputs may be one file.
+expect 2 "two outputs named alike" -- "$strewn" report "$work/small.h5" --svg "$work/same.out" --html "$work/./same.out"
+grep -q "named for two outputs (--svg and --html)" "$work/err" || fail "two outputs named alike: $(cat "$work/err")"
+[[ -e "$work/same.out" ]] && fail "two outputs named alike: a file was written"
+expect 2 "one output refused, none written" -- "$strewn" report "$work/small.h5" --svg "$work/first.svg" --html /dev/null
+[[ -e "$work/first.svg" ]] && fail "one output refused: the map was written before the refusal"
+expect 0 "a study of two bodies" -- "$strewn" run "$source_dir/inputs/drone-survey.toml" -n 60 -o "$work/two.h5" --quiet
+first_body="$(sed -n 's/^name = "\(.*\)"/\1/p' "$source_dir/inputs/drone-survey.toml" | head -1)"
+expect 2 "a body's map named as another output" -- "$strewn" report "$work/two.h5" --svg "$work/m.svg" --csv "$work/m-$first_body.svg"
+grep -q "named for two outputs (the map of body $first_body beside --svg and --csv)" "$work/err" ||
+  fail "a body's map named as another output: $(cat "$work/err")"
 finish "exit codes"
