@@ -308,6 +308,9 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
   const std::string origin = output_origin(a, scenario);
   // Refuse an unwritable destination before any flight (a missing folder is made).
   if (job.leader()) prepare_output(path, origin, true, scenario.files_read);
+  // One writer per output: a second run or resume on it meanwhile is refused.
+  std::optional<OutputLock> lock;
+  if (job.leader()) lock.emplace(path);
   if (signals) StopOnSignals::remove_on_second_signal(temporary_path_of(path));
   const auto start_wall = std::chrono::steady_clock::now();
   check_memory(scenario, model);

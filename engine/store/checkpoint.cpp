@@ -22,7 +22,7 @@ constexpr std::uint64_t kRecordMagic = 0x73747277636b7074ULL;  // "strwckpt"
 
 std::string header_of(const Checkpoint::Identity& id) {
   std::ostringstream h;
-  h << "strewn checkpoint 2\n"
+  h << "strewn checkpoint 3\n"
     << id.scenario_sha256 << ' ' << id.seed << ' ' << id.samples << ' ' << id.bodies << ' '
     << id.inputs << '\n';
   return h.str();
@@ -81,9 +81,9 @@ ReadBack read_records(std::FILE* in, const std::string& path, const std::string&
   if (whole_header && head != header) {
     std::fclose(in);
     throw UsageError(path +
-                     ": this checkpoint belongs to another study (scenario, seed or "
-                     "sample count differ) or another version of strewn; run without --resume "
-                     "to start over");
+                     ": this checkpoint belongs to another study (the scenario, a file it reads, "
+                     "the seed or the sample count differ) or another version of strewn; run "
+                     "without --resume to start over");
   }
   if (!whole_header) return back;
   back.good_bytes = header.size();

@@ -9,10 +9,10 @@
 // and those beyond the rounds written in order are whole samples scattered over the blocks that
 // were flying. Each record says where its rows start.
 //
-// Layout: a text header (format 2, the scenario's SHA-256, seed, samples, bodies, named columns),
-// then records: magic, first row, row count, payload size, payload (the rows, column by column),
-// CRC-32 of the payload. A record torn by a crash fails its size or CRC check and is cut off with
-// all after it.
+// Layout: a text header (format 3, the SHA-256 of the scenario and every file it reads, seed,
+// samples, bodies, named columns), then records: magic, first row, row count, payload size, payload
+// (the rows, column by column), CRC-32 of the payload. A record torn by a crash fails its size or
+// CRC check and is cut off with all after it.
 #include <cstdint>
 #include <cstdio>
 #include <string>
@@ -26,7 +26,7 @@ class Checkpoint {
  public:
   /// What the checkpoint belongs to; a checkpoint of another study is refused on resume.
   struct Identity {
-    std::string scenario_sha256;
+    std::string scenario_sha256;  ///< of the scenario and its files (inputs_sha256)
     std::uint64_t seed = 0, samples = 0;
     std::size_t bodies = 0, inputs = 0;
   };

@@ -3,6 +3,7 @@
 #include <fcntl.h>
 #include <signal.h>
 #include <sys/file.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <cctype>
@@ -147,6 +148,41 @@ void prepare_output(const std::string& path, const std::string& origin, bool mak
   if (!make) return;
   // Temporary files of runs that were killed (their process is gone): strewn's own leftovers.
   remove_stale_partials(existing.string(), fs::path(path).filename().string());
+}
+
+OutputLock::OutputLock(const std::string& path) : lock_path_(path + ".lock") {
+  // Taken on the file the name holds when the lock is held: a holder that removed the lock file
+  // between our open and our flock has left us a lock on a file no one else will find, so the
+  // name is opened again.
+  for (int attempt = 0; attempt < 100; ++attempt) {
+    fd_ = ::open(lock_path_.c_str(), O_RDWR | O_CREAT | O_NOFOLLOW | O_CLOEXEC, 0666);
+    if (fd_ < 0)
+      throw IoError(lock_path_ + ": cannot make the output's lock file (" + std::strerror(errno) +
+                    ")");
+    if (::flock(fd_, LOCK_EX | LOCK_NB) != 0) {
+      const int error = errno;
+      ::close(fd_);
+      fd_ = -1;
+      if (error == EWOULDBLOCK)
+        throw UsageError(path + ": another strewn run is writing this output now (it holds " +
+                         lock_path_ + "); wait for it to end, or choose another output");
+      throw IoError(lock_path_ + ": cannot lock the output (" + std::strerror(error) + ")");
+    }
+    struct stat held {
+    }, named{};
+    if (::fstat(fd_, &held) == 0 && ::stat(lock_path_.c_str(), &named) == 0 &&
+        held.st_dev == named.st_dev && held.st_ino == named.st_ino)
+      return;
+    ::close(fd_);
+    fd_ = -1;
+  }
+  throw IoError(lock_path_ + ": cannot lock the output (its lock file keeps changing)");
+}
+
+OutputLock::~OutputLock() {
+  if (fd_ < 0) return;
+  ::unlink(lock_path_.c_str());  // while still held: no one takes a lock on a file being removed
+  ::close(fd_);
 }
 
 }  // namespace strewn

@@ -41,6 +41,24 @@ std::string temporary_path_of(const std::string& path);
 /// locks a file it writes) are left alone.
 void remove_stale_partials(const std::string& folder, const std::string& output_name);
 
+/// One writer for an output: held while a study writes `<path>` (and its checkpoint), so that a
+/// second run or resume on the same output is refused instead of mixing two studies into one.
+/// An advisory lock (flock) on `<path>.lock`, released by the kernel when the process ends however
+/// it ends; the next run takes over a lock file left by a killed one, and the holder removes it.
+class OutputLock {
+ public:
+  /// Takes the lock; throws UsageError (status 2) when another process holds it, IoError when the
+  /// lock file cannot be made.
+  explicit OutputLock(const std::string& path);
+  ~OutputLock();
+  OutputLock(const OutputLock&) = delete;
+  OutputLock& operator=(const OutputLock&) = delete;
+
+ private:
+  std::string lock_path_;
+  int fd_ = -1;
+};
+
 /// Opens `path` for writing as a new regular file, never through a link: an entry already there
 /// under the name (a leftover, or a link planted to redirect the write) is removed first, then
 /// the file is made with O_EXCL | O_NOFOLLOW. Returns the descriptor, or -1 with errno set.

@@ -15,7 +15,9 @@
 #include <cstring>
 #include <ctime>
 #include <filesystem>
+#include <fstream>
 #include <optional>
+#include <sstream>
 
 #include "core/errors.hpp"
 #include "core/text.hpp"
@@ -42,6 +44,19 @@ std::string sha256_hex(const std::string& text) {
     hex += byte;
   }
   return hex;
+}
+
+std::string inputs_sha256(const Scenario& s) {
+  // The scenario's text, then each file it reads by its content (a file that cannot be read now
+  // counts as different from any that could).
+  std::string all = s.text;
+  for (std::size_t k = 1; k < s.files_read.size(); ++k) {
+    std::ifstream in(s.files_read[k], std::ios::binary);
+    std::ostringstream content;
+    content << in.rdbuf();
+    all += "\n--- " + std::to_string(k) + (in ? " read\n" : " unreadable\n") + content.str();
+  }
+  return sha256_hex(all);
 }
 
 namespace {
@@ -241,10 +256,10 @@ ResultsStore::ResultsStore(const std::string& path, const SampleModel& model, st
   if (control.checkpoint || control.resume) {
     const Scenario& s = model.scenario();
     const std::vector<std::string> names = model.column_names();
-    checkpoint_.emplace(path + ".checkpoint",
-                        Checkpoint::Identity{sha256_hex(s.text), s.study.seed, samples,
-                                             model.bodies(), names.size()},
-                        names, model.choice_names().size(), control.resume);
+    checkpoint_.emplace(
+        path + ".checkpoint",
+        Checkpoint::Identity{inputs_sha256(s), s.study.seed, samples, model.bodies(), names.size()},
+        names, model.choice_names().size(), control.resume);
   }
 }
 

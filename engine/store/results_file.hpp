@@ -111,5 +111,9 @@ bool hdf5_left_unclean();
 
 /// SHA-256 of a text, as 64 hexadecimal digits (OpenSSL).
 std::string sha256_hex(const std::string& text);
+/// The SHA-256 of a scenario's text and of every file it reads (tables, soundings, ensemble
+/// members), as they are on disk now: what a checkpoint belongs to, so that a resume after any of
+/// them changed is refused.
+std::string inputs_sha256(const Scenario& scenario);
 
 }  // namespace strewn
