@@ -14,6 +14,7 @@
 #include <csignal>
 #include <cstdint>
 #include <cstring>
+#include <exception>
 #include <filesystem>
 #include <functional>
 #include <iostream>
@@ -288,32 +289,75 @@ bool too_many_failed(const StudyResult& result, double max_failed, std::ostream&
   return true;
 }
 
+// What a run needs before its first flight: the scenario, its world and sample model, and on
+// rank 0 the checked output and its lock. Not moved once prepared (the model refers to the rest).
+struct PreparedRun {
+  Scenario scenario;
+  std::optional<World> world;
+  std::optional<SampleModel> model;
+  std::string path, origin;
+  std::optional<OutputLock> lock;
+};
+
+void prepare_run(const RunArguments& a, const Job& job, PreparedRun& run) {
+  run.scenario = load_scenario(a.scenario);
+  if (a.samples > 0) run.scenario.study.samples = static_cast<long>(a.samples);
+  if (a.seed) run.scenario.study.seed = *a.seed;
+  run.world.emplace(build_world(run.scenario));
+  run.model.emplace(run.scenario, *run.world,
+                    static_cast<std::uint64_t>(run.scenario.study.samples));
+  if (a.sample) return;
+  run.path = output_path(a, run.scenario);
+  run.origin = output_origin(a, run.scenario);
+  if (job.leader()) {
+    // Refuse an unwritable destination before any flight (a missing folder is made).
+    prepare_output(run.path, run.origin, true, run.scenario.files_read);
+    // One writer per output: a second run or resume on it meanwhile is refused.
+    run.lock.emplace(run.path);
+  }
+  check_memory(run.scenario, *run.model);
+}
+
+// On several ranks every rank prepares, and then all agree before any flight: a rank whose
+// preparation failed (a file missing there), or that read or was given other inputs, ends every
+// rank with status 2 and the cause, instead of leaving the others waiting for its rows.
+void prepare_on_every_rank(const RunArguments& a, const Job& job, PreparedRun& run) {
+  if (job.size() == 1) return prepare_run(a, job, run);
+  std::exception_ptr failure;
+  std::string mine;
+  try {
+    prepare_run(a, job, run);
+    mine = "ok " + inputs_sha256(run.scenario) + " " + std::to_string(run.scenario.study.samples) +
+           " " + std::to_string(run.scenario.study.seed) + " " + kEngineVersion;
+  } catch (const std::exception& e) {
+    failure = std::current_exception();
+    mine = std::string("failed ") + e.what();
+  }
+  const std::string verdict = start_verdict(job, mine);
+  if (failure) std::rethrow_exception(failure);
+  if (!verdict.empty()) throw UsageError(verdict);
+}
+
 int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& err, const Job& job) {
   // From the start on one process: a signal while the scenario is read still stops cleanly.
   std::optional<StopOnSignals> signals;
   if (job.size() == 1 && !a.sample) signals.emplace();
-  Scenario scenario = load_scenario(a.scenario);
-  if (a.samples > 0) scenario.study.samples = static_cast<long>(a.samples);
-  if (a.seed) scenario.study.seed = *a.seed;
-  const World world = build_world(scenario);
+  PreparedRun prepared;
+  prepare_on_every_rank(a, job, prepared);
+  const Scenario& scenario = prepared.scenario;
+  const World& world = *prepared.world;
+  const SampleModel& model = *prepared.model;
   const auto samples = static_cast<std::uint64_t>(scenario.study.samples);
-  const SampleModel model(scenario, world, samples);
   std::optional<tbb::global_control> limit;
   if (a.threads > 0)
     limit.emplace(tbb::global_control::max_allowed_parallelism,
                   static_cast<std::size_t>(a.threads));
   if (a.sample) return job.leader() ? run_replay(a, model, out) : kExitDone;
 
-  const std::string path = output_path(a, scenario);
-  const std::string origin = output_origin(a, scenario);
-  // Refuse an unwritable destination before any flight (a missing folder is made).
-  if (job.leader()) prepare_output(path, origin, true, scenario.files_read);
-  // One writer per output: a second run or resume on it meanwhile is refused.
-  std::optional<OutputLock> lock;
-  if (job.leader()) lock.emplace(path);
+  const std::string& path = prepared.path;
+  const std::string& origin = prepared.origin;
   if (signals) StopOnSignals::remove_on_second_signal(temporary_path_of(path));
   const auto start_wall = std::chrono::steady_clock::now();
-  check_memory(scenario, model);
 
   StudyOptions options;
   options.samples = samples;

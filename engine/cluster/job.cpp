@@ -169,4 +169,35 @@ void Job::abort(int status) const {
 
 #endif
 
+std::string start_verdict(const Job& job, const std::string& mine) {
+  if (job.size() == 1) return mine.starts_with("ok ") ? "" : mine.substr(mine.find(' ') + 1);
+  constexpr int kStartTag = 41, kVerdictTag = 42;
+  const auto bytes_of = [](const std::string& text) {
+    return std::span(reinterpret_cast<const std::byte*>(text.data()), text.size());
+  };
+  const auto text_of = [](const std::vector<std::byte>& bytes) {
+    return std::string(reinterpret_cast<const char*>(bytes.data()), bytes.size());
+  };
+  std::string verdict;
+  if (job.leader()) {
+    // Rank 0's own failure first, then the others' in rank order; then any digest unlike its own.
+    std::vector<std::string> said{mine};
+    for (int r = 1; r < job.size(); ++r) said.push_back(text_of(job.receive(r, kStartTag)));
+    for (int r = 0; r < job.size() && verdict.empty(); ++r)
+      if (!said[r].starts_with("ok "))
+        verdict = "rank " + std::to_string(r) + ": " + said[r].substr(said[r].find(' ') + 1);
+    for (int r = 1; r < job.size() && verdict.empty(); ++r)
+      if (said[r] != said[0])
+        verdict = "rank " + std::to_string(r) +
+                  " read or was given other inputs than rank 0 (the scenario or a file it "
+                  "reads, the sample count, the seed or the version of strewn differ); every "
+                  "rank must see the same files and the same command";
+    for (int r = 1; r < job.size(); ++r) job.send(r, bytes_of(verdict), kVerdictTag);
+  } else {
+    job.send(0, bytes_of(mine), kStartTag);
+    verdict = text_of(job.receive(0, kVerdictTag));
+  }
+  return verdict;
+}
+
 }  // namespace strewn

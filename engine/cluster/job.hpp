@@ -65,6 +65,13 @@ class Job {
   bool initialised_ = false;
 };
 
+/// What the ranks of a job agree on before any flight: each gives "ok <digest>" (the digest of
+/// what it read and was asked: scenario, its files, samples, seed, strewn version) or "failed
+/// <message>". Returns, on every rank, "" when every rank is ok with rank 0's digest, else the
+/// first cause in words ("rank 2: ..."). A collective call: every rank must make it, whether its
+/// preparation failed or not, so that no rank waits for one that has given up.
+std::string start_verdict(const Job& job, const std::string& mine);
+
 /// Samples [first, first + count) of rank `rank` among `ranks`: contiguous blocks in rank order,
 /// the remainder one each to the first ranks.
 struct SampleRange {

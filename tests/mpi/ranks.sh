@@ -70,4 +70,39 @@ for i in 0 1 2 3; do
 done
 echo "ok: killed sweep resumed equals the straight run"
 
+# 4. Ranks that disagree before the first flight (MPMD launches give each rank its own command):
+#    a scenario missing on one rank, another sample count, another wind file. Every rank ends
+#    within seconds with status 2 and the cause; none waits for the others (it used to hang).
+disagree() {  # disagree WHAT FRAGMENT -- RANK0_ARGS... :: RANK1_ARGS...
+  local what="$1" fragment="$2"
+  shift 3
+  local first=() second=()
+  while [[ "$1" != "::" ]]; do first+=("$1"); shift; done
+  shift
+  second=("$@")
+  local status=0
+  timeout 120 "${mpi[@]}" -np 1 "$strewn" "${first[@]}" : -np 1 "$strewn" "${second[@]}" \
+    >/dev/null 2>"$work/disagree.err" || status=$?
+  [[ $status == 124 ]] && { fail "$what: the ranks hung"; return; }
+  [[ $status == 2 ]] || fail "$what: status $status, not 2"
+  grep -q -- "$fragment" "$work/disagree.err" || fail "$what: no cause named: $(head -3 "$work/disagree.err")"
+  compgen -G "$work/disagree.h5*" >/dev/null && fail "$what: files left: $(ls "$work"/disagree.h5*)"
+  echo "ok: $what ends every rank with status 2"
+}
+small=(run "$scenario" -n 500 -j 1 -o "$work/disagree.h5" --quiet)
+disagree "a scenario missing on rank 1" "rank 1: .*missing.toml: cannot be read" -- \
+  "${small[@]}" :: run "$work/missing.toml" -n 500 -j 1 -o "$work/disagree.h5" --quiet
+disagree "another sample count on rank 1" "rank 1 read or was given other inputs than rank 0" -- \
+  "${small[@]}" :: run "$scenario" -n 501 -j 1 -o "$work/disagree.h5" --quiet
+mkdir -p "$work/a" "$work/b"
+for side in a b; do
+  printf 'altitude_m,speed_ms,from_deg\n0,3,240\n3000,12,270\n' >"$work/$side/wind.csv"
+  sed -e '/^layers = \[/,/^\]/d' -e 's|^\[wind\]$|[wind]\nfile = "wind.csv"|' "$scenario" >"$work/$side/study.toml"
+done
+sed -i 's/^3000,12,270$/3000,13,270/' "$work/b/wind.csv"
+"$strewn" check "$work/a/study.toml" >/dev/null || fail "the wind-file scenario is refused"
+disagree "another wind file on rank 1" "rank 1 read or was given other inputs than rank 0" -- \
+  run "$work/a/study.toml" -n 500 -j 1 -o "$work/disagree.h5" --quiet :: \
+  run "$work/b/study.toml" -n 500 -j 1 -o "$work/disagree.h5" --quiet
+
 finish "mpi tests"
