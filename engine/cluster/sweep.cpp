@@ -477,6 +477,9 @@ void run_case(const SweepPlan& plan, std::size_t index, const std::string& file,
   (void)run_and_write(model, world, options, file, threads, s.output.samples);
 }
 
+// The file that marks a folder of cases as made by a sweep.
+constexpr const char* kCasesMark = "strewn-sweep-cases";
+
 // Rank 0, before any case runs: the output checked (a missing folder is made; one that cannot be
 // is refused with status 2), the folder of the cases made (emptied first when fresh), the
 // leftovers of a stopped run cleared; returns the cases still to run, in order.
@@ -486,9 +489,26 @@ std::vector<std::size_t> pending_cases(const SweepPlan& plan, const SweepOptions
   prepare_output(output, options.output.empty() ? plan.path + ": output: " : "", true,
                  plan.files_read);
   std::error_code ec;
+  // The folder of the cases is strewn's only when it holds the mark strewn puts in the folders it
+  // makes: a folder of the user's that happens to have the name is never emptied or removed.
+  const fs::file_status status = fs::symlink_status(folder, ec);
+  if (fs::exists(status) && !fs::is_directory(status))
+    throw UsageError(folder +
+                     ": is not a folder (a file or a link) where the sweep keeps its "
+                     "cases; move it away or choose another output");
+  if (fs::exists(status) && !fs::exists(fs::path(folder) / kCasesMark))
+    throw UsageError(folder + ": this folder was not made by a strewn sweep (it lacks the file " +
+                     kCasesMark +
+                     ") and is not emptied or removed; move it away or choose another "
+                     "output");
   if (options.fresh) fs::remove_all(folder, ec);
   fs::create_directories(folder, ec);
   if (ec) throw IoError(folder + ": cannot create the folder of the cases (" + ec.message() + ")");
+  if (!fs::exists(fs::path(folder) / kCasesMark)) {
+    std::ofstream mark(fs::path(folder) / kCasesMark);
+    mark << "made by a strewn sweep to keep its finished cases; removed when the sweep ends\n";
+    if (!mark) throw IoError(folder + ": cannot write in the folder of the cases");
+  }
   // Files left half-written by a stopped run (of this machine, whose process is gone).
   remove_stale_partials(folder, "");
   std::vector<std::size_t> pending;

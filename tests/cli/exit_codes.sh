@@ -50,4 +50,12 @@ first_body="$(sed -n 's/^name = "\(.*\)"/\1/p' "$source_dir/inputs/drone-survey.
 expect 2 "a body's map named as another output" -- "$strewn" report "$work/two.h5" --svg "$work/m.svg" --csv "$work/m-$first_body.svg"
 grep -q "named for two outputs (the map of body $first_body beside --svg and --csv)" "$work/err" ||
   fail "a body's map named as another output: $(cat "$work/err")"
+# sweep: a folder of the user's under the name of the cases' folder is never emptied or removed.
+mkdir -p "$work/mine.h5.cases"
+echo "keep me" >"$work/mine.h5.cases/notes.txt"
+expect 2 "a sweep over a folder it did not make" -- "$strewn" sweep "$source_dir/tests/data/sweeps/box.toml" -n 20 -o "$work/mine.h5" --fresh --quiet
+grep -q "was not made by a strewn sweep" "$work/err" || fail "a sweep over a folder it did not make: $(cat "$work/err")"
+[[ "$(cat "$work/mine.h5.cases/notes.txt" 2>/dev/null)" == "keep me" ]] || fail "the sweep emptied a folder it did not make"
+expect 0 "a sweep in a folder of its own" -- "$strewn" sweep "$source_dir/tests/data/sweeps/box.toml" -n 20 -o "$work/own.h5" --quiet
+[[ -e "$work/own.h5.cases" ]] && fail "the sweep left its folder of cases"
 finish "exit codes"
