@@ -237,6 +237,11 @@ TEST(Scenario, EachWindSourceWritesBackItsKeys) {
       {"bias", "speed_sd = 2.0"},
       {"layered", "speed_sd = 1.5\ncorrelation_length = 600.0"},
       {"ensemble", "members = [\"member.csv\", \"member.csv\"]"}};
+  // Every registered source but the default ("none", no keys) has its row here.
+  for (const std::string& name : wind_source_names())
+    EXPECT_TRUE(name == "none" || std::any_of(tables.begin(), tables.end(),
+                                              [&](const auto& row) { return row.first == name; }))
+        << "wind source \"" << name << "\" has no row in this test";
   for (const auto& [model, keys] : tables) {
     const Scenario s = parse_scenario(
         edit("[release]", "[wind.uncertainty]\nmodel = \"" + model + "\"\n" + keys + "\n[release]"),

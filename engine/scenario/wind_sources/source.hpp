@@ -6,7 +6,8 @@
 //   static constexpr std::array<const char*, K> keys;    // the [wind.uncertainty] keys it reads
 //   struct Settings {                                    // what the scenario says of it
 //     static Settings read(WindSourceKeys&);             //   reads and checks its keys
-//     void echo(auto& table, auto&& as_read) const;      //   writes them back (scenario report)
+//     void echo(auto& table, auto&& as_read) const;      //   writes them back (as_read: a file
+//                                                        //   as the scenario wrote it)
 //     std::span<const std::vector<WindLayer>> own_profiles() const;  // flown instead of the
 //   };                                                   //   scenario's layers (none: empty)
 //   Source(const Settings&, const WindBase&);            // precomputes, once a study
