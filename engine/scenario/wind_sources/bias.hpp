@@ -17,12 +17,12 @@ class BiasWind {
     double speed_sd = 0.0;              ///< m/s, per horizontal component
     Uncertain east = 0.0, north = 0.0;  ///< the offset, m/s (sampled)
 
-    static Settings read(WindSourceKeys& keys) {
+    static Settings read(WindSourceKeys& table) {
       Settings s;
-      s.speed_sd = keys.number("speed_sd", kNonNegative, true, 0.0);
+      s.speed_sd = table.number("speed_sd", kNonNegative, true, 0.0);
       if (s.speed_sd > 0.0) {
-        s.east = keys.sampled("bias_east", Uncertain::normal(0.0, s.speed_sd));
-        s.north = keys.sampled("bias_north", Uncertain::normal(0.0, s.speed_sd));
+        s.east = table.sampled("bias_east", Uncertain::normal(0.0, s.speed_sd));
+        s.north = table.sampled("bias_north", Uncertain::normal(0.0, s.speed_sd));
       }
       return s;
     }

@@ -16,7 +16,7 @@ class EnsembleWind {
   struct Settings {
     WindFiles members;  ///< the profile files, as written and as read
 
-    static Settings read(WindSourceKeys& keys) { return {keys.profile_files("members")}; }
+    static Settings read(WindSourceKeys& table) { return {table.profile_files("members")}; }
     void echo(auto& table, auto&& as_read) const {
       table["members"] = std::remove_cvref_t<decltype(table)>::array();
       for (const auto& member : members.names) table["members"].push_back(as_read(member));

@@ -22,10 +22,10 @@ class LayeredWind {
     double speed_sd = 0.0;            ///< m/s, per horizontal component
     double correlation_length = 0.0;  ///< m
 
-    static Settings read(WindSourceKeys& keys) {
+    static Settings read(WindSourceKeys& table) {
       Settings s;
-      s.speed_sd = keys.number("speed_sd", kNonNegative, true, 0.0);
-      s.correlation_length = keys.number("correlation_length", kPositive, true, 1.0);
+      s.speed_sd = table.number("speed_sd", kNonNegative, true, 0.0);
+      s.correlation_length = table.number("correlation_length", kPositive, true, 1.0);
       return s;
     }
     void echo(auto& table, auto&& /*as_read*/) const {

@@ -10,7 +10,7 @@ class ProfileWind {
   static constexpr const char* name = "none";
   static constexpr std::array<const char*, 0> keys{};
   struct Settings {
-    static Settings read(WindSourceKeys& /*keys*/) { return {}; }
+    static Settings read(WindSourceKeys& /*table*/) { return {}; }
     void echo(auto& /*table*/, auto&& /*as_read*/) const {}
     [[nodiscard]] std::span<const std::vector<WindLayer>> own_profiles() const { return {}; }
   };
