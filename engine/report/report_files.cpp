@@ -19,6 +19,7 @@
 #include "report/cautions.hpp"
 #include "report/footprint_report.hpp"
 #include "report/json_text.hpp"
+#include "store/output_file.hpp"
 #include "store/results_file.hpp"
 
 namespace strewn {
@@ -89,13 +90,7 @@ void write_report_file(const std::string& path, const std::string& text,
                     (complete ? std::string("cannot close the file") : std::strerror(saved)) + ")");
     }
   }
-  std::error_code error;
-  fs::rename(temporary, final_path, error);
-  if (error) {
-    std::error_code ignored;
-    fs::remove(temporary, ignored);
-    throw IoError(path + ": cannot put the file in place (" + error.message() + ")");
-  }
+  durable_rename(temporary, path);
 }
 
 namespace {

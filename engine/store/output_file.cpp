@@ -185,4 +185,35 @@ OutputLock::~OutputLock() {
   ::close(fd_);
 }
 
+void durable_rename(const std::string& from, const std::string& to) {
+  namespace fs = std::filesystem;
+  const auto fail = [&](const std::string& what, int error) {
+    std::error_code ignored;
+    fs::remove(from, ignored);
+    throw IoError(to + ": " + what + " (" + std::strerror(error) + ")");
+  };
+  const int fd = ::open(from.c_str(), O_RDONLY | O_NOFOLLOW | O_CLOEXEC);
+  if (fd < 0) fail("cannot open the written file to flush it", errno);
+  if (::fsync(fd) != 0) {
+    const int error = errno;
+    ::close(fd);
+    fail("cannot flush the file to disk", error);
+  }
+  ::close(fd);
+  std::error_code renamed;
+  fs::rename(from, to, renamed);
+  if (renamed) fail("cannot put the file in place", renamed.value());
+  // The folder's new entry; a file system that cannot flush a folder (EINVAL) keeps it anyway.
+  fs::path folder = fs::path(to).parent_path();
+  if (folder.empty()) folder = ".";
+  const int dir = ::open(folder.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+  if (dir >= 0) {
+    const int synced = ::fsync(dir);
+    const int error = errno;
+    ::close(dir);
+    if (synced != 0 && error != EINVAL && error != ENOTSUP)
+      throw IoError(to + ": cannot flush its folder to disk (" + std::strerror(error) + ")");
+  }
+}
+
 }  // namespace strewn

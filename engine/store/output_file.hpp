@@ -59,6 +59,12 @@ class OutputLock {
   int fd_ = -1;
 };
 
+/// Puts the complete file `from` in place as `to`, durably: the file's data is flushed to disk
+/// (fsync) before the rename, and the folder's entry after it, so that a power cut leaves either
+/// the old state or the new, never a name pointing at data not yet written. Throws IoError when
+/// the file cannot be flushed or renamed (the file under `from` is then removed).
+void durable_rename(const std::string& from, const std::string& to);
+
 /// Opens `path` for writing as a new regular file, never through a link: an entry already there
 /// under the name (a leftover, or a link planted to redirect the write) is removed first, then
 /// the file is made with O_EXCL | O_NOFOLLOW. Returns the descriptor, or -1 with errno set.

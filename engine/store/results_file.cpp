@@ -25,6 +25,7 @@
 #include "footprint/footprint.hpp"
 #include "store/footprint_file.hpp"
 #include "store/hdf5_support.hpp"
+#include "store/output_file.hpp"
 
 namespace strewn {
 
@@ -236,8 +237,8 @@ void ResultsWriter::finish(const StudyRecord& record) {
       (void)open_.release();  // see Open::close()
       throw IoError(path_ + ": cannot close the results file");
     }
-    open_.reset();  // closed before the rename
-    std::filesystem::rename(temporary_, path_);
+    open_.reset();                      // closed before the rename
+    durable_rename(temporary_, path_);  // on disk before the checkpoint is removed
   });
 }
 

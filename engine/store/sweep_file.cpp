@@ -13,6 +13,7 @@
 #include "core/version.hpp"
 #include "pipeline/study_record.hpp"
 #include "store/hdf5_support.hpp"
+#include "store/output_file.hpp"
 #include "store/results_file.hpp"
 
 namespace strewn {
@@ -217,9 +218,7 @@ SweepSummary write_sweep_file(const std::string& path, const std::string& sweep_
     fs::remove(temporary, ignored);
     throw;
   }
-  std::error_code error;
-  fs::rename(temporary, final_path, error);
-  if (error) throw IoError(path + ": cannot put the sweep file in place (" + error.message() + ")");
+  durable_rename(temporary, final_path.string());
   return {csv, text};
 }
 

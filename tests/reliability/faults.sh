@@ -28,4 +28,30 @@ status=$?
 [[ -e "$work/vanishing/out.h5" ]] && fail "vanished folder: a file under the final name"
 echo "ok: vanished output folder ends with status 3: $(head -1 "$work/err")"
 
+# A power cut leaves the old state or the new: the results file is flushed to disk (fsync) before
+# it is renamed into place, its folder after, and only then is the checkpoint removed; a report
+# file likewise. Seen in the system calls (strace).
+if command -v strace >/dev/null; then
+  strace -f -e trace=fsync,rename,renameat,renameat2,unlink,unlinkat -o "$work/calls.txt" \
+    "$strewn" run "$source_dir/tests/data/canopy-by-height.toml" -n 200 -o "$work/durable.h5" --quiet >/dev/null
+  strace -f -e trace=fsync,rename,renameat,renameat2,unlink,unlinkat -o "$work/report-calls.txt" \
+    "$strewn" report "$work/durable.h5" --html "$work/durable.html" >/dev/null
+  python3 - "$work/calls.txt" "$work/durable.h5" "$work/report-calls.txt" "$work/durable.html" <<'PY' || fail "files are not flushed to disk around their rename"
+import re, sys
+def check(trace, final, then_removed=None):
+    calls = [l.split(None, 1)[1] for l in open(trace) if re.search(r"\b(fsync|rename\w*|unlink\w*)\(", l)]
+    at = next(i for i, c in enumerate(calls) if "rename" in c and f'"{final}"' in c)
+    assert calls[at - 1].startswith("fsync("), f"no fsync of the file before its rename: {calls[at - 1]}"
+    assert calls[at + 1].startswith("fsync("), f"no fsync of the folder after the rename: {calls[at + 1]}"
+    if then_removed:
+        gone = next(i for i, c in enumerate(calls) if "unlink" in c and then_removed in c)
+        assert gone > at + 1, "the checkpoint was removed before the results were on disk"
+check(sys.argv[1], sys.argv[2], sys.argv[2] + ".checkpoint")
+check(sys.argv[3], sys.argv[4])
+PY
+  echo "ok: results and report files are on disk before their names, and before the checkpoint goes"
+else
+  fail "strace is missing (scripts/packages.txt lists it)"
+fi
+
 finish "fault tests"
