@@ -95,28 +95,45 @@ std::vector<double> tail_probabilities(const std::vector<double>& levels) {
   return q;
 }
 
-// Sorted sparse grid of one body's landed impacts.
+// Sorted sparse grid of one body's landed impacts. Cells are keyed by their two indices packed
+// into one 64-bit word (32 bits each) for a radix sort; impacts farther than 2^31 cells from the
+// origin (a grid of millimetres over a long range) take the general sort of index pairs instead,
+// never a failure after every flight.
 ImpactGrid grid_of(std::span<const double> east, std::span<const double> north, double cell,
                    double objects, std::uint64_t releases) {
   ImpactGrid g;
   g.cell = cell;
-  std::vector<std::uint64_t> keys(east.size());
+  const std::size_t n = east.size();
+  std::vector<std::pair<std::int64_t, std::int64_t>> cells(n);
+  // An index beyond what 64 bits hold (4e15 km at the smallest cell, 1 mm) is held at the edge.
+  constexpr double kLargest = 4e18;
+  bool packable = true;
   constexpr std::int64_t kOffset = std::int64_t{1} << 31;
-  for (std::size_t i = 0; i < east.size(); ++i) {
-    const auto ie = static_cast<std::int64_t>(std::floor(east[i] / cell));
-    const auto in = static_cast<std::int64_t>(std::floor(north[i] / cell));
-    if (ie <= -kOffset || ie >= kOffset || in <= -kOffset || in >= kOffset)
-      throw std::invalid_argument("an impact lies more than 2^31 grid cells from the origin");
-    keys[i] =
-        (static_cast<std::uint64_t>(ie + kOffset) << 32) | static_cast<std::uint64_t>(in + kOffset);
+  for (std::size_t i = 0; i < n; ++i) {
+    const double e = std::clamp(std::floor(east[i] / cell), -kLargest, kLargest);
+    const double o = std::clamp(std::floor(north[i] / cell), -kLargest, kLargest);
+    cells[i] = {static_cast<std::int64_t>(e), static_cast<std::int64_t>(o)};
+    packable = packable && cells[i].first > -kOffset && cells[i].first < kOffset &&
+               cells[i].second > -kOffset && cells[i].second < kOffset;
   }
-  boost::sort::spreadsort::integer_sort(keys.begin(), keys.end());
+  if (packable) {
+    std::vector<std::uint64_t> keys(n);
+    for (std::size_t i = 0; i < n; ++i)
+      keys[i] = (static_cast<std::uint64_t>(cells[i].first + kOffset) << 32) |
+                static_cast<std::uint64_t>(cells[i].second + kOffset);
+    boost::sort::spreadsort::integer_sort(keys.begin(), keys.end());
+    for (std::size_t i = 0; i < n; ++i)
+      cells[i] = {static_cast<std::int64_t>(keys[i] >> 32) - kOffset,
+                  static_cast<std::int64_t>(keys[i] & 0xffffffffULL) - kOffset};
+  } else {
+    std::sort(cells.begin(), cells.end());
+  }
   const double per_hit = releases ? objects / (static_cast<double>(releases) * cell * cell) : kNaN;
-  for (std::size_t i = 0; i < keys.size();) {
+  for (std::size_t i = 0; i < n;) {
     std::size_t j = i + 1;
-    while (j < keys.size() && keys[j] == keys[i]) ++j;
-    g.east_index.push_back(static_cast<std::int64_t>(keys[i] >> 32) - kOffset);
-    g.north_index.push_back(static_cast<std::int64_t>(keys[i] & 0xffffffffULL) - kOffset);
+    while (j < n && cells[j] == cells[i]) ++j;
+    g.east_index.push_back(cells[i].first);
+    g.north_index.push_back(cells[i].second);
     g.count.push_back(j - i);
     g.density.push_back(static_cast<double>(j - i) * per_hit);
     i = j;

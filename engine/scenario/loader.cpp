@@ -632,7 +632,10 @@ class Loader {
     st.tolerance = s.number("tolerance", st.tolerance,
                             Bounds{1e-6, 100.0, false, false, "a tolerance from 1e-6 to 100 m"});
     st.energy_threshold = s.number("energy_threshold", st.energy_threshold, kNonNegative);
-    st.grid = s.number("grid", st.grid, kPositive);
+    // A cell below a millimetre is far below the impacts' accuracy (study.tolerance is at least a
+    // micrometre, a flight's spread metres) and would make the map's cells countless.
+    constexpr Bounds kGridCell{0.001, kInf, false, false, "at least 0.001 m"};
+    st.grid = s.number("grid", st.grid, kGridCell);
     if (auto w = s.number("target_width", kOpenUnit)) st.target_width = w;
     st.max_samples = s.integer("max_samples", 1, 2000000000L).value_or(st.max_samples);
     st.max_failed = s.number("max_failed", st.max_failed, kProbability);

@@ -50,6 +50,28 @@ first_body="$(sed -n 's/^name = "\(.*\)"/\1/p' "$source_dir/inputs/drone-survey.
 expect 2 "a body's map named as another output" -- "$strewn" report "$work/two.h5" --svg "$work/m.svg" --csv "$work/m-$first_body.svg"
 grep -q "named for two outputs (the map of body $first_body beside --svg and --csv)" "$work/err" ||
   fail "a body's map named as another output: $(cat "$work/err")"
+# A map of millimetre cells 3000 km from the site: indices beyond 2^31 cells, which used to fail
+# after every flight (status 3); each impact is in the cell floor(east / cell), floor(north / cell).
+sed -e 's|^track = .*|&\neast = 3000000.0|' -e 's|^energy_threshold = .*|&\ngrid = 0.001|' \
+  -e 's|^file = .*|file = "far.h5"|' "$source_dir/inputs/ridge-drop.toml" >"$work/far.toml"
+expect 0 "a millimetre map 3000 km away" -- "$strewn" run "$work/far.toml" -n 300 --quiet
+if python3 - "$work/far.h5" <<'PY'; then echo "ok: the millimetre map 3000 km away holds each impact in its cell"; else fail "the millimetre map does not hold each impact in its cell"; fi
+import collections, math, re, subprocess, sys
+def column(name):
+    text = subprocess.run(["h5dump", "-y", "-w", "0", "-m", "%.17g", "-d", name, sys.argv[1]], capture_output=True,
+                          text=True, check=True).stdout
+    return [float(x) for x in re.search(r"DATA \{(.*?)\}", text, re.S).group(1).replace(",", " ").split()]
+east, north = column("/samples/east"), column("/samples/north")
+ei, ni, count = column("/footprint/bundle/grid/east_index"), column("/footprint/bundle/grid/north_index"), column("/footprint/bundle/grid/count")
+expected = collections.Counter((math.floor(e / 0.001), math.floor(n / 0.001)) for e, n in zip(east, north))
+got = {(int(a), int(b)): int(c) for a, b, c in zip(ei, ni, count)}
+assert min(ei) > 2**31, min(ei)
+assert got == dict(expected), (len(got), len(expected))
+assert [(int(a), int(b)) for a, b in zip(ei, ni)] == sorted(got), "cells not in (east, north) order"
+PY
+sed 's|^grid = 0.001|grid = 0.0005|' "$work/far.toml" >"$work/finer.toml"
+expect 2 "a map cell below a millimetre" -- "$strewn" check "$work/finer.toml"
+grep -q "study.grid: must be at least 0.001 m" "$work/err" || fail "a map cell below a millimetre: $(cat "$work/err")"
 # sweep: a folder of the user's under the name of the cases' folder is never emptied or removed.
 mkdir -p "$work/mine.h5.cases"
 echo "keep me" >"$work/mine.h5.cases/notes.txt"
