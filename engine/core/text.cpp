@@ -105,13 +105,10 @@ std::pair<char32_t, std::size_t> decode_utf8(std::string_view text, std::size_t 
   return {code, length};
 }
 
-namespace {
-// Characters a terminal acts on or that reorder the text around them.
-bool inert_needed(char32_t c) {
+bool acts_on_text(char32_t c) {
   return (c < 0x20 && c != U'\n' && c != U'\t') || (c >= 0x7F && c <= 0x9F) || c == 0x200E ||
          c == 0x200F || (c >= 0x202A && c <= 0x202E) || (c >= 0x2066 && c <= 0x2069);
 }
-}  // namespace
 
 std::size_t invalid_utf8_at(std::string_view text) {
   for (std::size_t i = 0; i < text.size();) {
@@ -132,7 +129,7 @@ std::string printable(std::string_view text) {
       ++i;
       continue;
     }
-    if (inert_needed(code))
+    if (acts_on_text(code))
       out += printf_text("\\u%04X", static_cast<unsigned>(code));
     else
       out.append(text.substr(i, length));

@@ -31,6 +31,11 @@ std::pair<char32_t, std::size_t> decode_utf8(std::string_view text, std::size_t 
 /// nothing above U+10FFFF), or std::string_view::npos when it is UTF-8 throughout.
 std::size_t invalid_utf8_at(std::string_view text);
 
+/// Whether a character acts on the text around it rather than being shown: a control character
+/// (C0 but line feed and tab, DEL, C1) or a bidirectional formatting character of Unicode's
+/// UAX #9 (U+200E, U+200F, U+202A..U+202E, U+2066..U+2069).
+bool acts_on_text(char32_t code);
+
 /// Text as a terminal may show it, inert: control characters (C0 but line feed and tab, DEL,
 /// C1) and the marks that reorder text (U+200E, U+200F, U+202A..U+202E, U+2066..U+2069, the
 /// bidirectional controls of Unicode's UAX #9) written as \uXXXX, and bytes that are not UTF-8

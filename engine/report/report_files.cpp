@@ -46,12 +46,15 @@ std::string escape_markup(const std::string& text) {
         out += "&#39;";
         break;
       default:
-        // XML 1.0 (section 2.2, Char) admits no C0 control character but tab, line feed and
-        // carriage return, and neither U+FFFE nor U+FFFF; any of them, or bytes that are not
-        // UTF-8 (a damaged file), would make the map a parse error: shown as U+FFFD instead.
-        if (length == 0 || (code < 0x20 && code != '\t' && code != '\n' && code != '\r') ||
-            code == 0xFFFE || code == 0xFFFF)
+        // Bytes that are not UTF-8 (a damaged file) and U+FFFE, U+FFFF, which XML 1.0 (section
+        // 2.2, Char) does not admit, are shown as U+FFFD. Control characters (of which XML admits
+        // only tab, line feed and carriage return) and the marks that reorder text (a
+        // right-to-left override would show "exe.fdp" as "pdf.exe") are shown as \uXXXX, inert,
+        // as on a terminal.
+        if (length == 0 || code == 0xFFFE || code == 0xFFFF)
           out += "\xEF\xBF\xBD";
+        else if (code != '\r' && acts_on_text(code))
+          out += printf_text("\\u%04X", static_cast<unsigned>(code));
         else
           out.append(text, i, length);
     }
