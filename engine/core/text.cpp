@@ -28,18 +28,19 @@ std::size_t edit_distance(std::string_view a, std::string_view b) {
   return prev[m];
 }
 
+std::string ascii_lower(std::string_view text) {
+  std::string out(text);
+  std::transform(out.begin(), out.end(), out.begin(),
+                 [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
+  return out;
+}
+
 std::string closest_match(std::string_view word, const std::vector<std::string>& candidates) {
-  auto lower = [](std::string_view s) {
-    std::string out(s);
-    std::transform(out.begin(), out.end(), out.begin(),
-                   [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
-    return out;
-  };
-  const std::string word_lower = lower(word);
+  const std::string word_lower = ascii_lower(word);
   std::string best;
   std::size_t best_distance = std::max<std::size_t>(1, word.size() / 3) + 1;
   for (const auto& candidate : candidates) {
-    const std::string cand_lower = lower(candidate);
+    const std::string cand_lower = ascii_lower(candidate);
     std::size_t d = edit_distance(word_lower, cand_lower);
     // A key that contains the candidate or is contained in it (e.g. "drag_area" for "area") is a
     // likely intent too, but only when the shorter one is not trivially short.

@@ -10,6 +10,9 @@ namespace strewn {
 /// Optimal string alignment distance (Damerau-Levenshtein with adjacent transpositions).
 std::size_t edit_distance(std::string_view a, std::string_view b);
 
+/// `text` with its ASCII letters in lower case (other bytes, UTF-8 included, as they are).
+std::string ascii_lower(std::string_view text);
+
 /// The candidate closest to `word` when it is plausibly a misspelling (distance at most a third of
 /// its length, at least 1, or a case-insensitive match); empty otherwise.
 std::string closest_match(std::string_view word, const std::vector<std::string>& candidates);

@@ -1,7 +1,6 @@
 // Scenario loading: TOML (toml++) into the validated Scenario model. Every problem is collected
 // with its key path and line; nothing is thrown until the whole file has been read.
 #include <algorithm>
-#include <cctype>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
@@ -45,9 +44,9 @@ class Loader {
     // Names and titles go to HDF5, JSON, SVG and the terminal, which all need UTF-8: text in
     // another encoding is refused here, with its line, rather than failing in a writer later.
     if (const auto bad = invalid_utf8_at(scenario_.text); bad != std::string::npos) {
-      const auto line_start = scenario_.text.rfind('\n', bad == 0 ? 0 : bad - 1);
-      const std::size_t column =
-          line_start == std::string::npos || bad == 0 ? bad + 1 : bad - line_start;
+      // The bad byte is not a line feed: the line starts after the last one before it.
+      const auto line_feed = scenario_.text.rfind('\n', bad);
+      const std::size_t column = line_feed == std::string::npos ? bad + 1 : bad - line_feed;
       diagnostics_.add(
           "",
           static_cast<long>(std::count(scenario_.text.begin(),
@@ -433,12 +432,8 @@ class Loader {
       diagnostics_.add(t.key_path("name"), t.line_of("name"),
                        "duplicate body name \"" + b.name + "\": each [[body]] needs its own name");
     } else if (name) {
-      const auto folded = [](std::string text) {
-        for (char& c : text) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
-        return text;
-      };
       for (const auto& other : scenario_.bodies)
-        if (folded(other.name) == folded(b.name))
+        if (ascii_lower(other.name) == ascii_lower(b.name))
           diagnostics_.add(t.key_path("name"), t.line_of("name"),
                            "\"" + b.name + "\" differs from body \"" + other.name +
                                "\" only in case: their map files (<map>-<name>.svg) would be one "

@@ -136,6 +136,10 @@ TEST(HostileText, ScenarioTextThatIsNotUtf8IsRefusedWithItsLine) {
   EXPECT_EQ(problems[0].line, 5);
   EXPECT_NE(problems[0].message.find("byte 11 of the line is not UTF-8"), std::string::npos)
       << problems[0].describe();
+  // The first byte of the file, and the first byte of a line, are counted as byte 1.
+  EXPECT_TRUE(has_problem(problems_of("\xFF" + kScenario), 1, "byte 1 of the line is not UTF-8"));
+  EXPECT_TRUE(
+      has_problem(problems_of("title = \"t\"\n\xFF\n"), 2, "byte 1 of the line is not UTF-8"));
   // The same name in UTF-8 is a name like any other.
   std::string utf8 = kScenario;
   utf8.replace(utf8.find("name = \"crate\""), 14, "name = \"cr\xC3\xA8te\"");
