@@ -69,7 +69,7 @@ class Loader {
     Table top(diagnostics_, &root, "", 1);
     if (const toml::node* n = top.node("title")) {
       // The title is an attribute of the results file, whose attributes share one object header
-      // of 64 KiB (HDF5 File Format Specification, version 2 object headers): a title far below
+      // of 64 KiB (HDF5 File Format Specification, object headers; from memory): a title far below
       // that, refused here rather than when the file is written after every flight.
       constexpr std::size_t kLongestTitle = 4096;
       if (const auto* s = n->as_string(); s && s->get().size() > kLongestTitle)

@@ -174,9 +174,9 @@ area = 0.3
 
 // What the results file cannot hold is refused at load, not after every flight: a title longer
 // than 4096 bytes, more than 256 bodies (the results file's attributes share one object header
-// of 64 KiB: HDF5 File Format Specification, section IV.A.1). A 4096-byte title and 256 bodies
-// with names of 64 characters were written and reported whole (tests/reliability/hostile_names.sh
-// runs the longest title).
+// of 64 KiB: HDF5 File Format Specification, section IV.A.1, from memory). A 4096-byte title and
+// 256 bodies with names of 64 characters were written and reported whole
+// (tests/reliability/hostile_names.sh runs the longest title).
 TEST(HostileText, WhatTheResultsFileCannotHoldIsRefusedAtLoad) {
   std::string long_title = kScenario;
   long_title.replace(0, 11, "title = \"" + std::string(4097, 'x') + "\"");
@@ -195,7 +195,7 @@ TEST(HostileText, WhatTheResultsFileCannotHoldIsRefusedAtLoad) {
 // Table files (soundings, wind profiles): a UTF-8 byte-order mark before the header and CR LF
 // line ends are read as the same table; a column named twice and bytes that are not UTF-8 are
 // refused with their line. (The byte-order mark is U+FEFF encoded, EF BB BF: Unicode 15.0,
-// section 23.8.)
+// section 23.8, from memory.)
 TEST(HostileText, TableFilesWithMarksLineEndsAndDuplicateColumns) {
   const test::ScratchFolder folder("tables");
   const std::vector<std::string> columns{"altitude_m", "speed_ms", "from_deg"};
