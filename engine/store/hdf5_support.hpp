@@ -17,6 +17,25 @@ namespace strewn::hdf5 {
 /// concurrent calls (a sweep writes several cases' files from several threads).
 std::recursive_mutex& hdf5_mutex();
 
+/// Refuses (an HDF5 exception, which the readers report as a damaged file) a dataset or attribute
+/// of `object` that declares more values than its file could hold, before anything is allocated
+/// for them: deflate expands at most 1032 times (zlib technical details, "maximum compression
+/// factor"), and strewn writes every value it declares, so `count` values of `size` bytes need
+/// at least count * size / 1032 bytes of file.
+inline void check_declared_size(const H5::H5Object& object, hsize_t count, std::size_t size,
+                                const std::string& name) {
+  hsize_t file_bytes = 0;
+  const hid_t file = H5Iget_file_id(object.getId());
+  if (file >= 0) {
+    H5Fget_filesize(file, &file_bytes);
+    H5Fclose(file);
+  }
+  const long double declared = static_cast<long double>(count) * static_cast<long double>(size);
+  if (declared > 1032.0L * static_cast<long double>(file_bytes) + 65536.0L)
+    throw H5::DataSetIException(
+        "read", name + " declares " + std::to_string(count) + " values, more than the file holds");
+}
+
 template <class T>
 H5::PredType type_of() {
   if constexpr (std::is_same_v<T, double>)
@@ -70,9 +89,13 @@ inline std::vector<const char*> pointers_to(const std::vector<std::string>& valu
 // Strings of variable length read by `read(pointers, type)` from an attribute or dataset of
 // `space`, copied out and their memory given back to HDF5.
 template <class Read>
-std::vector<std::string> read_variable_strings(const H5::DataSpace& space, Read read) {
+std::vector<std::string> read_variable_strings(const H5::H5Object& object, const std::string& name,
+                                               const H5::DataSpace& space, Read read) {
+  if (space.getSimpleExtentNdims() != 1)
+    throw H5::DataSetIException("read_variable_strings", name + " is not 1-D");
   hsize_t count = 0;
   space.getSimpleExtentDims(&count);
+  check_declared_size(object, count, sizeof(char*), name);
   std::vector<std::string> values;
   if (count == 0) return values;
   H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
@@ -138,8 +161,12 @@ void read_attributes(const H5::H5Object& object, Record& record,
 inline std::vector<double> read_vector_attribute(const H5::H5Object& object,
                                                  const std::string& name) {
   H5::Attribute a = object.openAttribute(name);
+  const H5::DataSpace space = a.getSpace();
+  if (space.getSimpleExtentNdims() != 1)
+    throw H5::AttributeIException("read_vector_attribute", name + " is not 1-D");
   hsize_t count = 0;
-  a.getSpace().getSimpleExtentDims(&count);
+  space.getSimpleExtentDims(&count);
+  check_declared_size(object, count, sizeof(double), name);
   std::vector<double> values(count);
   if (count) a.read(type_of<double>(), values.data());
   return values;
@@ -148,7 +175,7 @@ inline std::vector<double> read_vector_attribute(const H5::H5Object& object,
 inline std::vector<std::string> read_strings_attribute(const H5::H5Object& object,
                                                        const std::string& name) {
   H5::Attribute a = object.openAttribute(name);
-  return read_variable_strings(a.getSpace(),
+  return read_variable_strings(object, name, a.getSpace(),
                                [&](char** to, const H5::StrType& type) { a.read(type, to); });
 }
 
@@ -178,6 +205,7 @@ std::vector<T> read_vector(const H5::Group& group, const std::string& name) {
     throw H5::DataSetIException("read_vector", name + " is not 1-D");
   hsize_t rows = 0;
   space.getSimpleExtentDims(&rows);
+  check_declared_size(group, rows, sizeof(T), name);
   std::vector<T> values(rows);
   if (rows > 0) set.read(values.data(), type_of<T>());
   return values;
@@ -194,7 +222,7 @@ inline void write_strings(H5::Group& group, const std::string& name,
 
 inline std::vector<std::string> read_strings(const H5::Group& group, const std::string& name) {
   H5::DataSet set = group.openDataSet(name);
-  return read_variable_strings(set.getSpace(),
+  return read_variable_strings(group, name, set.getSpace(),
                                [&](char** to, const H5::StrType& type) { set.read(to, type); });
 }
 

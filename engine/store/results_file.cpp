@@ -23,6 +23,7 @@
 #include "core/text.hpp"
 #include "core/version.hpp"
 #include "footprint/footprint.hpp"
+#include "store/file_seal.hpp"
 #include "store/footprint_file.hpp"
 #include "store/hdf5_support.hpp"
 #include "store/output_file.hpp"
@@ -170,7 +171,7 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
     // Made new, never through a link planted under the temporary name.
     std::error_code ignored;
     std::filesystem::remove(temporary_, ignored);
-    open->file = H5::H5File(temporary_, H5F_ACC_EXCL);
+    open->file = H5::H5File(temporary_, H5F_ACC_EXCL, sealed_file_properties());
     H5::H5File& file = open->file;
     write_attribute(file, "format_version", kResultsFormatVersion);
     write_attribute(file, "engine_version", std::string(kEngineVersion));
@@ -237,7 +238,14 @@ void ResultsWriter::finish(const StudyRecord& record) {
       (void)open_.release();  // see Open::close()
       throw IoError(path_ + ": cannot close the results file");
     }
-    open_.reset();                      // closed before the rename
+    open_.reset();  // closed before the seal and the rename
+    try {
+      seal_file(temporary_);
+    } catch (...) {
+      std::error_code ignored;
+      std::filesystem::remove(temporary_, ignored);  // never left half sealed
+      throw;
+    }
     durable_rename(temporary_, path_);  // on disk before the checkpoint is removed
   });
 }
@@ -337,6 +345,8 @@ void check_results_path(const std::string& path) {
     throw InputFileError(path + ": is a folder, not a results file");
   if (H5::H5File::isHdf5(path.c_str()) <= 0)
     throw InputFileError(path + ": not an HDF5 file (a strewn results file is HDF5)");
+  // Nothing in a damaged file is believed, and the HDF5 library never parses one.
+  check_seal(path);
 }
 
 // The file's format version; refuses a file without one or of another version.
@@ -426,7 +436,9 @@ ResultsFile read_results(const std::string& path, bool with_samples,
     read_attributes(root, record, run_counters());
     {
       H5::DataSet text = root.openDataSet("scenario");
-      text.read(record.scenario_text, text.getStrType());
+      const H5::StrType type = text.getStrType();
+      check_declared_size(root, 1, type.getSize(), "scenario");
+      text.read(record.scenario_text, type);
     }
     H5::Group samples = root.openGroup("samples");
     r.body_names = read_strings_attribute(samples, "body_names");

@@ -12,6 +12,7 @@
 #include "core/text.hpp"
 #include "core/version.hpp"
 #include "pipeline/study_record.hpp"
+#include "store/file_seal.hpp"
 #include "store/hdf5_support.hpp"
 #include "store/output_file.hpp"
 #include "store/results_file.hpp"
@@ -195,7 +196,7 @@ SweepSummary write_sweep_file(const std::string& path, const std::string& sweep_
   try {
     std::error_code ignored;
     fs::remove(temporary, ignored);  // made new, never through a link under the name
-    H5::H5File file(temporary, H5F_ACC_EXCL);
+    H5::H5File file(temporary, H5F_ACC_EXCL, sealed_file_properties());
     write_sweep_header(file, sweep_text, axis_keys, zip, cases.size(), ranks);
     H5::Group all_cases = file.createGroup("cases");
     SummaryColumns table;  // filled case by case
@@ -208,7 +209,10 @@ SweepSummary write_sweep_file(const std::string& path, const std::string& sweep_
       add_summary_row(table, i, path, cases[i], r);
     }
     csv = summary_csv(table, write_summary(file, table, axis_keys));
-    file.flush(H5F_SCOPE_GLOBAL);
+    // Every object closed first: HDF5 writes a file out only when its last object is closed.
+    all_cases.close();
+    file.close();
+    seal_file(temporary);
   } catch (const H5::Exception& e) {
     std::error_code ignored;
     fs::remove(temporary, ignored);

@@ -18,6 +18,7 @@
 #include "app/commands.hpp"
 #include "command_line.hpp"
 #include "report/report_files.hpp"
+#include "store/file_seal.hpp"
 #include "support.hpp"
 
 namespace strewn {
@@ -184,19 +185,44 @@ TEST_F(Report, RefusesBadResultsFilesWithStatusTwo) {
     EXPECT_EQ(r.status, 2);
     EXPECT_FALSE(r.err.empty());
   }
-  // Another format version.
+  // Another format version, in a file sealed again after the change (else its seal refuses it
+  // first, as the next check shows).
   {
     std::filesystem::copy_file(file_, dir_ / "old.h5");
-    H5::H5File old((dir_ / "old.h5").string(), H5F_ACC_RDWR);
-    old.removeAttr("format_version");
-    const int version = 1;
-    old.createAttribute("format_version", H5::PredType::NATIVE_INT, H5::DataSpace())
-        .write(H5::PredType::NATIVE_INT, &version);
+    {
+      H5::H5File old((dir_ / "old.h5").string(), H5F_ACC_RDWR);
+      old.removeAttr("format_version");
+      const int version = 1;
+      old.createAttribute("format_version", H5::PredType::NATIVE_INT, H5::DataSpace())
+          .write(H5::PredType::NATIVE_INT, &version);
+    }
+    std::filesystem::copy_file(dir_ / "old.h5", dir_ / "changed.h5");
+    refused((dir_ / "changed.h5").string(), "strewn sealed it with");
+    seal_file((dir_ / "old.h5").string());
   }
   refused((dir_ / "old.h5").string(), "format version 1");
-  // An HDF5 file that strewn did not write.
+  // A crafted file, sealed again, whose dataset declares 2^36 values that are not there: refused
+  // before anything is allocated for them.
+  {
+    std::filesystem::copy_file(file_, dir_ / "huge.h5");
+    {
+      H5::H5File huge((dir_ / "huge.h5").string(), H5F_ACC_RDWR);
+      huge.unlink("footprint/all/containment/level");
+      const hsize_t rows = hsize_t{1} << 36, chunk = 1024;
+      H5::DSetCreatPropList properties;
+      properties.setChunk(1, &chunk);
+      huge.createDataSet("footprint/all/containment/level", H5::PredType::NATIVE_DOUBLE,
+                         H5::DataSpace(1, &rows), properties);
+    }
+    seal_file((dir_ / "huge.h5").string());
+  }
+  refused((dir_ / "huge.h5").string(), "more than the file holds");
+  // An HDF5 file that strewn did not write (no seal), and one sealed but without strewn's layout.
   { H5::H5File other((dir_ / "other.h5").string(), H5F_ACC_TRUNC); }
-  refused((dir_ / "other.h5").string(), "not a strewn results file");
+  refused((dir_ / "other.h5").string(), "has no strewn seal");
+  { H5::H5File other((dir_ / "sealed.h5").string(), H5F_ACC_TRUNC, sealed_file_properties()); }
+  seal_file((dir_ / "sealed.h5").string());
+  refused((dir_ / "sealed.h5").string(), "not a strewn results file");
 }
 
 // study.target_width: parts of samples are added until the widest containment bound is within
