@@ -21,6 +21,7 @@
 #include <optional>
 #include <sstream>
 
+#include "app/read_deadline.hpp"
 #include "cluster/job.hpp"
 #include "cluster/rank_flights.hpp"
 #include "cluster/sweep.hpp"
@@ -458,7 +459,12 @@ void refuse_report_outputs(const std::vector<ReportOutput>& outputs, const std::
 
 int run_report(const ReportArguments& a, std::ostream& out) {
   const bool need_samples = !a.geojson.empty() && a.impacts;
-  ResultsFile file = read_results(a.results, need_samples, a.sweep_case);
+  ResultsFile file = [&] {
+    std::error_code unknown;
+    const ReadDeadline deadline(
+        a.results, ReadDeadline::limit_for(std::filesystem::file_size(a.results, unknown)));
+    return read_results(a.results, need_samples, a.sweep_case);
+  }();
   if (need_samples && !file.has_samples)
     throw UsageError(a.results +
                      ": --impacts needs the per-sample table, which this study did "
