@@ -18,6 +18,7 @@
 #include "footprint/figures.hpp"
 #include "report/cautions.hpp"
 #include "report/footprint_report.hpp"
+#include "report/geojson_rings.hpp"
 #include "report/json_text.hpp"
 #include "store/output_file.hpp"
 #include "store/results_file.hpp"
@@ -126,17 +127,17 @@ std::vector<PlanePoint> ellipse_ring(PlanePoint c, double a, double b, double be
 
 struct GeoFrame {
   GeographicLib::LocalCartesian frame;
-  nlohmann::json point(PlanePoint p) const {
+  LonLat lonlat(PlanePoint p) const {
     double lat = 0.0, lon = 0.0, h = 0.0;
     frame.Reverse(p.east, p.north, 0.0, lat, lon, h);
-    // 1e-7 degrees is about a centimetre: enough, and RFC 7946 (11.2) advises no more.
-    return {std::round(lon * 1e7) / 1e7, std::round(lat * 1e7) / 1e7};
+    return {lon, lat};
   }
-  nlohmann::json ring(const std::vector<PlanePoint>& ccw) const {
-    nlohmann::json r = nlohmann::json::array();
-    for (const auto& p : ccw) r.push_back(point(p));
-    r.push_back(point(ccw.front()));  // closed
-    return r;
+  nlohmann::json point(PlanePoint p) const { return geojson_position(lonlat(p)); }
+  // A ring cut at the antimeridian or drawn as a polar cap where it must be (RFC 7946 3.1.9).
+  nlohmann::json geometry(const std::vector<PlanePoint>& ccw) const {
+    std::vector<LonLat> ring;
+    for (const auto& p : ccw) ring.push_back(lonlat(p));
+    return ring_geometry(ring);
   }
 };
 
@@ -146,10 +147,11 @@ nlohmann::json feature(nlohmann::json geometry, nlohmann::json properties) {
           {"properties", std::move(properties)}};
 }
 
-// A closed polygon feature of a ring given counter-clockwise in east/north metres.
+// A closed polygon feature of a ring given counter-clockwise in east/north metres (a
+// MultiPolygon when cut at the antimeridian).
 nlohmann::json polygon_feature(const GeoFrame& geo, const std::vector<PlanePoint>& ccw,
                                nlohmann::json properties) {
-  return feature({{"type", "Polygon"}, {"coordinates", {geo.ring(ccw)}}}, std::move(properties));
+  return feature(geo.geometry(ccw), std::move(properties));
 }
 
 // A group's hazard polygons and containment circles (estimate and upper bound).

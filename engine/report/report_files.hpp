@@ -14,8 +14,10 @@ namespace strewn {
 /// east/north frame by GeographicLib's LocalCartesian at the site origin and ground height:
 /// hazard polygons, containment circles (estimate and upper bound) and dispersion ellipses as
 /// polygons, the centre, mean and release points, and with `impacts` every landed impact (one
-/// MultiPoint per body). Rings are closed and counter-clockwise. Throws UsageError when the site
-/// has no coordinates.
+/// MultiPoint per body). Rings are closed and counter-clockwise, longitudes in [-180, 180]; a ring
+/// across the antimeridian is cut there into a MultiPolygon (RFC 7946 3.1.9), a ring about a pole
+/// is a polar cap to the pole along the antimeridian. Throws UsageError when the site has no
+/// coordinates.
 std::string geojson_text(const StudyRecord& record, const StudyColumns* impacts);
 
 /// Every figure as CSV, one row per figure: group, figure, level, estimate, interval, bound.
