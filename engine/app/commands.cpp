@@ -35,6 +35,7 @@
 #include "report/trace_report.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/world.hpp"
+#include "store/output_file.hpp"
 #include "store/results_file.hpp"
 
 namespace strewn {
@@ -72,6 +73,8 @@ struct RunArguments {
   bool json = false;
   bool timing = false;
   bool resume = false;
+  bool force = false;          // replace a results file already there
+  bool allow_outside = false;  // let the scenario's output.file lie outside its folder
 };
 
 // Set by SIGINT, SIGTERM and SIGHUP while a study runs (a lock-free atomic exchange is safe in a
@@ -162,6 +165,21 @@ std::string output_origin(const RunArguments& a, const Scenario& s) {
   return !a.output.empty() || s.output.file.empty()
              ? ""
              : s.path + ":" + std::to_string(s.output.file_line) + ": output.file: ";
+}
+
+// What the command line allows the results file: replacing a file already there (--force), and,
+// for the file the scenario names, lying outside the scenario's folder. A scenario may come from
+// someone else: what it names is kept beside it unless the user allows more, by naming the file
+// with -o or by --allow-outside.
+OutputRules output_rules(const RunArguments& a, const Scenario& s) {
+  OutputRules rules;
+  rules.replace = a.force;
+  if (a.output.empty() && !s.output.file.empty() && !a.allow_outside) {
+    const std::filesystem::path own = std::filesystem::path(s.path).parent_path();
+    rules.within = own.empty() ? "." : own.string();
+    rules.within_what = "the scenario's folder";
+  }
+  return rules;
 }
 
 // Refuses a study whose rows and statistics would not fit in this machine's memory, saying how
@@ -312,7 +330,8 @@ void prepare_run(const RunArguments& a, const Job& job, PreparedRun& run) {
   run.origin = output_origin(a, run.scenario);
   if (job.leader()) {
     // Refuse an unwritable destination before any flight (a missing folder is made).
-    prepare_output(run.path, run.origin, true, run.scenario.files_read);
+    prepare_output(run.path, run.origin, true, run.scenario.files_read,
+                   output_rules(a, run.scenario));
     // One writer per output: a second run or resume on it meanwhile is refused.
     run.lock.emplace(run.path);
   }
@@ -407,6 +426,7 @@ struct ReportArguments {
   bool json = false;
   std::string geojson, svg, html, csv;
   bool impacts = false;
+  bool force = false;  // replace output files already there
 };
 
 // One file `report` writes: its path, the option that named it, and for a body's own map the
@@ -440,12 +460,16 @@ std::vector<ReportOutput> report_outputs(const ReportArguments& a, const StudyRe
 }
 
 // Every output is checked before any is written: none may be a file the command reads, a
-// folder, a device or a link, and no two may be one file (the second would replace the first).
-void refuse_report_outputs(const std::vector<ReportOutput>& outputs, const std::string& results) {
+// folder, a device or a link, nor a file already there without --force, and no two may be one
+// file (the second would replace the first).
+void refuse_report_outputs(const std::vector<ReportOutput>& outputs, const std::string& results,
+                           bool force) {
   namespace fs = std::filesystem;
+  OutputRules rules;
+  rules.replace = force;
   std::vector<fs::path> seen;
   for (const auto& output : outputs) {
-    refuse_unsafe_output(output.path, "", {results});
+    refuse_unsafe_output(output.path, "", {results}, rules);
     std::error_code ec;
     fs::path resolved = fs::weakly_canonical(fs::absolute(output.path), ec);
     if (ec) resolved = fs::absolute(output.path).lexically_normal();
@@ -471,7 +495,7 @@ int run_report(const ReportArguments& a, std::ostream& out) {
                      "not keep (output.samples = false)");
   const StudyRecord& record = file.record;
   const auto outputs = report_outputs(a, record);
-  refuse_report_outputs(outputs, a.results);
+  refuse_report_outputs(outputs, a.results, a.force);
   std::vector<std::string> written;
   for (const auto& output : outputs) {
     std::string text;
@@ -566,6 +590,7 @@ struct SweepArguments {
 struct CheckArguments {
   std::string scenario;
   bool json = false;
+  bool allow_outside = false;
 };
 
 // Each command's options, one function a command: the command is returned.
@@ -603,6 +628,9 @@ CLI::App* add_run_command(CLI::App& app, RunArguments& a) {
   command->add_flag(
       "--timing", a.timing,
       "Print the study's wall time (from input read to file written) on standard error");
+  command->add_flag("--force", a.force, "Replace the results file if it exists");
+  command->add_flag("--allow-outside", a.allow_outside,
+                    "Let the scenario's output.file lie outside the scenario's folder");
   return command;
 }
 
@@ -620,6 +648,10 @@ CLI::App* add_sweep_command(CLI::App& app, SweepArguments& a) {
       "--fresh", a.options.fresh,
       "Run every case again (default: a stopped sweep resumes, skipping finished cases)");
   command->add_flag("--quiet", a.quiet, "No line per finished case");
+  command->add_flag("--force", a.options.force,
+                    "Replace the results file and its summary CSV if they exist");
+  command->add_flag("--allow-outside", a.options.allow_outside,
+                    "Let the sweep file's output lie outside the sweep file's folder");
   return command;
 }
 
@@ -638,6 +670,7 @@ CLI::App* add_report_command(CLI::App& app, ReportArguments& a) {
   command->add_option("--svg", a.svg, "Write the map as SVG");
   command->add_option("--html", a.html, "Write a self-contained HTML report");
   command->add_option("--csv", a.csv, "Write every figure as CSV");
+  command->add_flag("--force", a.force, "Replace output files that exist");
   return command;
 }
 
@@ -646,6 +679,8 @@ CLI::App* add_check_command(CLI::App& app, CheckArguments& a) {
       "check", "Validate a scenario and print it fully resolved with its sampled inputs");
   command->add_option("SCENARIO", a.scenario, "Scenario file (TOML)")->required();
   command->add_flag("--json", a.json, "Print JSON");
+  command->add_flag("--allow-outside", a.allow_outside,
+                    "Let the scenario's output.file lie outside the scenario's folder");
   return command;
 }
 
@@ -664,11 +699,15 @@ int run_check(const CheckArguments& a, std::ostream& out) {
   const World world = build_world(scenario);
   const SampleModel model(scenario, world, 1);  // correlations hold together
   check_memory(scenario, model);
-  // The results file `run` would write: its folder must be one that can be made and written.
+  // The results file `run` would write: its folder must be one that can be made and written, and
+  // the file the scenario names must lie in its folder (unless allowed). A file already there is
+  // no fault of the scenario: `run --force` replaces it.
   RunArguments as_run;
   as_run.scenario = a.scenario;
+  as_run.allow_outside = a.allow_outside;
+  as_run.force = true;
   prepare_output(output_path(as_run, scenario), output_origin(as_run, scenario), false,
-                 scenario.files_read);
+                 scenario.files_read, output_rules(as_run, scenario));
   if (a.json)
     out << json_text(scenario_json(scenario)) << '\n';
   else

@@ -18,6 +18,7 @@
 #include "report/report_files.hpp"
 #include "scenario/reader.hpp"
 #include "scenario/world.hpp"
+#include "store/output_file.hpp"
 #include "store/results_file.hpp"
 #include "store/sweep_file.hpp"
 #include "study/sample_model.hpp"
@@ -365,6 +366,15 @@ void check_cases(SweepPlan& plan, const toml::table& base_table, const std::stri
   if (!problems.empty()) throw ScenarioError(problems);
 }
 
+// The sweep's results file: the sweep file's `output`, relative to its folder, and the line that
+// names it; else results/<sweep name>.h5 under the working directory.
+void set_output(SweepPlan& plan, const std::optional<std::string>& output, long line) {
+  const fs::path file(plan.path);
+  plan.output = output ? (file.parent_path() / *output).lexically_normal().string()
+                       : "results/" + file.stem().string() + ".h5";
+  plan.output_line = output ? line : 0;
+}
+
 }  // namespace
 
 SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
@@ -398,8 +408,7 @@ SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override) {
     plan.base_path = (fs::path(path).parent_path() / *base).lexically_normal().string();
     base_text = read_base(plan.base_path, top.line_of("base"), d, base_table);
   }
-  plan.output = output ? (fs::path(path).parent_path() / *output).lexically_normal().string()
-                       : "results/" + fs::path(path).stem().string() + ".h5";
+  set_output(plan, output, top.line_of("output"));
 
   for (auto& axis : axes) plan.axes.push_back(read_axis(axis, base_table, base_text, base, d));
   if (plan.zip && !plan.axes.empty()) {
@@ -477,6 +486,11 @@ void run_case(const SweepPlan& plan, std::size_t index, const std::string& file,
   (void)run_and_write(model, world, options, file, threads, s.output.samples);
 }
 
+// The sweep's summary as CSV, beside its results file: `<output name>-summary.csv`.
+std::string summary_csv_of(const std::string& output) {
+  return fs::path(output).replace_extension("").string() + "-summary.csv";
+}
+
 // The file that marks a folder of cases as made by a sweep.
 constexpr const char* kCasesMark = "strewn-sweep-cases";
 
@@ -486,8 +500,23 @@ constexpr const char* kCasesMark = "strewn-sweep-cases";
 std::vector<std::size_t> pending_cases(const SweepPlan& plan, const SweepOptions& options,
                                        const std::string& output, const std::string& folder,
                                        const SweepEvents& events) {
-  prepare_output(output, options.output.empty() ? plan.path + ": output: " : "", true,
-                 plan.files_read);
+  const bool named_in_file = options.output.empty() && plan.output_line > 0;
+  const std::string origin =
+      named_in_file ? plan.path + ":" + std::to_string(plan.output_line) + ": output: " : "";
+  OutputRules rules;
+  rules.replace = options.force;
+  // A sweep file may be shared: the output it names stays in its folder unless the command line
+  // says otherwise (-o names the output itself).
+  if (named_in_file && !options.allow_outside) {
+    const fs::path own = fs::path(plan.path).parent_path();
+    rules.within = own.empty() ? "." : own.string();
+    rules.within_what = "the sweep file's folder";
+  }
+  // The results file, then the summary beside it, both refused by the same rules before anything
+  // is made or cleared (prepare_output makes the folder and clears stale leftovers).
+  refuse_unsafe_output(output, origin, plan.files_read, rules);
+  refuse_unsafe_output(summary_csv_of(output), "", plan.files_read, rules);
+  prepare_output(output, origin, true, plan.files_read, rules);
   std::error_code ec;
   // The folder of the cases is strewn's only when it holds the mark strewn puts in the folders it
   // makes: a folder of the user's that happens to have the name is never emptied or removed.
@@ -519,6 +548,24 @@ std::vector<std::size_t> pending_cases(const SweepPlan& plan, const SweepOptions
   return pending;
 }
 
+// On rank 0, the cases to run (pending_cases); on the others, none. A refusal on rank 0 (an
+// output already there, or outside the sweep file's folder) is kept in `refused` rather than
+// thrown: it must not leave the other ranks waiting for cases. None is handed out, every rank
+// meets at the barrier, and rank 0 then reports it.
+std::vector<std::size_t> leader_pending_cases(const Job& job, const SweepPlan& plan,
+                                              const SweepOptions& options,
+                                              const std::string& output, const std::string& folder,
+                                              const SweepEvents& events,
+                                              std::exception_ptr& refused) {
+  if (!job.leader()) return {};
+  try {
+    return pending_cases(plan, options, output, folder, events);
+  } catch (const std::exception&) {
+    refused = std::current_exception();
+    return {};
+  }
+}
+
 SweepOutcome gather_cases(const Job& job, const SweepPlan& plan, const std::string& output,
                           const std::string& folder) {
   // Rank 0 gathers the cases, in index order, into the sweep's file and its CSV summary.
@@ -533,7 +580,7 @@ SweepOutcome gather_cases(const Job& job, const SweepPlan& plan, const std::stri
   }
   const SweepSummary summary =
       write_sweep_file(output, plan.text, keys, plan.zip, sources, job.size());
-  const std::string csv_path = (fs::path(output).replace_extension("").string()) + "-summary.csv";
+  const std::string csv_path = summary_csv_of(output);
   write_report_file(csv_path, summary.csv, plan.files_read);
   std::error_code ec;
   fs::remove_all(folder, ec);
@@ -565,9 +612,9 @@ std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
   const std::string folder = output + ".cases";
   int threads = options.threads;
   if (threads <= 0) threads = static_cast<int>(std::thread::hardware_concurrency());
+  std::exception_ptr refused;
   const std::vector<std::size_t> pending =
-      job.leader() ? pending_cases(plan, options, output, folder, events)
-                   : std::vector<std::size_t>{};
+      leader_pending_cases(job, plan, options, output, folder, events, refused);
   std::mutex told;
   auto report_done = [&](std::size_t index) {
     if (!events.case_done) return;
@@ -628,7 +675,7 @@ std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
   }
   job.barrier();
   if (!job.leader()) return std::nullopt;
-
+  if (refused) std::rethrow_exception(refused);
   return gather_cases(job, plan, output, folder);
 }
 

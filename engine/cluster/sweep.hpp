@@ -40,6 +40,7 @@ struct SweepPlan {
   std::vector<SweepAxis> axes;
   std::vector<SweepCase> cases;         ///< grid: the first axis varies slowest
   std::string output;                   ///< the sweep's results file
+  long output_line = 0;                 ///< where the sweep file names it (0: it does not)
   std::uint64_t samples = 0;            ///< per case (the base scenario's, or -n)
   std::vector<std::string> files_read;  ///< the sweep file, the base scenario and its tables
 };
@@ -49,9 +50,11 @@ struct SweepPlan {
 SweepPlan load_sweep(const std::string& path, std::uint64_t samples_override = 0);
 
 struct SweepOptions {
-  int threads = 0;     ///< threads per rank (0: all)
-  bool fresh = false;  ///< ignore finished cases of an earlier, stopped run
-  std::string output;  ///< overrides the plan's output
+  int threads = 0;             ///< threads per rank (0: all)
+  bool fresh = false;          ///< ignore finished cases of an earlier, stopped run
+  std::string output;          ///< overrides the plan's output
+  bool force = false;          ///< replace the results file and summary when they exist
+  bool allow_outside = false;  ///< let the sweep file's `output` lie outside its folder
 };
 
 /// What a sweep tells as it runs; `app` prints it. Empty functions are skipped.

@@ -6,10 +6,12 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cctype>
 #include <cerrno>
 #include <cstring>
 #include <filesystem>
+#include <iterator>
 #include <string_view>
 
 #include "core/errors.hpp"
@@ -74,12 +76,65 @@ int create_new_file(const std::string& path) {
   return ::open(path.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0666);
 }
 
-// Makes the folder of an output file (and its parents) when it is missing (with `make`; without,
-// as `check` does, only finds that it could be made), and checks that a file can be made there,
-// before any flight: a destination that cannot be written is refused with status 2, nothing
-// having run. `origin` says where the path came from.
+namespace {
+
+// `path` made absolute and resolved as the kernel resolves it when the file is made (lies_within);
+// empty when a chain of links is too long to follow (the kernel gives up after 40: ELOOP).
+std::filesystem::path resolved(const std::filesystem::path& path) {
+  namespace fs = std::filesystem;
+  std::error_code ec;
+  const fs::path absolute = fs::absolute(path, ec);
+  if (ec) return {};
+  fs::path done = absolute.root_path();
+  const fs::path parts = absolute.relative_path();
+  std::vector<fs::path> pending(parts.begin(), parts.end());
+  std::reverse(pending.begin(), pending.end());  // the next part last, taken from the back
+  int links = 0;
+  while (!pending.empty()) {
+    const fs::path part = pending.back();
+    pending.pop_back();
+    if (part.empty() || part == ".") continue;
+    if (part == "..") {
+      done = done.parent_path();  // the root's parent is the root
+      continue;
+    }
+    const fs::path next = done / part;
+    if (!fs::is_symlink(fs::symlink_status(next, ec))) {
+      done = next;  // a folder or file, or a part strewn would make
+      continue;
+    }
+    if (++links > 40) return {};
+    const fs::path target = fs::read_symlink(next, ec);
+    if (ec) return {};
+    // The target's parts are resolved in turn: from the root when it is absolute, else from the
+    // folder that holds the link.
+    if (target.is_absolute()) done = target.root_path();
+    const fs::path rest = target.relative_path();
+    for (auto at = std::make_reverse_iterator(rest.end());
+         at != std::make_reverse_iterator(rest.begin()); ++at)
+      pending.push_back(*at);
+  }
+  return done;
+}
+
+}  // namespace
+
+bool lies_within(const std::string& path, const std::string& folder) {
+  const std::filesystem::path inner = resolved(path),
+                              outer = resolved(folder.empty() ? "." : folder);
+  if (inner.empty() || outer.empty()) return false;
+  auto at = inner.begin();
+  for (const auto& part : outer) {
+    if (part.empty()) continue;  // a trailing separator
+    if (at == inner.end() || *at != part) return false;
+    ++at;
+  }
+  return true;
+}
+
+// Everything here is found without writing anything: a refused output leaves no trace.
 void refuse_unsafe_output(const std::string& path, const std::string& origin,
-                          const std::vector<std::string>& inputs) {
+                          const std::vector<std::string>& inputs, const OutputRules& rules) {
   namespace fs = std::filesystem;
   // Longer than Linux's PATH_MAX, or a name longer than NAME_MAX (255), with the temporary
   // suffix and the probe's ".probe": no such file could be made.
@@ -92,6 +147,12 @@ void refuse_unsafe_output(const std::string& path, const std::string& origin,
                      std::to_string(name.size()) + " characters; at most " +
                      std::to_string(255 - added) + " on this machine, which adds " +
                      std::to_string(added) + " to it while writing)");
+  // Where the output lies is decided first: prepare_output goes on to make folders and a probe
+  // file, none of which may happen outside, and a path outside is refused alike whether a file
+  // is there or not.
+  if (!rules.within.empty() && !lies_within(path, rules.within))
+    throw UsageError(origin + path + ": is outside " + rules.within_what + " (" + rules.within +
+                     ") once .. and links are resolved; pass -o or --allow-outside");
   std::error_code ec;
   const fs::file_status status = fs::symlink_status(path, ec);
   if (fs::is_directory(status))
@@ -104,12 +165,18 @@ void refuse_unsafe_output(const std::string& path, const std::string& origin,
     if (fs::exists(status) && fs::equivalent(path, input, ec))
       throw UsageError(origin + path + ": is a file this command reads (" + input +
                        "); choose another name for the output");
+  if (fs::exists(status) && !rules.replace)
+    throw UsageError(origin + path + ": already exists; pass --force to replace it");
 }
 
+// Makes the folder of an output file (and its parents) when it is missing (with `make`; without,
+// as `check` does, only finds that it could be made), and checks that a file can be made there,
+// before any flight: a destination that cannot be written is refused with status 2, nothing
+// having run. `origin` says where the path came from.
 void prepare_output(const std::string& path, const std::string& origin, bool make,
-                    const std::vector<std::string>& inputs) {
+                    const std::vector<std::string>& inputs, const OutputRules& rules) {
   namespace fs = std::filesystem;
-  refuse_unsafe_output(path, origin, inputs);
+  refuse_unsafe_output(path, origin, inputs, rules);
   std::error_code ec;
   const std::string checkpoint = path + ".checkpoint";
   if (const fs::file_status beside = fs::symlink_status(checkpoint, ec);

@@ -7,15 +7,49 @@
 
 namespace strewn {
 
+/// What the command line allows an output beyond what strewn always permits: replacing a file
+/// already there, and lying outside the folder of the file that named it. The defaults allow
+/// neither.
+struct OutputRules {
+  /// A regular file already under the output's name may be replaced: the user said so (--force).
+  /// Without it the file is refused: strewn does not destroy a file it was not told it may.
+  bool replace = false;
+  /// When not empty, the folder the output must lie in once `..` and links are resolved: the
+  /// folder of the scenario or sweep file that named the output, so that a file shared with a
+  /// user cannot have strewn write wherever that user may. Empty when the path came from the
+  /// command line (the user chose it), is strewn's default, or --allow-outside was given.
+  std::string within;
+  /// What `within` is, for the message: "the scenario's folder".
+  std::string within_what;
+  /// The rules of a write whose path its command has checked already with the user's own rules
+  /// (report's files are checked all before any is written, then each again as it is written):
+  /// the file found there is the one the user allowed to be replaced.
+  static OutputRules checked_before() {
+    OutputRules rules;
+    rules.replace = true;
+    return rules;
+  }
+};
+
+/// True when `path` lies in `folder` or below it once both are made absolute and resolved as the
+/// kernel resolves them when a file is made: `.` dropped, `..` taken to the parent of what is
+/// resolved so far (of a link's target, not of the link), every link met followed; the parts
+/// that do not exist yet are folders strewn would make. The folder itself counts as within (an
+/// output that is a folder is refused as such); a chain of more than 40 links is not followed,
+/// and counts as outside.
+bool lies_within(const std::string& path, const std::string& folder);
+
 /// Refuses (UsageError, status 2) an output path that strewn must not write: a folder, an existing
 /// entry that is not a regular file (a device such as /dev/null, a pipe, a link: writing a whole
 /// file under the name would replace it), one of `inputs`, the files the command reads, or a path
-/// or name too long to be written. The message starts with `origin` (where the path came from,
+/// or name too long to be written; and, by `rules`, a path outside `rules.within` and an existing
+/// file that may not be replaced. The message starts with `origin` (where the path came from,
 /// e.g. "file:line: output.file: ").
 void refuse_unsafe_output(const std::string& path, const std::string& origin,
-                          const std::vector<std::string>& inputs = {});
+                          const std::vector<std::string>& inputs = {},
+                          const OutputRules& rules = OutputRules::checked_before());
 
-/// Refuses an unsafe output (refuse_unsafe_output) and a checkpoint beside it
+/// Refuses an unsafe output (refuse_unsafe_output, by `rules`) and a checkpoint beside it
 /// (`<path>.checkpoint`) that is not a regular file (a link planted there would have the study
 /// write through it), makes the folder of an output file (and its
 /// parents) when it is missing (with `make`; without, as `check` does, only finds that it could
@@ -24,7 +58,7 @@ void refuse_unsafe_output(const std::string& path, const std::string& origin,
 /// process is gone; remove_stale_partials). Throws UsageError (status 2: refused before anything
 /// runs).
 void prepare_output(const std::string& path, const std::string& origin, bool make,
-                    const std::vector<std::string>& inputs = {});
+                    const std::vector<std::string>& inputs, const OutputRules& rules);
 
 /// What strewn adds to an output's name while it writes it: ".partial-<host>-<process id>". The
 /// host name keeps two machines sharing a folder (a cluster's shared file system) from taking

@@ -4,7 +4,8 @@
 #    footprint;
 #  - a 4-case sweep has 4 summary rows in case order, identical on 1 and 2 ranks;
 #  - a sweep killed (SIGKILL) mid-way and run again resumes, skipping finished cases, and ends
-#    equal to a sweep run straight.
+#    equal to a sweep run straight;
+#  - ranks that disagree, or a sweep refused on rank 0, end together with status 2.
 # Usage: ranks.sh STREWN_BINARY SOURCE_DIR
 set -euo pipefail
 source "$(dirname "$0")/../lib.sh" "$1" "$2"
@@ -104,5 +105,23 @@ sed -i 's/^3000,12,270$/3000,13,270/' "$work/b/wind.csv"
 disagree "another wind file on rank 1" "rank 1 read or was given other inputs than rank 0" -- \
   run "$work/a/study.toml" -n 500 -j 1 -o "$work/disagree.h5" --quiet :: \
   run "$work/b/study.toml" -n 500 -j 1 -o "$work/disagree.h5" --quiet
+
+# 5. A sweep refused on rank 0 before any case (its results file exists, no --force) ends every
+#    rank with status 2, its files left as they were; before, the other ranks waited for ever
+#    for cases. With --force it runs.
+"$strewn" sweep "$sweep" -n 20 -o "$work/kept.h5" --quiet >/dev/null
+kept=$(sha256sum "$work/kept.h5" "$work/kept-summary.csv")
+status=0
+timeout 120 "${mpi[@]}" -np 2 "$strewn" sweep "$sweep" -n 20 -j 1 -o "$work/kept.h5" --quiet \
+  >/dev/null 2>"$work/kept.err" || status=$?
+[[ $status == 124 ]] && fail "a sweep refused on rank 0: the ranks hung"
+[[ $status == 2 ]] || fail "a sweep refused on rank 0: status $status, not 2"
+grep -q "kept.h5: already exists; pass --force to replace it" "$work/kept.err" ||
+  fail "a sweep refused on rank 0: no cause named: $(head -3 "$work/kept.err")"
+[[ "$(sha256sum "$work/kept.h5" "$work/kept-summary.csv")" == "$kept" ]] ||
+  fail "a sweep refused on rank 0 changed its files"
+"${mpi[@]}" -np 2 "$strewn" sweep "$sweep" -n 20 -j 1 -o "$work/kept.h5" --quiet --force >/dev/null ||
+  fail "a sweep with --force on 2 ranks failed"
+echo "ok: a sweep refused on rank 0 ends every rank with status 2"
 
 finish "mpi tests"

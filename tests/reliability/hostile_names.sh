@@ -11,8 +11,8 @@ source "$(dirname "$0")/../lib.sh" "$1" "$2"
 # The demo scenario with a hostile title and body name (TOML escapes: \u001b is ESC).
 sed -e 's|^title = .*|title = "\\u001b[2J\\u001b]0;owned\\u0007 \\u202Eexe.fdp <script>alert(1)</script> \\u0085 \\u009b31m"|' \
     -e 's|^name = .*|name = "=HYPERLINK(\\"x\\",\\"y\\")"|' \
-    -e 's|^file = .*|file = "hostile.h5"|' \
     "$source_dir/inputs/ridge-drop.toml" >"$work/hostile.toml"
+printf '\n[output]\nfile = "hostile.h5"\n' >>"$work/hostile.toml"
 
 # No raw control character (but line feed and tab), DEL, C1 control or bidirectional mark.
 inert() {  # inert FILE WHAT
@@ -64,8 +64,8 @@ echo "ok: hostile title and names reach every output inert"
 
 # The longest title a scenario may have (4096 bytes) is written and reported whole.
 long_title="$(head -c 4096 /dev/zero | tr '\0' 'x')"
-sed -e "s|^title = .*|title = \"$long_title\"|" -e 's|^file = .*|file = "long.h5"|' \
-  "$source_dir/inputs/ridge-drop.toml" >"$work/long.toml"
+sed -e "s|^title = .*|title = \"$long_title\"|" "$source_dir/inputs/ridge-drop.toml" >"$work/long.toml"
+printf '\n[output]\nfile = "long.h5"\n' >>"$work/long.toml"
 "$strewn" run "$work/long.toml" -n 100 --quiet >/dev/null 2>"$work/long.err" || fail "a 4096-byte title: $(cat "$work/long.err")"
 "$strewn" report "$work/long.h5" --json >"$work/long.json" || fail "a 4096-byte title: report failed"
 python3 -c 'import json,sys; assert len(json.load(open(sys.argv[1]))["title"]) == 4096' "$work/long.json" ||

@@ -144,9 +144,9 @@ TEST(CliRun, WritesTheResultsFileAndTheSummary) {
   EXPECT_TRUE(std::filesystem::exists(file));
   for (const auto& entry : std::filesystem::directory_iterator(dir.path()))
     EXPECT_EQ(entry.path().string().find(".partial"), std::string::npos);  // nothing half-written
-  // The same seed again gives the same summary.
+  // The same seed again gives the same summary (replacing the file: --force).
   EXPECT_EQ(run({"run", STREWN_SOURCE_DIR "/tests/data/canopy-by-height.toml", "-n", "300", "-o",
-                 file, "--quiet", "--json", "-j", "1"})
+                 file, "--quiet", "--json", "-j", "1", "--force"})
                 .out,
             r.out);
 }
@@ -399,7 +399,7 @@ TEST(CliPaths, PlantedLinksAreNotFollowedAndOtherMachinesFilesAreLeftAlone) {
   for (const auto& f : {dead, other_machine, live, locked}) std::ofstream(f) << "left";
   const int lock = ::open(locked.c_str(), O_RDONLY);
   ASSERT_EQ(::flock(lock, LOCK_EX | LOCK_NB), 0);
-  r = run({"run", scenario, "-o", out, "--quiet"});
+  r = run({"run", scenario, "-o", out, "--quiet", "--force"});
   EXPECT_EQ(r.status, 0) << r.err;
   EXPECT_FALSE(fs::exists(dead));
   EXPECT_TRUE(fs::exists(other_machine));
@@ -420,7 +420,7 @@ TEST(CliPaths, PlantedLinksAreNotFollowedAndOtherMachinesFilesAreLeftAlone) {
             static_cast<fs::perms>(0666 & ~mask));
   // A link beside a report named like a checkpoint is no business of the report's.
   fs::create_symlink(target, (dir / "m.svg.checkpoint"));
-  EXPECT_EQ(run({"report", out, "--svg", (dir / "m.svg").string()}).status, 0);
+  EXPECT_EQ(run({"report", out, "--svg", (dir / "m.svg").string(), "--force"}).status, 0);
   // A name too long for the file system once strewn adds its temporary suffix: refused in words.
   const std::string long_name = (dir / (std::string(240, 'n') + ".h5")).string();
   r = run({"run", scenario, "-o", long_name, "--quiet"});

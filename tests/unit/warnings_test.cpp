@@ -36,7 +36,9 @@ TEST_F(Warnings, StokesDropletsBeyondReOneAreCountedEverywhere) {
       << text.out;
   EXPECT_NE(text.out.find("where Stokes (linear) drag underestimates the drag"), std::string::npos);
 
-  const CommandResult json = run({"run", scenario, "-n", "500", "-o", file, "--quiet", "--json"});
+  // The same study again, as JSON, replacing its file.
+  const CommandResult json =
+      run({"run", scenario, "-n", "500", "-o", file, "--quiet", "--json", "--force"});
   ASSERT_EQ(json.status, 0) << json.err;
   const auto j = nlohmann::json::parse(json.out);
   ASSERT_TRUE(j["warnings"].is_array());
@@ -83,7 +85,7 @@ TEST_F(Warnings, AnArrayEvenWhenThereAreNone) {
   EXPECT_TRUE(j["model_ranges"].empty());
   // The terminal says there are none, rather than leaving the line out.
   const CommandResult text =
-      run({"run", scenario, "-n", "50", "-o", (dir_ / "tank.h5").string(), "--quiet"});
+      run({"run", scenario, "-n", "50", "-o", (dir_ / "tank.h5").string(), "--quiet", "--force"});
   EXPECT_NE(text.out.find("warnings  none"), std::string::npos) << text.out;
 }
 

@@ -1,0 +1,139 @@
+// The rules an output is held to beyond its kind (store/output_file.hpp): a file already there is
+// replaced only when allowed, and an output a scenario names stays in the scenario's folder once
+// `..` and links are resolved as the kernel resolves them.
+#include <gtest/gtest.h>
+
+#include <filesystem>
+#include <fstream>
+
+#include "core/errors.hpp"
+#include "store/output_file.hpp"
+#include "support.hpp"
+
+namespace strewn {
+namespace {
+
+namespace fs = std::filesystem;
+
+// A folder to stay in, beside one to stay out of.
+struct Folders {
+  test::ScratchFolder root{"output-rules"};
+  fs::path shared = root / "shared", elsewhere = root / "elsewhere";
+  Folders() {
+    fs::create_directories(shared / "real" / "deep");
+    fs::create_directories(elsewhere / "sub");
+  }
+  [[nodiscard]] bool within(const fs::path& path) const {
+    return lies_within(path.string(), shared.string());
+  }
+};
+
+TEST(OutputRules, DotsAreResolvedBeforeTheFolderIsCompared) {
+  const Folders f;
+  EXPECT_TRUE(f.within(f.shared / "x.h5"));
+  EXPECT_TRUE(f.within(f.shared / "a" / "." / "b.h5"));
+  EXPECT_TRUE(f.within(f.shared / "a" / ".." / "b.h5"));
+  EXPECT_TRUE(f.within(f.shared / "new" / "deeper" / "x.h5"));  // folders strewn would make
+  EXPECT_FALSE(f.within(f.shared / "a" / ".." / ".." / "b.h5"));
+  EXPECT_FALSE(f.within(f.shared / ".." / "x.h5"));
+  EXPECT_FALSE(f.within(f.shared / ".." / "shared-twin" / "x.h5"));
+  EXPECT_FALSE(f.within(f.root / "shared-twin" / "x.h5"));  // a name that only starts alike
+  EXPECT_FALSE(f.within(f.elsewhere / "x.h5"));             // an absolute path outside
+  EXPECT_FALSE(f.within("/x.h5"));
+  EXPECT_FALSE(f.within(f.shared / ".." / ".." / ".." / ".." / ".." / ".." / ".." / "x.h5"));
+  // Back in through the folder's own name after leaving it is within.
+  EXPECT_TRUE(f.within(f.shared / ".." / "shared" / "x.h5"));
+}
+
+TEST(OutputRules, LinksAreFollowedAsTheKernelFollowsThem) {
+  const Folders f;
+  fs::create_symlink(f.elsewhere, f.shared / "away");              // absolute, out
+  fs::create_symlink("../elsewhere", f.shared / "relative-away");  // relative, out
+  fs::create_symlink("real", f.shared / "inner");                  // relative, in
+  fs::create_symlink(f.elsewhere / "sub", f.shared / "down");      // out, one level below
+  fs::create_symlink(f.shared / "real" / "deep", f.shared / "deep-link");
+  EXPECT_FALSE(f.within(f.shared / "away" / "x.h5"));
+  EXPECT_FALSE(f.within(f.shared / "away" / "missing" / "x.h5"));
+  EXPECT_FALSE(f.within(f.shared / "relative-away" / "x.h5"));
+  EXPECT_TRUE(f.within(f.shared / "inner" / "x.h5"));
+  // A link met after a part that does not exist yet is followed all the same.
+  EXPECT_FALSE(f.within(f.shared / "missing" / ".." / "away" / "x.h5"));
+  // `..` after a link is the parent of its target, not of the link: down/.. is elsewhere, which
+  // the path's text alone would put in the folder.
+  EXPECT_FALSE(f.within(f.shared / "down" / ".." / "x.h5"));
+  EXPECT_TRUE(f.within(f.shared / "deep-link" / ".." / "x.h5"));  // shared/real/x.h5
+  // The folder reached through a link of its own is the same folder, either way round.
+  fs::create_symlink(f.shared, f.root / "alias");
+  EXPECT_TRUE(lies_within((f.root / "alias" / "x.h5").string(), f.shared.string()));
+  EXPECT_TRUE(lies_within((f.shared / "x.h5").string(), (f.root / "alias").string()));
+  EXPECT_FALSE(lies_within((f.elsewhere / "x.h5").string(), (f.root / "alias").string()));
+  // A loop of links is not followed for ever, and counts as outside.
+  fs::create_symlink(f.shared / "loop", f.shared / "loop");
+  EXPECT_FALSE(f.within(f.shared / "loop" / "x.h5"));
+}
+
+TEST(OutputRules, RelativePathsAreTakenFromTheWorkingDirectory) {
+  const Folders f;
+  const fs::path before = fs::current_path();
+  fs::current_path(f.shared);
+  EXPECT_TRUE(lies_within("x.h5", "."));
+  EXPECT_TRUE(lies_within("sub/x.h5", ""));  // an empty folder: the working directory
+  EXPECT_FALSE(lies_within("../x.h5", "."));
+  EXPECT_TRUE(lies_within((f.shared / "x.h5").string(), "."));
+  EXPECT_TRUE(lies_within("real/x.h5", "real"));
+  EXPECT_FALSE(lies_within("x.h5", "real"));
+  fs::current_path(before);
+}
+
+// The rules as refuse_unsafe_output applies them: an existing file only with `replace`, a path
+// outside `within` never, each with a message that says what to pass.
+TEST(OutputRules, ExistingFilesAndPathsOutsideAreRefusedUnlessAllowed) {
+  const Folders f;
+  const std::string there = (f.shared / "there.h5").string();
+  std::ofstream(there) << "keep me";
+  OutputRules keep;
+  try {
+    refuse_unsafe_output(there, "origin: ", {}, keep);
+    ADD_FAILURE() << "an existing file was not refused";
+  } catch (const UsageError& e) {
+    EXPECT_EQ(std::string(e.what()),
+              "origin: " + there + ": already exists; pass --force to replace it");
+  }
+  OutputRules replace;
+  replace.replace = true;
+  EXPECT_NO_THROW(refuse_unsafe_output(there, "", {}, replace));
+  EXPECT_NO_THROW(refuse_unsafe_output((f.shared / "new.h5").string(), "", {}, keep));
+  // A file the command reads is refused as such even with --force.
+  EXPECT_THROW(refuse_unsafe_output(there, "", {there}, replace), UsageError);
+
+  OutputRules within = replace;
+  within.within = f.shared.string();
+  within.within_what = "the scenario's folder";
+  EXPECT_NO_THROW(refuse_unsafe_output(there, "", {}, within));
+  const std::string out = (f.elsewhere / "x.h5").string();
+  try {
+    prepare_output(out, "s.toml:3: output.file: ", true, {}, within);
+    ADD_FAILURE() << "a path outside was not refused";
+  } catch (const UsageError& e) {
+    EXPECT_EQ(std::string(e.what()), "s.toml:3: output.file: " + out +
+                                         ": is outside the scenario's folder (" +
+                                         f.shared.string() +
+                                         ") once .. and links are resolved; pass -o or "
+                                         "--allow-outside");
+  }
+  // Refused before anything is made there: not the folder, not the probe file.
+  const std::string deeper = (f.elsewhere / "new" / "x.h5").string();
+  EXPECT_THROW(prepare_output(deeper, "", true, {}, within), UsageError);
+  EXPECT_FALSE(fs::exists(f.elsewhere / "new"));
+  std::size_t entries = 0;
+  for (const auto& entry : fs::recursive_directory_iterator(f.elsewhere)) {
+    ++entries;
+    EXPECT_EQ(entry.path(), f.elsewhere / "sub");
+  }
+  EXPECT_EQ(entries, 1u);  // its own folder only
+  EXPECT_NO_THROW(prepare_output((f.shared / "made" / "x.h5").string(), "", true, {}, within));
+  EXPECT_TRUE(fs::is_directory(f.shared / "made"));
+}
+
+}  // namespace
+}  // namespace strewn
