@@ -18,6 +18,7 @@
 #include <filesystem>
 #include <functional>
 #include <iostream>
+#include <new>
 #include <optional>
 #include <sstream>
 
@@ -26,6 +27,8 @@
 #include "cluster/rank_flights.hpp"
 #include "cluster/sweep.hpp"
 #include "core/errors.hpp"
+#include "core/memory_limit.hpp"
+#include "core/text.hpp"
 #include "core/version.hpp"
 #include "report/atmosphere_table.hpp"
 #include "report/footprint_report.hpp"
@@ -182,24 +185,27 @@ OutputRules output_rules(const RunArguments& a, const Scenario& s) {
   return rules;
 }
 
-// Refuses a study whose rows and statistics would not fit in this machine's memory, saying how
-// much they would take (ranks 0 and 1 hold every row, so more ranks do not help).
+// Refuses a study whose rows and statistics would not fit in the memory this process may use
+// (the machine's, or a tighter ulimit or control-group limit), saying how much they would take
+// and which limit stops them (ranks 0 and 1 hold every row, so more ranks do not help).
 void check_memory(const Scenario& s, const SampleModel& model) {
   const auto samples = static_cast<double>(
       s.study.target_width ? std::max(s.study.max_samples, s.study.samples) : s.study.samples);
-  // Per row: the columns (65 B, and 8 B per sampled input or recorded choice) and the
-  // statistics' working arrays (about 100 B at their peak, docs/cluster.md).
-  const double per_row = 65.0 + 8.0 * static_cast<double>(model.column_names().size()) + 100.0;
-  const double need = samples * static_cast<double>(model.bodies()) * per_row;
-  const double have = static_cast<double>(::sysconf(_SC_PHYS_PAGES)) *
-                      static_cast<double>(::sysconf(_SC_PAGE_SIZE));
-  if (have > 0.0 && need > 0.8 * have) {
-    char text[300];
+  // Measured peaks (maximum resident size, `run` on 2 threads; docs/cluster.md, "Sizing"): 64 MiB
+  // for the program, then per row 230 B (the fixed columns, the writer's and the statistics'
+  // working arrays) and 12 B per sampled input or recorded choice (its column, and its ranks for
+  // the sensitivity). From 1 body and 2 inputs to 256 bodies and 512 inputs, the peak stayed
+  // within 0.80 to 0.98 of this estimate.
+  const double per_row = 230.0 + 12.0 * static_cast<double>(model.column_names().size());
+  const double need = 64.0 * 1048576.0 + samples * static_cast<double>(model.bodies()) * per_row;
+  const MemoryLimit have = memory_limit();
+  if (have.bytes > 0.0 && need > 0.8 * have.bytes) {
+    char text[400];
     std::snprintf(text, sizeof text,
-                  "%.0f samples would need about %.1f GiB of memory for their rows and statistics; "
-                  "this machine has %.1f GiB. Run fewer samples, or several studies with different "
-                  "seeds",
-                  samples, need / 1073741824.0, have / 1073741824.0);
+                  "%.0f samples would need about %.2f GiB of memory for their rows and "
+                  "statistics; %s is %.2f GiB. Run fewer samples, or several studies with "
+                  "different seeds",
+                  samples, need / 1073741824.0, have.what.c_str(), have.bytes / 1073741824.0);
     throw ScenarioError(
         {{s.path, s.study.target_width ? "study.max_samples" : "study.samples",
           s.study.target_width ? s.study.max_samples_line : s.study.samples_line, text}});
@@ -484,9 +490,9 @@ void refuse_report_outputs(const std::vector<ReportOutput>& outputs, const std::
 int run_report(const ReportArguments& a, std::ostream& out) {
   const bool need_samples = !a.geojson.empty() && a.impacts;
   ResultsFile file = [&] {
-    std::error_code unknown;
-    const ReadDeadline deadline(
-        a.results, ReadDeadline::limit_for(std::filesystem::file_size(a.results, unknown)));
+    std::error_code unknown;  // a missing file is refused by the reader, at once
+    const std::uintmax_t bytes = std::filesystem::file_size(a.results, unknown);
+    const ReadDeadline deadline(a.results, ReadDeadline::limit_for(unknown ? 0 : bytes));
     return read_results(a.results, need_samples, a.sweep_case);
   }();
   if (need_samples && !file.has_samples)
@@ -800,6 +806,15 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
     return kExitInvalid;
   } catch (const IoError& e) {
     err << "error: " << e.what() << '\n';
+    return kExitFailure;
+  } catch (const std::bad_alloc&) {
+    // Memory ran out although the study was sized against the limit (another process took it,
+    // or the estimate fell short): said plainly, with the limit, and nothing half-written kept.
+    const MemoryLimit limit = memory_limit();
+    err << "error: ran out of memory"
+        << (job.leader() ? "" : " on rank " + std::to_string(job.rank())) << " (" << limit.what
+        << ": " << printf_text("%.2f", limit.bytes / 1073741824.0)
+        << " GiB); run fewer samples, or free memory\n";
     return kExitFailure;
   } catch (const std::exception& e) {
     if (!job.leader()) err_stream << "error (rank " << job.rank() << "): " << e.what() << '\n';

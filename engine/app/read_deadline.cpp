@@ -2,6 +2,7 @@
 
 #include <unistd.h>
 
+#include <algorithm>
 #include <chrono>
 
 #include "app/commands.hpp"
@@ -35,7 +36,8 @@ ReadDeadline::~ReadDeadline() {
 }
 
 double ReadDeadline::limit_for(std::uintmax_t bytes) {
-  return 10.0 + static_cast<double>(bytes) / (16.0 * 1024 * 1024);
+  // At most a day: a longer wait would overflow the clock's time point and end at once.
+  return std::min(10.0 + static_cast<double>(bytes) / (16.0 * 1024 * 1024), 86400.0);
 }
 
 }  // namespace strewn

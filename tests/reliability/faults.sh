@@ -54,4 +54,18 @@ else
   fail "strace is missing (scripts/packages.txt lists it)"
 fi
 
+# A study is sized against the memory the process may use: under an address-space limit
+# (ulimit -v) one that cannot fit is refused before any flight, naming that limit. (Not under
+# AddressSanitizer, which maps terabytes of shadow memory.)
+if [[ -z "${ASAN_OPTIONS:-}" ]]; then
+  status=0
+  (ulimit -v 400000 && "$strewn" run "$scenario" -n 2000000 -o "$work/limited.h5" --quiet) \
+    >/dev/null 2>"$work/limited.err" || status=$?
+  [[ $status -eq 2 ]] || fail "a study too large for ulimit -v: status $status, not 2"
+  grep -q "address-space limit (ulimit -v)" "$work/limited.err" ||
+    fail "the refusal does not name the limit: $(cat "$work/limited.err")"
+  [[ -e "$work/limited.h5" ]] && fail "a refused study wrote its results file"
+  echo "ok: a study too large for ulimit -v is refused before any flight, naming the limit"
+fi
+
 finish "fault tests"
