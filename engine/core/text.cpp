@@ -1,5 +1,8 @@
 #include "core/text.hpp"
 
+#include <unicode/normalizer2.h>
+#include <unicode/unistr.h>
+
 #include <algorithm>
 #include <cctype>
 #include <charconv>
@@ -9,6 +12,20 @@
 #include <utility>
 
 namespace strewn {
+
+std::string name_key(std::string_view text) {
+  UErrorCode status = U_ZERO_ERROR;
+  const icu::Normalizer2* fold = icu::Normalizer2::getNFKCCasefoldInstance(status);
+  if (U_FAILURE(status) || fold == nullptr) return ascii_lower(text);  // ICU's data missing
+  const icu::UnicodeString folded =
+      fold->normalize(icu::UnicodeString::fromUTF8(
+                          icu::StringPiece(text.data(), static_cast<int32_t>(text.size()))),
+                      status);
+  if (U_FAILURE(status)) return ascii_lower(text);
+  std::string out;
+  folded.toUTF8String(out);
+  return out;
+}
 
 std::size_t edit_distance(std::string_view a, std::string_view b) {
   const std::size_t n = a.size(), m = b.size();

@@ -13,6 +13,13 @@ std::size_t edit_distance(std::string_view a, std::string_view b);
 /// `text` with its ASCII letters in lower case (other bytes, UTF-8 included, as they are).
 std::string ascii_lower(std::string_view text);
 
+/// The form under which two names are the same name: Unicode's NFKC_Casefold (Unicode Standard
+/// Annex #15 normalisation with compatibility mappings, case folding, and default-ignorable
+/// characters such as U+200B removed; ICU's Normalizer2), so that "Crate", "CRATE", "Ｃｒａｔｅ"
+/// and "Cra\u200Bte" are one name, and a name of only ignorable characters is empty. `text` must
+/// be UTF-8.
+std::string name_key(std::string_view text);
+
 /// The candidate closest to `word` when it is plausibly a misspelling (distance at most a third of
 /// its length, at least 1, or a case-insensitive match); empty otherwise.
 std::string closest_match(std::string_view word, const std::vector<std::string>& candidates);

@@ -29,6 +29,16 @@ constexpr Bounds kLatitude{-90.0, 90.0, false, false, "a latitude in [-90, 90] d
 constexpr Bounds kLongitude{-180.0, 180.0, false, false, "a longitude in [-180, 180] degrees"};
 constexpr Bounds kOpenUnit{0.0, 1.0, true, true, "a probability strictly between 0 and 1"};
 constexpr Bounds kTemperatureOffset{-100.0, 100.0, false, false, "an offset in [-100, 100] K"};
+// The release's place, motion and timing, bounded so that every value `check` accepts also flies
+// and reports: offsets within 10 000 km of the site keep metres exact in double precision (the
+// flat local frame is far less accurate there, which the range warnings say; a release point
+// 10^15 m away once ended a run with an internal error after every flight), and no carrier of an
+// aerial release or a terminated flight moves faster than 3 km/s or releases an hour off time.
+constexpr Bounds kReleaseOffset{-1e7, 1e7, false, false,
+                                "within 10 000 km of the site, in [-10000000, 10000000] m"};
+constexpr Bounds kCarrierSpeed{0.0, 3000.0, false, false, "a speed in [0, 3000] m/s"};
+constexpr Bounds kClimbRate{-3000.0, 3000.0, false, false, "a climb rate in [-3000, 3000] m/s"};
+constexpr Bounds kReleaseDelay{-3600.0, 3600.0, false, false, "a delay in [-3600, 3600] s"};
 constexpr Bounds kCorrelation{-1.0, 1.0, false, false, "a correlation in [-1, 1]"};
 
 class Loader {
@@ -359,19 +369,19 @@ class Loader {
       auto altitude = release.uncertain("altitude", kAltitude, true);
       if (altitude) r.altitude = sampled("release.altitude", *altitude);
     }
-    r.east = input("east", 0.0, kAny);
-    r.north = input("north", 0.0, kAny);
-    r.speed = input("speed", 0.0, kNonNegative);
+    r.east = input("east", 0.0, kReleaseOffset);
+    r.north = input("north", 0.0, kReleaseOffset);
+    r.speed = input("speed", 0.0, kCarrierSpeed);
     r.track = input("track", 0.0, kDegrees);
-    r.climb = input("climb", 0.0, kAny);
-    r.along_error = input("along_error", 0.0, kAny);
-    r.cross_error = input("cross_error", 0.0, kAny);
-    r.delay = input("delay", 0.0, kAny);
+    r.climb = input("climb", 0.0, kClimbRate);
+    r.along_error = input("along_error", 0.0, kReleaseOffset);
+    r.cross_error = input("cross_error", 0.0, kReleaseOffset);
+    r.delay = input("delay", 0.0, kReleaseDelay);
     Table burst = release.table("burst");
     if (burst.present()) {
       r.has_burst = true;
       r.burst_speed = sampled("release.burst.speed",
-                              burst.uncertain("speed", kNonNegative, true).value_or(0.0));
+                              burst.uncertain("speed", kCarrierSpeed, true).value_or(0.0));
     }
     burst.finish();
     release.finish();
@@ -431,13 +441,22 @@ class Loader {
     if (scenario_.body_index(b.name) >= 0 && name) {
       diagnostics_.add(t.key_path("name"), t.line_of("name"),
                        "duplicate body name \"" + b.name + "\": each [[body]] needs its own name");
-    } else if (name) {
+    } else if (name && !name->empty() && printable(*name) == *name) {
+      // Names that differ only in case, width or invisible characters would be one name to a
+      // reader and one map file (<map>-<name>.svg) where case is ignored.
+      const std::string key = name_key(b.name);
+      if (key.empty())
+        diagnostics_.add(t.key_path("name"), t.line_of("name"),
+                         "has no visible character once normalised (Unicode NFKC with case "
+                         "folding); give the body a name that can be read");
       for (const auto& other : scenario_.bodies)
-        if (ascii_lower(other.name) == ascii_lower(b.name))
+        if (!key.empty() && name_key(other.name) == key)
           diagnostics_.add(t.key_path("name"), t.line_of("name"),
-                           "\"" + b.name + "\" differs from body \"" + other.name +
-                               "\" only in case: their map files (<map>-<name>.svg) would be one "
-                               "file where case is ignored; choose names that differ otherwise");
+                           "\"" + b.name + "\" is the same name as body \"" + other.name +
+                               "\" once case, width and invisible characters are set aside "
+                               "(Unicode NFKC with case folding): their map files "
+                               "(<map>-<name>.svg) would be one file where case is ignored; "
+                               "choose names that differ otherwise");
     }
     b.count = t.integer("count", 1, 1000000).value_or(1);
     const std::string prefix = b.name + ".";

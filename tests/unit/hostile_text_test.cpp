@@ -166,7 +166,28 @@ model = "area"
 cd = 1.0
 area = 0.3
 )";
-  EXPECT_TRUE(has_problem(problems_of(two), 12, "differs from body \"crate\" only in case"));
+  EXPECT_TRUE(has_problem(problems_of(two), 12, "is the same name as body \"crate\""));
+  // Names equal under Unicode's NFKC_Casefold (UAX #15; the Unicode Character Database's
+  // DerivedNormalizationProps.txt): composed and decomposed accents (U+00E9 and e U+0301),
+  // full-width letters (U+FF43...), a zero-width space (U+200B, default ignorable), the ligature
+  // U+FB01 and "fi". Each second name must be refused as the first.
+  const auto second_named = [](const std::string& first, const std::string& second) {
+    std::string text = kScenario;
+    text.replace(text.find("name = \"crate\""), 14, "name = \"" + first + "\"");
+    return text + "[[body]]\nname = \"" + second +
+           "\"\nmass = 10.0\n[body.drag]\nmodel = \"area\"\ncd = 1.0\narea = 0.3\n";
+  };
+  for (const auto& [first, second] :
+       std::vector<std::pair<std::string, std::string>>{{"caf\xC3\xA9", "cafe\xCC\x81"},
+                                                        {"crate", "\xEF\xBD\x83rate"},
+                                                        {"crate",
+                                                         "cr\xE2\x80\x8B"
+                                                         "ate"},
+                                                        {"\xEF\xAC\x81le", "FILE"}})
+    EXPECT_TRUE(has_problem(problems_of(second_named(first, second)), 12, "is the same name as"))
+        << second;
+  EXPECT_TRUE(problems_of(second_named("crate", "crane")).empty());
+  EXPECT_TRUE(has_problem(problems_of(named("\xE2\x80\x8B")), 5, "no visible character"));
   std::string title = kScenario;
   title.replace(0, 11, "title = \"\\u001b]0;x\\u0007 \\u202E <b>&\"");
   EXPECT_TRUE(problems_of(title).empty());
