@@ -55,13 +55,7 @@ std::string digest_after_seal(int fd, unsigned long long& bytes) {
   unsigned char digest[EVP_MAX_MD_SIZE];
   unsigned int length = 0;
   if (EVP_DigestFinal_ex(context.get(), digest, &length) != 1) return {};
-  std::string hex;
-  char pair[3];
-  for (unsigned int i = 0; i < length; ++i) {
-    std::snprintf(pair, sizeof pair, "%02x", digest[i]);
-    hex += pair;
-  }
-  return hex;
+  return hex_text(digest, length);
 }
 
 std::string seal_text(const std::string& digest, unsigned long long bytes) {
@@ -69,6 +63,16 @@ std::string seal_text(const std::string& digest, unsigned long long bytes) {
 }
 
 }  // namespace
+
+std::string hex_text(const unsigned char* bytes, std::size_t length) {
+  static constexpr char kDigits[] = "0123456789abcdef";
+  std::string hex;
+  for (std::size_t i = 0; i < length; ++i) {
+    hex += kDigits[bytes[i] >> 4];
+    hex += kDigits[bytes[i] & 0xF];
+  }
+  return hex;
+}
 
 H5::FileCreatPropList sealed_file_properties() {
   H5::FileCreatPropList properties;

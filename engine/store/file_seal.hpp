@@ -11,6 +11,9 @@
 
 namespace strewn {
 
+/// `length` bytes as lower-case hexadecimal, two digits a byte (how digests are written).
+std::string hex_text(const unsigned char* bytes, std::size_t length);
+
 /// The size of the user block that holds the seal (HDF5 requires a power of two, at least 512).
 inline constexpr std::size_t kSealBytes = 512;
 

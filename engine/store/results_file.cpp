@@ -39,13 +39,7 @@ std::string sha256_hex(const std::string& text) {
   unsigned char digest[EVP_MAX_MD_SIZE];
   unsigned int length = 0;
   EVP_Digest(text.data(), text.size(), digest, &length, EVP_sha256(), nullptr);
-  std::string hex;
-  char byte[3];
-  for (unsigned int i = 0; i < length; ++i) {
-    std::snprintf(byte, sizeof byte, "%02x", digest[i]);
-    hex += byte;
-  }
-  return hex;
+  return hex_text(digest, length);
 }
 
 std::string inputs_sha256(const Scenario& s) {
