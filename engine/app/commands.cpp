@@ -203,9 +203,10 @@ void check_memory(const Scenario& s, const SampleModel& model) {
     char text[400];
     std::snprintf(text, sizeof text,
                   "%.0f samples would need about %.2f GiB of memory for their rows and "
-                  "statistics; %s is %.2f GiB. Run fewer samples, or several studies with "
-                  "different seeds",
-                  samples, need / 1073741824.0, have.what.c_str(), have.bytes / 1073741824.0);
+                  "statistics, more than the %.2f GiB a study may take (80 %% of %s, %.2f "
+                  "GiB). Run fewer samples, or several studies with different seeds",
+                  samples, need / 1073741824.0, 0.8 * have.bytes / 1073741824.0, have.what.c_str(),
+                  have.bytes / 1073741824.0);
     throw ScenarioError(
         {{s.path, s.study.target_width ? "study.max_samples" : "study.samples",
           s.study.target_width ? s.study.max_samples_line : s.study.samples_line, text}});

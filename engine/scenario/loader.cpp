@@ -82,7 +82,11 @@ class Loader {
       // of 64 KiB (HDF5 File Format Specification, object headers; from memory): a title far below
       // that, refused here rather than when the file is written after every flight.
       constexpr std::size_t kLongestTitle = 4096;
-      if (const auto* s = n->as_string(); s && s->get().size() > kLongestTitle)
+      if (const auto* s = n->as_string(); s && s->get().find('\0') != std::string::npos)
+        diagnostics_.add("title", n,
+                         "must not hold a NUL character (\\u0000): the results file would keep "
+                         "only the text before it");
+      else if (s && s->get().size() > kLongestTitle)
         diagnostics_.add("title", n,
                          "is " + std::to_string(s->get().size()) +
                              " bytes long; a title may have at most " +

@@ -150,6 +150,12 @@ std::optional<std::string> Table::text(std::string_view key,
     return std::nullopt;
   }
   std::string value = s->get();
+  // A NUL ends a C string: a path would name another file (everything after it dropped, so a
+  // results file vanished) and a name would be cut in the results file.
+  if (value.find('\0') != std::string::npos) {
+    diagnostics_.add(key_path(key), n, "must not hold a NUL character (\\u0000)");
+    return std::nullopt;
+  }
   if (!allowed.empty() && std::find(allowed.begin(), allowed.end(), value) == allowed.end()) {
     std::string message = "\"" + value + "\" is not one of " + choices();
     const std::string guess = closest_match(value, allowed);

@@ -147,6 +147,11 @@ void refuse_unsafe_output(const std::string& path, const std::string& origin,
                      std::to_string(name.size()) + " characters; at most " +
                      std::to_string(255 - added) + " on this machine, which adds " +
                      std::to_string(added) + " to it while writing)");
+  // A path ending in a slash, "." or ".." names a folder, whether it exists or not: writing a
+  // file "there" would fail only after every flight.
+  if (const std::string name = fs::path(path).filename().string();
+      name.empty() || name == "." || name == "..")
+    throw UsageError(origin + path + ": names a folder, not a file; name the output file itself");
   // Where the output lies is decided first: prepare_output goes on to make folders and a probe
   // file, none of which may happen outside, and a path outside is refused alike whether a file
   // is there or not.

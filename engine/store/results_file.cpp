@@ -337,10 +337,29 @@ void check_results_path(const std::string& path) {
   if (!std::filesystem::exists(path)) throw InputFileError(path + ": no such results file");
   if (std::filesystem::is_directory(path))
     throw InputFileError(path + ": is a folder, not a results file");
-  if (H5::H5File::isHdf5(path.c_str()) <= 0)
-    throw InputFileError(path + ": not an HDF5 file (a strewn results file is HDF5)");
-  // Nothing in a damaged file is believed, and the HDF5 library never parses one.
-  check_seal(path);
+  // A pipe, a device or a file of /proc is not a results file, and HDF5 cannot seek in it.
+  if (!std::filesystem::is_regular_file(path))
+    throw InputFileError(path +
+                         ": is not a regular file (a pipe, a device or a special file); a "
+                         "results file is read from disk");
+  // Nothing in a damaged file is believed, and the HDF5 library never parses one: the seal is
+  // checked with plain reads first. A file that is not HDF5 at all is named so (HDF5's check of
+  // the signature alone, which throws on files it cannot seek in).
+  auto hdf5 = [&] {
+    try {
+      return H5::H5File::isHdf5(path.c_str()) > 0;
+    } catch (const H5::Exception&) {
+      return false;
+    }
+  };
+  const InputFileError not_hdf5(path + ": not an HDF5 file (a strewn results file is HDF5)");
+  try {
+    check_seal(path);
+  } catch (const InputFileError&) {
+    if (!hdf5()) throw not_hdf5;
+    throw;
+  }
+  if (!hdf5()) throw not_hdf5;
 }
 
 // The file's format version; refuses a file without one or of another version.

@@ -87,6 +87,19 @@ took=$(($(date +%s) - start))
 grep -q "did not end in time" "$work/err" || fail "crafted file: $(head -c 300 "$work/err")"
 [[ -s "$work/out" ]] && fail "crafted file: figures printed"
 
+# A results file is read from disk: a pipe, a FIFO or a file of /proc is refused with status 2
+# (found by a tester: HDF5's exception escaped, status 134).
+mkfifo "$work/fifo.h5"
+for special in "$work/fifo.h5" /proc/self/mem; do
+  status=0
+  timeout 60 "$strewn" report "$special" --json >"$work/out" 2>"$work/err" || status=$?
+  [[ $status -eq 2 && ! -s "$work/out" ]] || fail "report $special: status $status ($(head -c 200 "$work/err"))"
+done
+status=0
+timeout 60 "$strewn" report <(cat "$work/intact.h5") --json >"$work/out" 2>"$work/err" || status=$?
+[[ $status -eq 2 ]] || fail "report from a pipe: status $status ($(head -c 200 "$work/err"))"
+grep -q "is not a regular file" "$work/err" || fail "report from a pipe: $(head -c 200 "$work/err")"
+
 # The intact file still reports the same figures (the attack changed only copies).
 "$strewn" report "$work/intact.h5" --json >"$work/again.json" 2>/dev/null
 cmp -s "$work/intact.json" "$work/again.json" || fail "the intact file reports other figures"

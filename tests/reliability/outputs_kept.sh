@@ -215,4 +215,17 @@ expect 0 "a sweep with -o outside" -- "$strewn" sweep "$shared/sweep.toml" -n 20
 [[ -s "$work/chosen/sweep.h5" ]] || fail "-o outside: the sweep wrote no file"
 ok "a sweep file's output is kept in its folder unless -o or --allow-outside"
 
+# 6. A path that names a folder (a trailing slash, "." or "..") is refused before any flight or
+#    any write, by run and by report, even where nothing is there yet (found by a tester: the run
+#    flew every sample, then failed, and left a checkpoint in a folder it had made; report wrote
+#    its other outputs first).
+for bad in "$work/slash/new.h5/" "$work/slash/new.h5/." "$work/slash/.."; do
+  expect 2 "run -o $bad" -- "$strewn" "${study[@]}" -o "$bad" &&
+    refused_once "run -o $bad" "names a folder, not a file"
+  expect 2 "report --html $bad" -- "$strewn" report "$results" --csv "$work/slash/c.csv" \
+    --html "$bad" && refused_once "report --html $bad" "names a folder, not a file"
+done
+[[ -e "$work/slash" ]] && fail "a refused path that names a folder left $(find "$work/slash")"
+ok "a path that names a folder is refused before anything is flown or written"
+
 finish "outputs kept"
