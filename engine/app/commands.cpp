@@ -514,7 +514,7 @@ int run_report(const ReportArguments& a, std::ostream& out) {
       text = figures_csv(record);
     else
       text = output.body.empty() ? map_svg(record) : map_svg(record, output.body);
-    write_report_file(output.path, text, {a.results});
+    write_report_file(output.path, text, {a.results}, a.force);
     written.push_back(output.path);
   }
   if (a.json)

@@ -65,9 +65,11 @@ std::string escape_markup(const std::string& text) {
 }
 
 void write_report_file(const std::string& path, const std::string& text,
-                       const std::vector<std::string>& reads) {
+                       const std::vector<std::string>& reads, bool replace) {
   namespace fs = std::filesystem;
-  refuse_unsafe_output(path, "", reads);
+  OutputRules rules;
+  rules.replace = replace;
+  refuse_unsafe_output(path, "", reads, rules);
   const fs::path final_path(path);
   // A missing folder is made, as for a study's results file.
   if (const fs::path folder = final_path.parent_path(); !folder.empty()) {
@@ -94,7 +96,7 @@ void write_report_file(const std::string& path, const std::string& text,
                     (complete ? std::string("cannot close the file") : std::strerror(saved)) + ")");
     }
   }
-  durable_rename(temporary, path);
+  durable_rename(temporary, path, replace);
 }
 
 namespace {

@@ -38,8 +38,10 @@ std::string html_report(const StudyRecord& record);
 /// Writes a file whole (temporary name, then rename), making a missing folder. Refuses
 /// (UsageError, status 2) a path that is a folder, a device, a pipe or a link, or one of `reads`,
 /// the files the command reads; throws IoError naming the path when writing fails.
+/// With `replace` false, an existing file (one that appeared since the outputs were checked
+/// too) is refused, never replaced.
 void write_report_file(const std::string& path, const std::string& text,
-                       const std::vector<std::string>& reads = {});
+                       const std::vector<std::string>& reads = {}, bool replace = true);
 
 /// Text escaped for XML and HTML.
 std::string escape_markup(const std::string& text);

@@ -257,7 +257,7 @@ OutputLock::~OutputLock() {
   ::close(fd_);
 }
 
-void durable_rename(const std::string& from, const std::string& to) {
+void durable_rename(const std::string& from, const std::string& to, bool replace) {
   namespace fs = std::filesystem;
   const auto fail = [&](const std::string& what, int error) {
     std::error_code ignored;
@@ -272,9 +272,18 @@ void durable_rename(const std::string& from, const std::string& to) {
     fail("cannot flush the file to disk", error);
   }
   ::close(fd);
-  std::error_code renamed;
-  fs::rename(from, to, renamed);
-  if (renamed) fail("cannot put the file in place", renamed.value());
+  // Without leave to replace, the rename itself refuses a file that appeared since the outputs
+  // were checked (another report racing to the same name); renameat2 with RENAME_NOREPLACE (Linux
+  // 3.15, rename(2)), or a plain rename where the file system cannot do it.
+  int moved =
+      replace ? -1 : ::renameat2(AT_FDCWD, from.c_str(), AT_FDCWD, to.c_str(), RENAME_NOREPLACE);
+  if (moved != 0 && !replace && errno == EEXIST)
+    fail("appeared while it was being written; pass --force to replace it", EEXIST);
+  if (moved != 0) {
+    std::error_code renamed;
+    fs::rename(from, to, renamed);
+    if (renamed) fail("cannot put the file in place", renamed.value());
+  }
   // The folder's new entry; a file system that cannot flush a folder (EINVAL) keeps it anyway.
   fs::path folder = fs::path(to).parent_path();
   if (folder.empty()) folder = ".";

@@ -97,7 +97,8 @@ class OutputLock {
 /// (fsync) before the rename, and the folder's entry after it, so that a power cut leaves either
 /// the old state or the new, never a name pointing at data not yet written. Throws IoError when
 /// the file cannot be flushed or renamed (the file under `from` is then removed).
-void durable_rename(const std::string& from, const std::string& to);
+/// With `replace` false, a file already under `to` is never replaced: IoError instead.
+void durable_rename(const std::string& from, const std::string& to, bool replace = true);
 
 /// Opens `path` for writing as a new regular file, never through a link: an entry already there
 /// under the name (a leftover, or a link planted to redirect the write) is removed first, then

@@ -228,4 +228,20 @@ done
 [[ -e "$work/slash" ]] && fail "a refused path that names a folder left $(find "$work/slash")"
 ok "a path that names a folder is refused before anything is flown or written"
 
+# 7. Two reports racing to one new output without --force: at most one writes it (found by a
+#    tester: both could succeed, the second replacing the first between its check and its rename).
+mkdir -p "$work/race"
+both=0
+for _ in $(seq 10); do
+  rm -f "$work/race/page.html"
+  "$strewn" report "$results" --html "$work/race/page.html" >/dev/null 2>&1 &
+  first=$!
+  "$strewn" report "$results" --html "$work/race/page.html" >/dev/null 2>&1
+  second=$?
+  wait "$first"
+  [[ $? -eq 0 && $second -eq 0 ]] && both=$((both + 1))
+done
+((both == 0)) || fail "two racing reports both wrote one output in $both of 10 races"
+ok "two reports racing to one output: one writes it, the other is refused"
+
 finish "outputs kept"
