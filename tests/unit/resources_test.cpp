@@ -75,6 +75,7 @@ TEST(Resources, AnAddressSpaceLimitIsTheLimit) {
 #endif
 }
 
+#ifndef STREWN_UNDER_ASAN
 // The size a process maps now (VmSize of /proc/self/status, proc(5)), in bytes.
 double mapped_bytes() {
   std::ifstream in("/proc/self/status");
@@ -87,6 +88,7 @@ double mapped_bytes() {
     }
   return kib * 1024.0;
 }
+#endif
 
 TEST(Resources, AnAllocationThatFailsIsStatusThree) {
 #ifdef STREWN_UNDER_ASAN
