@@ -239,7 +239,8 @@ TEST(GeoJson, RingsAcrossTheAntimeridianAreCutIntoClosedCounterClockwisePieces) 
   // A ring far from the antimeridian is written as before: one Polygon, each vertex where
   // LocalCartesian places it, rounded to 1e-7 degrees (RFC 7946 11.2).
   for (const auto& f : j["features"]) {
-    if (f["properties"]["group"] != "far" || f["properties"]["kind"] != "containment_circle")
+    if (f["properties"].value("group", "") != "far" ||
+        f["properties"].value("kind", "") != "containment_circle")
       continue;
     ASSERT_EQ(f["geometry"]["type"], "Polygon");
     const auto& ring = f["geometry"]["coordinates"][0];
@@ -255,10 +256,10 @@ TEST(GeoJson, RingsAcrossTheAntimeridianAreCutIntoClosedCounterClockwisePieces) 
   }
   // Points east of the antimeridian have negative longitudes, west of it positive.
   for (const auto& f : j["features"]) {
-    if (f["properties"]["kind"] == "release_point") {
+    if (f["properties"].value("kind", "") == "release_point") {
       EXPECT_LT(f["geometry"]["coordinates"][0].get<double>(), -179.9);
     }
-    if (f["properties"]["kind"] == "impacts") {
+    if (f["properties"].value("kind", "") == "impacts") {
       const auto& points = f["geometry"]["coordinates"];
       ASSERT_EQ(points.size(), 4u);
       EXPECT_GT(points[0][0].get<double>(), 179.9);
