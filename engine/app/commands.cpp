@@ -82,16 +82,14 @@ struct RunArguments {
 
 // Set by SIGINT, SIGTERM and SIGHUP while a study runs (a lock-free atomic exchange is safe in a
 // handler). The first signal stops the run cleanly, keeping every finished sample; a second one
-// ends the process at once, removing the temporary results file (whose name is kept in a fixed
-// buffer, as a handler may only read memory) and leaving the checkpoint, whose records are each
+// ends the process at once, removing the temporary results file and the lock file
+// (store/output_file.hpp, RemovedOnSignal) and leaving the checkpoint, whose records are each
 // on disk before the next is begun (a torn last one is cut off on --resume). A repeat of the
 // first signal within a quarter of a second is not a second request: one Ctrl-C reaches every
 // process of the terminal's group, and a launcher that forwards it delivers it once more.
 std::atomic<bool> stop_requested{false};
 std::atomic<int> first_signal{0};
 std::atomic<std::int64_t> first_signal_ns{0};
-std::atomic<bool> temporary_results_file_ready{false};
-char temporary_results_file[4096] = "";
 static_assert(std::atomic<bool>::is_always_lock_free && std::atomic<int>::is_always_lock_free &&
               std::atomic<std::int64_t>::is_always_lock_free);
 
@@ -113,7 +111,7 @@ extern "C" void request_stop(int signal_number) {
   }
   const std::int64_t since = first_signal_ns;
   if (signal_number == claimed && (since == 0 || monotonic_ns() - since < 250'000'000)) return;
-  if (temporary_results_file_ready) ::unlink(temporary_results_file);
+  remove_files_held_for_signals();
   static const char text[] =
       "\nstrewn: stopped at once by a second signal; the checkpoint keeps the samples written to "
       "it: run the same command with --resume to go on\n";
@@ -128,7 +126,6 @@ class StopOnSignals {
     stop_requested = false;
     first_signal = 0;
     first_signal_ns = 0;
-    temporary_results_file_ready = false;
     struct sigaction action {};
     action.sa_handler = request_stop;
     action.sa_flags = SA_RESTART;  // reads and writes under way go on rather than fail (EINTR)
@@ -137,18 +134,9 @@ class StopOnSignals {
   }
   ~StopOnSignals() {
     for (std::size_t k = 0; k < kSignals.size(); ++k) sigaction(kSignals[k], &old_[k], nullptr);
-    temporary_results_file_ready = false;
   }
   StopOnSignals(const StopOnSignals&) = delete;
   StopOnSignals& operator=(const StopOnSignals&) = delete;
-  /// The file a second signal removes (the handler reads the name only once it is whole).
-  static void remove_on_second_signal(const std::string& path) {
-    temporary_results_file_ready = false;
-    if (path.size() >= sizeof temporary_results_file) return;  // refused before (prepare_output)
-    std::memcpy(temporary_results_file, path.data(), path.size());
-    temporary_results_file[path.size()] = '\0';
-    temporary_results_file_ready = true;
-  }
 
  private:
   static constexpr std::array<int, 3> kSignals{SIGINT, SIGTERM, SIGHUP};
@@ -345,24 +333,36 @@ void prepare_run(const RunArguments& a, const Job& job, PreparedRun& run) {
   check_memory(run.scenario, *run.model);
 }
 
-// On several ranks every rank prepares, and then all agree before any flight: a rank whose
-// preparation failed (a file missing there), or that read or was given other inputs, ends every
-// rank with status 2 and the cause, instead of leaving the others waiting for its rows.
-void prepare_on_every_rank(const RunArguments& a, const Job& job, PreparedRun& run) {
-  if (job.size() == 1) return prepare_run(a, job, run);
+// On several ranks every rank prepares (`prepare` returns the digest of what it read and was
+// asked), and then all agree before any work: a rank whose preparation failed (a file missing
+// there), or that read or was given other inputs, ends every rank with status 2 and the cause,
+// instead of leaving the others waiting for its rows. Every rank fails here together, so none
+// ends the others (FailureNoRankWaitsFor).
+template <class Prepare>
+void prepare_together(const Job& job, Prepare&& prepare) {
+  if (job.size() == 1) {
+    prepare();
+    return;
+  }
   std::exception_ptr failure;
   std::string mine;
   try {
-    prepare_run(a, job, run);
-    mine = "ok " + inputs_sha256(run.scenario) + " " + std::to_string(run.scenario.study.samples) +
-           " " + std::to_string(run.scenario.study.seed) + " " + kEngineVersion;
+    mine = "ok " + prepare() + " " + kEngineVersion;
   } catch (const std::exception& e) {
     failure = std::current_exception();
     mine = std::string("failed ") + e.what();
   }
   const std::string verdict = start_verdict(job, mine);
-  if (failure) std::rethrow_exception(failure);
-  if (!verdict.empty()) throw UsageError(verdict);
+  if (failure) throw FailureNoRankWaitsFor{failure};
+  if (!verdict.empty()) throw FailureNoRankWaitsFor{std::make_exception_ptr(UsageError(verdict))};
+}
+
+void prepare_on_every_rank(const RunArguments& a, const Job& job, PreparedRun& run) {
+  prepare_together(job, [&] {
+    prepare_run(a, job, run);
+    return inputs_sha256(run.scenario) + " " + std::to_string(run.scenario.study.samples) + " " +
+           std::to_string(run.scenario.study.seed);
+  });
 }
 
 int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& err, const Job& job) {
@@ -383,7 +383,6 @@ int run_study_command(const RunArguments& a, std::ostream& out, std::ostream& er
 
   const std::string& path = prepared.path;
   const std::string& origin = prepared.origin;
-  if (signals) StopOnSignals::remove_on_second_signal(temporary_path_of(path));
   const auto start_wall = std::chrono::steady_clock::now();
 
   StudyOptions options;
@@ -746,7 +745,18 @@ struct Commands {
     if (*trace_command) return run_trace(trace, out);
     if (*run_command) return run_study_command(run, out, err, job);
     if (*sweep_command) {
-      const SweepPlan plan = load_sweep(sweep.file, sweep.samples);
+      // Every rank reads the sweep, and all agree on it before any case runs: a rank that read
+      // other files would otherwise put its cases, run on other inputs, into the same results.
+      SweepPlan plan;
+      prepare_together(job, [&] {
+        plan = load_sweep(sweep.file, sweep.samples);
+        // The sweep's text, then every file it reads: the base and its tables (files_read ends
+        // with the sweep file itself, whose text is given).
+        std::vector<std::string> files{sweep.file};
+        if (!plan.files_read.empty())
+          files.insert(files.end(), plan.files_read.begin(), plan.files_read.end() - 1);
+        return inputs_sha256(plan.text, files) + " " + std::to_string(plan.samples);
+      });
       std::optional<tbb::global_control> limit;
       if (sweep.options.threads > 0)
         limit.emplace(tbb::global_control::max_allowed_parallelism,
@@ -764,36 +774,10 @@ struct Commands {
   }
 };
 
-}  // namespace
-
-int run_command_line(int argc, const char* const* argv, std::ostream& out_stream,
-                     std::ostream& err_stream, const Job& job) {
-  // Only rank 0 speaks; the others keep quiet unless something fails on them alone.
-  std::ostringstream silent;
-  std::ostream& out = job.leader() ? out_stream : silent;
-  std::ostream& err = job.leader() ? err_stream : silent;
-  CLI::App app{
-      "strewn: Monte Carlo engine for drop and drift safety studies.\n"
-      "Results are engineering estimates; exclusion zones are set by the responsible "
-      "authority under local rules.",
-      "strewn"};
-  app.set_version_flag("--version", std::string("strewn ") + kEngineVersion);
-  app.require_subcommand(1);
-  Commands commands(app);
+// What failed, in words for `err`, and the exit status.
+int describe_failure(const std::exception_ptr& failure, std::ostream& err, const Job& job) {
   try {
-    app.parse(argc, argv);
-  } catch (const CLI::ParseError& e) {
-    // Help and --version are "errors" with exit code 0 that print to `out`.
-    if (e.get_exit_code() == 0) {
-      app.exit(e, out, err);
-      return kExitDone;
-    }
-    err << "error: " << e.what() << "\n(--help lists the commands and their options)\n";
-    return kExitInvalid;
-  }
-
-  try {
-    return commands.run_chosen(out, err, err_stream, job);
+    std::rethrow_exception(failure);
   } catch (const ScenarioError& e) {
     for (const auto& problem : e.problems()) err << "error: " << problem.describe() << '\n';
     err << e.problems().size() << (e.problems().size() == 1 ? " problem" : " problems")
@@ -812,17 +796,103 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
     // Memory ran out although the study was sized against the limit (another process took it,
     // or the estimate fell short): said plainly, with the limit, and nothing half-written kept.
     const MemoryLimit limit = memory_limit();
-    err << "error: ran out of memory"
-        << (job.leader() ? "" : " on rank " + std::to_string(job.rank())) << " (" << limit.what
-        << ": " << printf_text("%.2f", limit.bytes / 1073741824.0)
+    err << "error: ran out of memory (" << limit.what << ": "
+        << printf_text("%.2f", limit.bytes / 1073741824.0)
         << " GiB); run fewer samples, or free memory\n";
     return kExitFailure;
   } catch (const std::exception& e) {
-    if (!job.leader()) err_stream << "error (rank " << job.rank() << "): " << e.what() << '\n';
     err << "error: " << e.what() << '\n';
     return kExitFailure;
+  } catch (const FailureNoRankWaitsFor& f) {
+    return describe_failure(f.cause, err, job);
   }
-  return kExitInvalid;
+  return kExitFailure;
+}
+
+// `text` with every line that starts "error:" made to name the rank: "error (rank 2):".
+std::string naming_rank(const std::string& text, int rank) {
+  std::string out, line;
+  std::istringstream lines(text);
+  while (std::getline(lines, line)) {
+    if (line.starts_with("error:"))
+      line = "error (rank " + std::to_string(rank) + "):" + line.substr(6);
+    out += line + '\n';
+  }
+  return out;
+}
+
+// A failure on a rank of several where the other ranks may wait for this one (not a
+// FailureNoRankWaitsFor): said on this rank's own standard error, naming it, and then the whole
+// job is ended (MPI_Abort) with the failure's status, so that no rank waits for ever.
+[[noreturn]] void end_job(const std::string& said, int status, std::ostream& err_stream,
+                          const Job& job) {
+  err_stream << (job.leader() ? said : naming_rank(said, job.rank())) << "strewn: rank "
+             << job.rank() << " failed alone; ending every rank of the job\n";
+  err_stream.flush();
+  job.abort(status);
+}
+
+}  // namespace
+
+int run_command_line(int argc, const char* const* argv, std::ostream& out_stream,
+                     std::ostream& err_stream, const Job& job) {
+  // Only rank 0 speaks; the others keep quiet unless something fails on them alone.
+  std::ostringstream silent;
+  std::ostream& out = job.leader() ? out_stream : silent;
+  std::ostream& err = job.leader() ? err_stream : silent;
+  CLI::App app{
+      "strewn: Monte Carlo engine for drop and drift safety studies.\n"
+      "Results are engineering estimates; exclusion zones are set by the responsible "
+      "authority under local rules.",
+      "strewn"};
+  app.set_version_flag("--version", std::string("strewn ") + kEngineVersion);
+  app.require_subcommand(1);
+  Commands commands(app);
+  // Every rank parses its own command line (a launch may give each rank its own); they agree on
+  // the outcome before anything else, so that a rank whose line is wrong does not leave the
+  // others waiting: 0 go on, 1 ended here (help, --version), 2 refused.
+  int parsed = 0;
+  std::string refusal;
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::ParseError& e) {
+    // Help and --version are "errors" with exit code 0 that print to `out`.
+    if (e.get_exit_code() == 0) {
+      app.exit(e, out, err);
+      parsed = 1;
+    } else {
+      refusal =
+          std::string("error: ") + e.what() + "\n(--help lists the commands and their options)\n";
+      parsed = 2;
+    }
+  }
+  const int agreed = job.highest(parsed);
+  const std::uint64_t leaders = job.broadcast(static_cast<std::uint64_t>(parsed));
+  if (parsed == 2) {
+    // Said by rank 0; by another rank only when rank 0's line was not refused too.
+    if (job.leader())
+      err_stream << refusal;
+    else if (leaders != 2)
+      err_stream << naming_rank(refusal, job.rank());
+  }
+  if (agreed != 0) return parsed == 1 || agreed == 1 ? kExitDone : kExitInvalid;
+
+  try {
+    return commands.run_chosen(out, err, err_stream, job);
+  } catch (...) {
+    const std::exception_ptr failure = std::current_exception();
+    bool alone = job.size() > 1;
+    try {
+      std::rethrow_exception(failure);
+    } catch (const FailureNoRankWaitsFor&) {
+      alone = false;
+    } catch (...) {
+    }
+    if (!alone) return describe_failure(failure, err, job);
+    std::ostringstream said;
+    const int status = describe_failure(failure, said, job);
+    end_job(said.str(), status, err_stream, job);
+  }
 }
 
 }  // namespace strewn

@@ -3,9 +3,11 @@
 #include <cstdlib>
 #include <cstring>
 #include <iostream>
+#include <optional>
 
 #include "app/commands.hpp"
 #include "app/printable_output.hpp"
+#include "app/rank_signals.hpp"
 #include "cluster/job.hpp"
 #include "store/results_file.hpp"
 
@@ -27,6 +29,9 @@ int main(int argc, char** argv) {
   int status = 0;
   {
     const strewn::Job job(argc, argv);  // MPI, when built with it
+    // A rank of several that is signalled ends at once, without litter (app/rank_signals.hpp).
+    std::optional<strewn::EndRankOnSignals> end_on_signals;
+    if (job.size() > 1) end_on_signals.emplace(job.rank());
     // Everything written to the terminal is made inert (app/printable_output.hpp).
     strewn::PrintableOutput out_text(std::cout.rdbuf()), err_text(std::cerr.rdbuf());
     std::ostream out(&out_text), err(&err_text);

@@ -122,6 +122,12 @@ std::uint64_t Job::broadcast(std::uint64_t value) const {
   return value;
 }
 
+int Job::highest(int value) const {
+  int highest = value;
+  if (size_ > 1) MPI_Allreduce(&value, &highest, 1, MPI_INT, MPI_MAX, MPI_COMM_WORLD);
+  return highest;
+}
+
 void Job::barrier() const {
   if (size_ > 1) MPI_Barrier(MPI_COMM_WORLD);
 }
@@ -160,6 +166,9 @@ std::vector<std::byte> Job::receive_from(int, int, int&) const {
   throw std::logic_error("Job::receive on a single-process job");
 }
 std::uint64_t Job::broadcast(std::uint64_t value) const {
+  return value;
+}
+int Job::highest(int value) const {
   return value;
 }
 void Job::barrier() const {}

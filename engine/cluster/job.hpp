@@ -7,6 +7,7 @@
 // extra thread that does (the case manager of a sweep, on rank 0) runs while its rank's main
 // thread makes no MPI call.
 #include <cstdint>
+#include <exception>
 #include <memory>
 #include <span>
 #include <string>
@@ -55,6 +56,8 @@ class Job {
   std::vector<std::byte> receive_any(int tag, int& from) const;
   /// Rank 0's value, on every rank.
   [[nodiscard]] std::uint64_t broadcast(std::uint64_t value) const;
+  /// The highest of the ranks' values, on every rank.
+  [[nodiscard]] int highest(int value) const;
   void barrier() const;
   /// Ends every rank at once (an error on one rank must not leave the others waiting).
   [[noreturn]] void abort(int status) const;
@@ -63,6 +66,14 @@ class Job {
   std::vector<std::byte> receive_from(int source, int tag, int& from) const;
   int rank_ = 0, size_ = 1;
   bool initialised_ = false;
+};
+
+/// A failure at a point where no other rank of the job waits for this one: every rank failed at
+/// the same agreed point (start_verdict), or the others have finished their part. The rank ends
+/// by itself with the cause's status. Any other failure on a rank of several ends the whole job
+/// (Job::abort), since the other ranks may be waiting for this one's messages.
+struct FailureNoRankWaitsFor {
+  std::exception_ptr cause;
 };
 
 /// What the ranks of a job agree on before any flight: each gives "ok <digest>" (the digest of

@@ -675,8 +675,15 @@ std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
   }
   job.barrier();
   if (!job.leader()) return std::nullopt;
-  if (refused) std::rethrow_exception(refused);
-  return gather_cases(job, plan, output, folder);
+  // From here rank 0 works alone: the others have finished their part and wait for none of its
+  // messages, so a failure ends rank 0 by itself rather than the whole job.
+  try {
+    if (refused) std::rethrow_exception(refused);
+    return gather_cases(job, plan, output, folder);
+  } catch (...) {
+    if (job.size() == 1) throw;
+    throw FailureNoRankWaitsFor{std::current_exception()};
+  }
 }
 
 }  // namespace strewn

@@ -7,10 +7,13 @@
 #include <unistd.h>
 
 #include <algorithm>
+#include <array>
+#include <atomic>
 #include <cctype>
 #include <cerrno>
 #include <cstring>
 #include <filesystem>
+#include <fstream>
 #include <iterator>
 #include <string_view>
 
@@ -40,6 +43,27 @@ std::string temporary_path_of(const std::string& path) {
   return (final_path.parent_path() / (final_path.filename().string() + partial_suffix())).string();
 }
 
+namespace {
+
+// True while process `pid` of this machine may still write: it exists and has not ended. A process
+// that has ended but whose parent has not yet collected its status (a zombie, state Z or X in
+// /proc/<pid>/stat, proc(5)) still answers kill(pid, 0), yet writes nothing more: a rank killed
+// under a launcher stays so until the launcher reaps it.
+bool process_lives(pid_t pid) {
+  if (::kill(pid, 0) != 0 && errno == ESRCH) return false;
+  std::ifstream stat("/proc/" + std::to_string(pid) + "/stat");
+  std::string line;
+  if (!std::getline(stat, line)) return true;  // no /proc: assume it lives
+  // "pid (comm) state ...": the command name may hold spaces and parentheses, so the state is
+  // read after the last ')'.
+  const std::size_t close = line.rfind(')');
+  if (close == std::string::npos || close + 2 >= line.size()) return true;
+  const char state = line[close + 2];
+  return state != 'Z' && state != 'X';
+}
+
+}  // namespace
+
 void remove_stale_partials(const std::string& folder, const std::string& output_name) {
   namespace fs = std::filesystem;
   const std::string suffix = partial_suffix();
@@ -56,7 +80,7 @@ void remove_stale_partials(const std::string& folder, const std::string& output_
         digits.find_first_not_of("0123456789") != std::string::npos)
       continue;
     const auto pid = static_cast<pid_t>(std::stol(digits));
-    if (::kill(pid, 0) == 0 || errno != ESRCH) continue;  // its process lives
+    if (process_lives(pid)) continue;
     // A file someone holds locked is in use whatever its name says (HDF5 locks a file it
     // writes; two machines may share a host name): removed only while this process holds it.
     const int fd = ::open(entry.path().c_str(), O_RDONLY | O_NOFOLLOW | O_CLOEXEC | O_NONBLOCK);
@@ -67,6 +91,43 @@ void remove_stale_partials(const std::string& folder, const std::string& output_
     }
     ::close(fd);
   }
+}
+
+namespace {
+
+// The slots of RemovedOnSignal: a slot is claimed (in_use), its name written, then published
+// (ready); the handler reads only published names. Lock-free atomics are safe in a handler.
+struct HeldName {
+  std::atomic<bool> in_use{false}, ready{false};
+  char path[4096] = "";
+};
+std::array<HeldName, 16> held_names;
+static_assert(std::atomic<bool>::is_always_lock_free);
+
+}  // namespace
+
+RemovedOnSignal::RemovedOnSignal(const std::string& path) {
+  if (path.empty() || path.size() >= sizeof HeldName::path) return;
+  for (std::size_t k = 0; k < held_names.size(); ++k) {
+    bool free = false;
+    if (!held_names[k].in_use.compare_exchange_strong(free, true)) continue;
+    std::memcpy(held_names[k].path, path.data(), path.size());
+    held_names[k].path[path.size()] = '\0';
+    held_names[k].ready = true;
+    slot_ = static_cast<int>(k);
+    return;
+  }
+}
+
+RemovedOnSignal::~RemovedOnSignal() {
+  if (slot_ < 0) return;
+  held_names[static_cast<std::size_t>(slot_)].ready = false;
+  held_names[static_cast<std::size_t>(slot_)].in_use = false;
+}
+
+void remove_files_held_for_signals() noexcept {
+  for (HeldName& name : held_names)
+    if (name.ready) ::unlink(name.path);
 }
 
 int create_new_file(const std::string& path) {
@@ -243,8 +304,11 @@ OutputLock::OutputLock(const std::string& path) : lock_path_(path + ".lock") {
     struct stat held {
     }, named{};
     if (::fstat(fd_, &held) == 0 && ::stat(lock_path_.c_str(), &named) == 0 &&
-        held.st_dev == named.st_dev && held.st_ino == named.st_ino)
+        held.st_dev == named.st_dev && held.st_ino == named.st_ino) {
+      // Held from here: a rank of a job ended by a signal leaves no lock file behind.
+      removed_on_signal_ = std::make_unique<RemovedOnSignal>(lock_path_);
       return;
+    }
     ::close(fd_);
     fd_ = -1;
   }
@@ -253,6 +317,7 @@ OutputLock::OutputLock(const std::string& path) : lock_path_(path + ".lock") {
 
 OutputLock::~OutputLock() {
   if (fd_ < 0) return;
+  removed_on_signal_.reset();
   ::unlink(lock_path_.c_str());  // while still held: no one takes a lock on a file being removed
   ::close(fd_);
 }

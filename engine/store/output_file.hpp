@@ -2,6 +2,7 @@
 // Output files written safely: a path strewn must not write is refused before anything runs, a
 // file is made new (never through a link) under a temporary name beside the final one and renamed
 // into place when whole, and the temporary files of killed runs are cleared away.
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -75,6 +76,28 @@ std::string temporary_path_of(const std::string& path);
 /// locks a file it writes) are left alone.
 void remove_stale_partials(const std::string& folder, const std::string& output_name);
 
+/// A file removed when the process is ended by a signal before this object is dropped: the
+/// temporary name of an output being written, or an output's lock file. A handler may only read
+/// memory and call async-signal-safe functions (POSIX.1-2008, signal-safety(7)), so each name is
+/// copied into one of a fixed number of slots that remove_files_held_for_signals() unlinks. A
+/// name that finds no free slot, or is longer than a slot, is not held: a run killed outright
+/// leaves the same kind of file, and the next run on the output clears it
+/// (remove_stale_partials).
+class RemovedOnSignal {
+ public:
+  explicit RemovedOnSignal(const std::string& path);
+  ~RemovedOnSignal();
+  RemovedOnSignal(const RemovedOnSignal&) = delete;
+  RemovedOnSignal& operator=(const RemovedOnSignal&) = delete;
+
+ private:
+  int slot_ = -1;
+};
+
+/// Unlinks every file held by a RemovedOnSignal now. Async-signal-safe: for a signal handler that
+/// ends the process.
+void remove_files_held_for_signals() noexcept;
+
 /// One writer for an output: held while a study writes `<path>` (and its checkpoint), so that a
 /// second run or resume on the same output is refused instead of mixing two studies into one.
 /// An advisory lock (flock) on `<path>.lock`, released by the kernel when the process ends however
@@ -91,6 +114,7 @@ class OutputLock {
  private:
   std::string lock_path_;
   int fd_ = -1;
+  std::unique_ptr<RemovedOnSignal> removed_on_signal_;
 };
 
 /// Puts the complete file `from` in place as `to`, durably: the file's data is flushed to disk

@@ -43,11 +43,15 @@ std::string sha256_hex(const std::string& text) {
 }
 
 std::string inputs_sha256(const Scenario& s) {
-  // The scenario's text, then each file it reads by its content (a file that cannot be read now
-  // counts as different from any that could).
-  std::string all = s.text;
-  for (std::size_t k = 1; k < s.files_read.size(); ++k) {
-    std::ifstream in(s.files_read[k], std::ios::binary);
+  return inputs_sha256(s.text, s.files_read);
+}
+
+std::string inputs_sha256(const std::string& text, const std::vector<std::string>& files_read) {
+  // The text, then each file read by its content (a file that cannot be read now counts as
+  // different from any that could).
+  std::string all = text;
+  for (std::size_t k = 1; k < files_read.size(); ++k) {
+    std::ifstream in(files_read[k], std::ios::binary);
     std::ostringstream content;
     content << in.rdbuf();
     all += "\n--- " + std::to_string(k) + (in ? " read\n" : " unreadable\n") + content.str();
@@ -157,6 +161,7 @@ ResultsWriter::ResultsWriter(const std::string& path, const Scenario& scenario,
                              std::size_t rows, bool keep_samples)
     : path_(path) {
   temporary_ = temporary_path_of(path);
+  removed_on_signal_ = std::make_unique<RemovedOnSignal>(temporary_);
   const std::lock_guard<std::recursive_mutex> lock(hdf5_mutex());
   H5::Exception::dontPrint();
   io_guard(path_, [&] {

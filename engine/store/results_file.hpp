@@ -51,6 +51,7 @@ class ResultsWriter : public RowSink {
   struct Open;
   std::unique_ptr<Open> open_;
   std::string path_, temporary_;
+  std::unique_ptr<RemovedOnSignal> removed_on_signal_;  // the temporary file
 };
 
 /// Writes a finished study's results file in one go (see ResultsWriter).
@@ -116,5 +117,8 @@ std::string sha256_hex(const std::string& text);
 /// members), as they are on disk now: what a checkpoint belongs to, so that a resume after any of
 /// them changed is refused.
 std::string inputs_sha256(const Scenario& scenario);
+/// The same of any input: its `text` and the files it reads after the first (files_read[0] is the
+/// file `text` was read from), as a sweep file and what it reads.
+std::string inputs_sha256(const std::string& text, const std::vector<std::string>& files_read);
 
 }  // namespace strewn

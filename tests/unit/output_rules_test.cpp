@@ -2,9 +2,13 @@
 // replaced only when allowed, and an output a scenario names stays in the scenario's folder once
 // `..` and links are resolved as the kernel resolves them.
 #include <gtest/gtest.h>
+#include <sys/wait.h>
+#include <unistd.h>
 
 #include <filesystem>
 #include <fstream>
+#include <memory>
+#include <vector>
 
 #include "core/errors.hpp"
 #include "store/output_file.hpp"
@@ -133,6 +137,64 @@ TEST(OutputRules, ExistingFilesAndPathsOutsideAreRefusedUnlessAllowed) {
   EXPECT_EQ(entries, 1u);  // its own folder only
   EXPECT_NO_THROW(prepare_output((f.shared / "made" / "x.h5").string(), "", true, {}, within));
   EXPECT_TRUE(fs::is_directory(f.shared / "made"));
+}
+
+}  // namespace
+}  // namespace strewn
+
+namespace strewn {
+namespace {
+
+// A rank killed under a launcher stays a zombie (ended, its status not yet collected) until the
+// launcher reaps it; kill(pid, 0) still answers for it (POSIX kill(2)), yet it writes nothing more.
+// Its partial file is a leftover like any other (proc(5): state Z in /proc/<pid>/stat).
+TEST(OutputRules, ALeftoverOfAnEndedProcessNotYetReapedIsRemoved) {
+  const test::ScratchFolder dir("zombie-leftover");
+  const pid_t child = ::fork();
+  if (child == 0) ::_exit(0);
+  ASSERT_GT(child, 0);
+  // Ended, not reaped: wait until the kernel says so (WNOWAIT leaves it a zombie).
+  siginfo_t info{};
+  ASSERT_EQ(::waitid(P_PID, static_cast<id_t>(child), &info, WEXITED | WNOWAIT), 0);
+  ASSERT_EQ(::kill(child, 0), 0);  // it still answers
+  const std::string suffix = partial_suffix();
+  const std::string leftover =
+      (dir / "r.h5").string() + suffix.substr(0, suffix.rfind('-') + 1) + std::to_string(child);
+  std::ofstream(leftover) << "left";
+  remove_stale_partials(dir.string(), "r.h5");
+  EXPECT_FALSE(fs::exists(leftover));
+  ::waitpid(child, nullptr, 0);
+}
+
+// What a rank ended by a signal removes (RemovedOnSignal): the names held while they are held,
+// and no other.
+TEST(OutputRules, FilesHeldForSignalsAreRemovedOnlyWhileHeld) {
+  const test::ScratchFolder dir("held-for-signals");
+  const std::string held = (dir / "held").string(), dropped = (dir / "dropped").string(),
+                    never = (dir / "never").string();
+  for (const auto& f : {held, dropped, never}) std::ofstream(f) << "x";
+  const RemovedOnSignal keep(held);
+  { const RemovedOnSignal gone(dropped); }
+  remove_files_held_for_signals();
+  EXPECT_FALSE(fs::exists(held));
+  EXPECT_TRUE(fs::exists(dropped));
+  EXPECT_TRUE(fs::exists(never));
+  // Every slot taken: a name beyond them is not held (the next run clears such leftovers), and
+  // the slots are free again once dropped.
+  std::vector<fs::path> names;
+  for (int k = 0; k < 40; ++k) names.push_back(dir / fs::path("m").concat(std::to_string(k)));
+  std::vector<std::unique_ptr<RemovedOnSignal>> many;
+  for (const auto& name : names) many.push_back(std::make_unique<RemovedOnSignal>(name.string()));
+  for (const auto& name : names) std::ofstream(name) << "x";
+  remove_files_held_for_signals();
+  int removed = 0;
+  for (const auto& name : names) removed += fs::exists(name) ? 0 : 1;
+  EXPECT_EQ(removed, 15);  // 16 slots, one held by `keep`
+  many.clear();
+  std::ofstream(dropped) << "x";
+  const RemovedOnSignal again(dropped);
+  remove_files_held_for_signals();
+  EXPECT_FALSE(fs::exists(dropped));
 }
 
 }  // namespace
