@@ -35,8 +35,10 @@ std::string figures_csv(const StudyRecord& record);
 
 /// The map of a group's footprint as SVG (the body's name, or "all"): impact density shading,
 /// hazard polygons, containment circles labelled with their level, dispersion ellipses, each
-/// rule's zone labelled with its radius and status, the release point and track, latitude and
-/// longitude ticks (metre ticks without site coordinates), north arrow, scale bar and legend.
+/// rule's zone labelled with its radius and status, the release point and track, the graticule
+/// of true meridians and parallels (report/graticule.hpp) with their ticks and labels, each label
+/// saying in data-point which point (px) it marks (metre ticks without site coordinates), north
+/// arrow, scale bar and legend.
 /// The view holds every impact cell and every figure.
 std::string map_svg(const StudyRecord& record, const std::string& group);
 /// The map of all bodies together (of the one body, for a study of one).
