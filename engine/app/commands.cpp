@@ -13,6 +13,7 @@
 #include <chrono>
 #include <csignal>
 #include <cstdint>
+#include <cstdlib>
 #include <cstring>
 #include <exception>
 #include <filesystem>
@@ -504,10 +505,20 @@ int run_report(const ReportArguments& a, std::ostream& out) {
   refuse_report_outputs(outputs, a.results, a.force);
   std::vector<std::string> written;
   for (const auto& output : outputs) {
+    if (output.option == "--geojson") {
+      // Written as it is made: with --impacts the whole document would take several times the
+      // memory of the rows it shows (docs/reliability.md, Resources).
+      stream_report_file(
+          output.path,
+          [&](const TextSink& sink) {
+            write_geojson(record, need_samples ? &file.columns : nullptr, sink);
+          },
+          {a.results}, a.force);
+      written.push_back(output.path);
+      continue;
+    }
     std::string text;
-    if (output.option == "--geojson")
-      text = geojson_text(record, need_samples ? &file.columns : nullptr);
-    else if (output.option == "--html")
+    if (output.option == "--html")
       text = html_report(record);
     else if (output.option == "--csv")
       text = figures_csv(record);
@@ -774,8 +785,32 @@ struct Commands {
   }
 };
 
-// What failed, in words for `err`, and the exit status.
-int describe_failure(const std::exception_ptr& failure, std::ostream& err, const Job& job) {
+// Address space kept aside, from the start, for saying that memory ran out. When an allocation
+// fails the process is at its limit; what the message needs (the limit read from /proc, the
+// text, the output's buffers) would fail too, and an exception thrown in the handler of
+// std::bad_alloc ends the process with std::terminate (status 134). Released first thing in
+// that handler. 1 MiB: above glibc's mmap threshold (128 KiB by default, mallopt(3)), so its
+// release gives the address space back at once.
+class MemoryReserve {
+ public:
+  MemoryReserve() : block_(static_cast<char*>(std::malloc(kBytes))) {}
+  ~MemoryReserve() { release(); }
+  MemoryReserve(const MemoryReserve&) = delete;
+  MemoryReserve& operator=(const MemoryReserve&) = delete;
+  void release() {
+    std::free(block_);
+    block_ = nullptr;
+  }
+
+ private:
+  static constexpr std::size_t kBytes = 1 << 20;
+  char* volatile block_;  // volatile: an allocation never used may otherwise be left out
+};
+
+// What failed, in words for `err`, and the exit status. `reserve` is released before the words
+// of a memory failure are made.
+int describe_failure(const std::exception_ptr& failure, std::ostream& err, const Job& job,
+                     MemoryReserve& reserve) {
   try {
     std::rethrow_exception(failure);
   } catch (const ScenarioError& e) {
@@ -795,6 +830,7 @@ int describe_failure(const std::exception_ptr& failure, std::ostream& err, const
   } catch (const std::bad_alloc&) {
     // Memory ran out although the study was sized against the limit (another process took it,
     // or the estimate fell short): said plainly, with the limit, and nothing half-written kept.
+    reserve.release();
     const MemoryLimit limit = memory_limit();
     err << "error: ran out of memory (" << limit.what << ": "
         << printf_text("%.2f", limit.bytes / 1073741824.0)
@@ -804,7 +840,7 @@ int describe_failure(const std::exception_ptr& failure, std::ostream& err, const
     err << "error: " << e.what() << '\n';
     return kExitFailure;
   } catch (const FailureNoRankWaitsFor& f) {
-    return describe_failure(f.cause, err, job);
+    return describe_failure(f.cause, err, job, reserve);
   }
   return kExitFailure;
 }
@@ -836,6 +872,7 @@ std::string naming_rank(const std::string& text, int rank) {
 
 int run_command_line(int argc, const char* const* argv, std::ostream& out_stream,
                      std::ostream& err_stream, const Job& job) {
+  MemoryReserve reserve;
   // Only rank 0 speaks; the others keep quiet unless something fails on them alone.
   std::ostringstream silent;
   std::ostream& out = job.leader() ? out_stream : silent;
@@ -888,9 +925,9 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       alone = false;
     } catch (...) {
     }
-    if (!alone) return describe_failure(failure, err, job);
+    if (!alone) return describe_failure(failure, err, job, reserve);
     std::ostringstream said;
-    const int status = describe_failure(failure, said, job);
+    const int status = describe_failure(failure, said, job, reserve);
     end_job(said.str(), status, err_stream, job);
   }
 }

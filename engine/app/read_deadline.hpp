@@ -14,7 +14,8 @@ namespace strewn {
 /// Held while a results file is read: when it is not destroyed within `limit_seconds`, writes
 /// "<path>: ..." to standard error and ends the process at once with status 2 (refused: the file
 /// is damaged or crafted). Nothing has been written by then; the outputs are written after the
-/// reading.
+/// reading. Throws std::bad_alloc when the watch's thread cannot be started for want of memory
+/// for its stack, std::system_error when it cannot for another reason.
 class ReadDeadline {
  public:
   ReadDeadline(std::string path, double limit_seconds);
@@ -27,6 +28,9 @@ class ReadDeadline {
   static double limit_for(std::uintmax_t bytes);
 
  private:
+  /// Starts the watch; std::thread's std::system_error when it cannot.
+  void start(double limit_seconds);
+
   std::string path_;
   std::mutex mutex_;
   std::condition_variable done_changed_;

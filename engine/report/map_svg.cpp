@@ -10,6 +10,7 @@
 
 #include "core/text.hpp"
 #include "report/footprint_report.hpp"
+#include "report/graticule.hpp"
 #include "report/report_files.hpp"
 #include "report/site_frame.hpp"
 
@@ -124,6 +125,8 @@ class MapWriter {
   MapWriter(const StudyRecord& r, const GroupFootprint& g)
       : r_(r), f_(r.footprint), g_(g), site_(r) {
     view_ = fit();
+    graticule_ = graticule(
+        site_, MapPanel{view_.west(), view_.east(), view_.south(), view_.north(), view_.scale()});
   }
 
   std::string write() {
@@ -341,68 +344,67 @@ class MapWriter {
        << "\" stroke-width=\"1.8\"/>\n";
   }
 
-  // Graticule: the positions (m, along the panel's east or north axis) of round latitudes or
-  // longitudes, or without coordinates of round eastings and northings, with their labels.
+  // Without site coordinates, the grid of round eastings and northings: their positions (m,
+  // along the panel's east or north axis) and labels.
   struct Tick {
     double at;  // m
     std::string text;
   };
-  [[nodiscard]] std::vector<Tick> ticks_along(bool east_axis) const {
+  [[nodiscard]] std::vector<Tick> metre_ticks(bool east_axis) const {
     std::vector<Tick> out;
     const double from = east_axis ? view_.west() : view_.south();
     const double to = east_axis ? view_.east() : view_.north();
-    if (!site_.geographic()) {
-      const double step = round_length((to - from) / 4.0);
-      for (double v = std::ceil(from / step) * step; v <= to; v += step) {
-        const char* side = east_axis ? (v < 0 ? "W" : "E") : (v < 0 ? "S" : "N");
-        out.push_back({v, v == 0.0 ? "0" : length_label(std::abs(v)) + " " + side});
-      }
-      return out;
-    }
-    // Degrees at the panel's two ends, along its middle line.
-    const auto a = site_.locate(east_axis ? PlanePoint{from, view_.centre_n}
-                                          : PlanePoint{view_.centre_e, from});
-    const auto b =
-        site_.locate(east_axis ? PlanePoint{to, view_.centre_n} : PlanePoint{view_.centre_e, to});
-    if (!a || !b) return out;
-    const double d0 = east_axis ? a->longitude : a->latitude;
-    const double d1 = east_axis ? b->longitude : b->latitude;
-    // A round step giving at most five ticks whose labels (about 6.5 px a character at 11 px)
-    // do not run into each other.
-    double step = round_length(std::abs(d1 - d0) / 4.0);
-    int places = 0;
-    for (int tries = 0; tries < 8; ++tries) {
-      places = std::max(0, static_cast<int>(std::ceil(-std::log10(step) - 1e-9)));
-      const double width = 6.5 * (static_cast<double>(places) + 6.0);
-      const double spacing = step / std::abs(d1 - d0) * kPanel;
-      if (spacing >= width + 14.0) break;
-      step = round_length(step * 2.5) == step ? step * 2.0 : round_length(step * 2.5);
-    }
-    for (double v = std::ceil(std::min(d0, d1) / step) * step; v <= std::max(d0, d1) + 1e-12;
-         v += step) {
-      const GeoPoint at = east_axis ? GeoPoint{a->latitude, v} : GeoPoint{v, a->longitude};
-      const PlanePoint local = site_.local(at);
+    const double step = round_length((to - from) / 4.0);
+    for (double v = std::ceil(from / step) * step; v <= to; v += step) {
       const char* side = east_axis ? (v < 0 ? "W" : "E") : (v < 0 ? "S" : "N");
-      out.push_back({east_axis ? local.east : local.north,
-                     printf_text("%.*f\u00b0%s", places, std::abs(v), side)});
+      out.push_back({v, v == 0.0 ? "0" : length_label(std::abs(v)) + " " + side});
     }
     return out;
   }
 
+  // The graticule under the figures: with site coordinates the true meridians and parallels
+  // (graticule.hpp), which converge toward a pole; without, straight lines of the metre grid.
   void grid_lines() {
-    s_ << "<g class=\"graticule\" stroke=\"#52606d\" stroke-opacity=\"0.18\" stroke-width=\"1\">\n";
-    for (const Tick& t : ticks_along(true))
-      s_ << "<line x1=\"" << fmt(view_.x(t.at)) << "\" y1=\"" << kTop << "\" x2=\""
-         << fmt(view_.x(t.at)) << "\" y2=\"" << kTop + kPanel << "\"/>\n";
-    for (const Tick& t : ticks_along(false))
-      s_ << "<line x1=\"" << kLeft << "\" y1=\"" << fmt(view_.y(t.at)) << "\" x2=\""
-         << kLeft + kPanel << "\" y2=\"" << fmt(view_.y(t.at)) << "\"/>\n";
+    s_ << "<g class=\"graticule\" fill=\"none\" stroke=\"#52606d\" stroke-opacity=\"0.18\" "
+          "stroke-width=\"1\">\n";
+    if (site_.geographic()) {
+      for (const GraticuleLine& line : graticule_.lines) {
+        // A point on the far side of the Earth (not finite) breaks the line.
+        std::string d;
+        bool joined = false;
+        for (const PlanePoint& p : line.points) {
+          const bool shown = std::isfinite(p.east) && std::isfinite(p.north);
+          if (shown)
+            d += (joined      ? " L"
+                  : d.empty() ? "M"
+                              : " M") +
+                 fmt(view_.x(p.east)) + " " + fmt(view_.y(p.north));
+          joined = shown;
+        }
+        if (!d.empty()) s_ << "<path d=\"" << d << "\"/>\n";
+      }
+    } else {
+      for (const Tick& t : metre_ticks(true))
+        s_ << "<line x1=\"" << fmt(view_.x(t.at)) << "\" y1=\"" << kTop << "\" x2=\""
+           << fmt(view_.x(t.at)) << "\" y2=\"" << kTop + kPanel << "\"/>\n";
+      for (const Tick& t : metre_ticks(false))
+        s_ << "<line x1=\"" << kLeft << "\" y1=\"" << fmt(view_.y(t.at)) << "\" x2=\""
+           << kLeft + kPanel << "\" y2=\"" << fmt(view_.y(t.at)) << "\"/>\n";
+    }
     s_ << "</g>\n";
   }
 
   void ticks() {
     s_ << "<g class=\"ticks\" font-size=\"11\" fill=\"#52606d\">\n";
-    for (const Tick& t : ticks_along(true)) {
+    if (site_.geographic())
+      degree_ticks();
+    else
+      metre_tick_marks();
+    s_ << "</g>\n";
+  }
+
+  void metre_tick_marks() {
+    for (const Tick& t : metre_ticks(true)) {
       const double x = view_.x(t.at);
       s_ << "<line x1=\"" << fmt(x) << "\" y1=\"" << kTop + kPanel << "\" x2=\"" << fmt(x)
          << "\" y2=\"" << kTop + kPanel + 6 << "\" stroke=\"#52606d\"/><line x1=\"" << fmt(x)
@@ -410,7 +412,7 @@ class MapWriter {
          << "\" stroke=\"#52606d\"/><text x=\"" << fmt(x) << "\" y=\"" << kTop + kPanel + 19
          << "\" text-anchor=\"middle\">" << escape_markup(t.text) << "</text>\n";
     }
-    for (const Tick& t : ticks_along(false)) {
+    for (const Tick& t : metre_ticks(false)) {
       const double y = view_.y(t.at);
       s_ << "<line x1=\"" << kLeft - 6 << "\" y1=\"" << fmt(y) << "\" x2=\"" << kLeft << "\" y2=\""
          << fmt(y) << "\" stroke=\"#52606d\"/><line x1=\"" << kLeft + kPanel << "\" y1=\"" << fmt(y)
@@ -418,7 +420,75 @@ class MapWriter {
          << "\" stroke=\"#52606d\"/><text x=\"" << kLeft - 9 << "\" y=\"" << fmt(y + 4)
          << "\" text-anchor=\"end\">" << escape_markup(t.text) << "</text>\n";
     }
-    s_ << "</g>\n";
+  }
+
+  // A tick label's place: its anchor point and the box its letters take (px), from the point of
+  // the panel's edge (or of its line) that it marks.
+  struct Placed {
+    double x, y;
+    const char* anchor;
+    double left, right, top, bottom;
+  };
+  static Placed placed(const GraticuleLabel& l, double px, double py) {
+    double x = px, y = py - 4.0;
+    const char* anchor = "middle";
+    if (l.meridian && l.edge == PanelEdge::bottom) {
+      y = kTop + kPanel + 19;  // below the panel
+    } else if (!l.meridian && l.edge == PanelEdge::left) {
+      x = kLeft - 9, y = py + 4, anchor = "end";  // left of the panel
+    } else if (l.edge == PanelEdge::left) {
+      x = kLeft + 5, y = py + 4, anchor = "start";  // inside, along the edge it meets
+    } else if (l.edge == PanelEdge::right) {
+      x = kLeft + kPanel - 5, y = py + 4, anchor = "end";
+    } else if (l.edge == PanelEdge::top) {
+      y = kTop + 15;
+    } else if (l.edge == PanelEdge::bottom) {
+      y = kTop + kPanel - 6;
+    }
+    // About 6.5 px a character at 11 px; "°" is two bytes of UTF-8 and one character.
+    const double width = 6.5 * static_cast<double>(l.text.size() - 1);
+    const double left = anchor[0] == 's' ? x : anchor[0] == 'e' ? x - width : x - width / 2;
+    return {x, y, anchor, left, left + width, y - 9, y + 3};
+  }
+  [[nodiscard]] static bool outside(const GraticuleLabel& l) {
+    return (l.meridian && l.edge == PanelEdge::bottom) ||
+           (!l.meridian && l.edge == PanelEdge::left);
+  }
+
+  // Ticks at every point where a meridian or parallel meets the panel's edges; their labels,
+  // those outside the panel first, each left out when it would run into one already placed.
+  // Every label says in data-point which point (px) it marks.
+  void degree_ticks() {
+    for (const GraticuleTick& t : graticule_.ticks) {
+      const double x = view_.x(t.at.east), y = view_.y(t.at.north);
+      const double dx = t.edge == PanelEdge::left ? -6 : t.edge == PanelEdge::right ? 6 : 0;
+      const double dy = t.edge == PanelEdge::bottom ? 6 : t.edge == PanelEdge::top ? -6 : 0;
+      s_ << "<line x1=\"" << fmt(x) << "\" y1=\"" << fmt(y) << "\" x2=\"" << fmt(x + dx)
+         << "\" y2=\"" << fmt(y + dy) << "\" stroke=\"#52606d\"/>\n";
+    }
+    std::vector<Placed> taken;
+    for (const bool inside : {false, true})
+      for (const GraticuleLabel& l : graticule_.labels) {
+        if (outside(l) == inside) continue;
+        const double px = view_.x(l.at.east), py = view_.y(l.at.north);
+        const Placed p = placed(l, px, py);
+        // Inside, where meridians fan out from a pole, a label needs more room above and below
+        // to be read as its own line's.
+        const double gap = inside ? 8.0 : 2.0;
+        const bool overlaps = std::any_of(taken.begin(), taken.end(), [&](const Placed& q) {
+          return p.left < q.right + 4 && q.left < p.right + 4 && p.top < q.bottom + gap &&
+                 q.top < p.bottom + gap;
+        });
+        if (overlaps) continue;
+        taken.push_back(p);
+        // Inside the panel with a white halo under the letters, as the figures' labels.
+        s_ << "<text x=\"" << fmt(p.x) << "\" y=\"" << fmt(p.y) << "\" data-point=\"" << fmt(px)
+           << " " << fmt(py) << "\""
+           << (inside ? " stroke=\"#ffffff\" stroke-width=\"3.5\" stroke-linejoin=\"round\" "
+                        "paint-order=\"stroke\""
+                      : "")
+           << " text-anchor=\"" << p.anchor << "\">" << escape_markup(l.text) << "</text>\n";
+      }
   }
 
   // North arrow, scale bar and legend, beside the panel.
@@ -492,6 +562,7 @@ class MapWriter {
   const GroupFootprint& g_;
   const SiteFrame site_;
   View view_{};
+  Graticule graticule_;
   double peak_ = 0.0, low_ = 0.0;
   std::ostringstream s_;
 };

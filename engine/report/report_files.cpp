@@ -12,6 +12,8 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 #include <numbers>
+#include <stdexcept>
+#include <string_view>
 
 #include "core/errors.hpp"
 #include "core/text.hpp"
@@ -64,8 +66,52 @@ std::string escape_markup(const std::string& text) {
   return out;
 }
 
-void write_report_file(const std::string& path, const std::string& text,
-                       const std::vector<std::string>& reads, bool replace) {
+namespace {
+
+// The blocks a streamed file is written in: large enough that the system calls cost nothing
+// beside the text's making, small beside any memory limit.
+constexpr std::size_t kWriteBlock = 1 << 16;
+
+// A file's descriptor written in blocks; a failed write throws IoError naming `path`.
+class BlockWriter {
+ public:
+  BlockWriter(int fd, const std::string& path) : fd_(fd), path_(path) {
+    block_.reserve(kWriteBlock);
+  }
+
+  void append(std::string_view piece) {
+    if (block_.size() + piece.size() > kWriteBlock) flush();
+    if (piece.size() >= kWriteBlock)
+      write_all(piece);
+    else
+      block_.append(piece);
+  }
+
+  void flush() {
+    write_all(block_);
+    block_.clear();
+  }
+
+ private:
+  void write_all(std::string_view text) const {
+    std::size_t written = 0;
+    while (written < text.size()) {
+      const ssize_t n = ::write(fd_, text.data() + written, text.size() - written);
+      if (n < 0 && errno == EINTR) continue;
+      if (n <= 0) throw IoError(path_ + ": writing failed (" + std::strerror(errno) + ")");
+      written += static_cast<std::size_t>(n);
+    }
+  }
+
+  int fd_;
+  const std::string& path_;
+  std::string block_;
+};
+
+}  // namespace
+
+void stream_report_file(const std::string& path, const std::function<void(const TextSink&)>& write,
+                        const std::vector<std::string>& reads, bool replace) {
   namespace fs = std::filesystem;
   OutputRules rules;
   rules.replace = replace;
@@ -77,26 +123,29 @@ void write_report_file(const std::string& path, const std::string& text,
     fs::create_directories(folder, ec);
   }
   const std::string temporary = temporary_path_of(path);
-  {
-    const int fd = create_new_file(temporary);
-    if (fd < 0) throw IoError(path + ": cannot write the file (" + std::strerror(errno) + ")");
-    std::size_t written = 0;
-    while (written < text.size()) {
-      const ssize_t n = ::write(fd, text.data() + written, text.size() - written);
-      if (n < 0 && errno == EINTR) continue;
-      if (n <= 0) break;
-      written += static_cast<std::size_t>(n);
-    }
-    const bool complete = written == text.size();
-    const int saved = errno;
-    if (::close(fd) != 0 || !complete) {
-      std::error_code ignored;
-      fs::remove(temporary, ignored);
-      throw IoError(path + ": writing failed (" +
-                    (complete ? std::string("cannot close the file") : std::strerror(saved)) + ")");
-    }
+  const int fd = create_new_file(temporary);
+  if (fd < 0) throw IoError(path + ": cannot write the file (" + std::strerror(errno) + ")");
+  try {
+    BlockWriter file(fd, path);
+    write([&file](std::string_view piece) { file.append(piece); });
+    file.flush();
+  } catch (...) {
+    // unlink, not std::filesystem::remove: after std::bad_alloc nothing here may allocate.
+    ::close(fd);
+    ::unlink(temporary.c_str());
+    throw;
+  }
+  if (::close(fd) != 0) {
+    ::unlink(temporary.c_str());
+    throw IoError(path + ": writing failed (cannot close the file)");
   }
   durable_rename(temporary, path, replace);
+}
+
+void write_report_file(const std::string& path, const std::string& text,
+                       const std::vector<std::string>& reads, bool replace) {
+  stream_report_file(
+      path, [&text](const TextSink& out) { out(text); }, reads, replace);
 }
 
 namespace {
@@ -156,9 +205,51 @@ nlohmann::json polygon_feature(const GeoFrame& geo, const std::vector<PlanePoint
   return feature(geo.geometry(ccw), std::move(properties));
 }
 
+// The features of a collection given to a sink one by one, each as the JSON library writes it
+// on one line, separated as it separates an array's elements: the text is that of the whole
+// document dumped at once.
+class FeatureList {
+ public:
+  explicit FeatureList(const TextSink& out) : out_(out) {}
+
+  void push_back(const nlohmann::json& feature) {
+    separate();
+    out_(json_text(feature, -1));
+  }
+
+  // A feature whose geometry's coordinates, an empty array in `feature`, are the positions
+  // `each` gives to the function it is passed, written as they come.
+  void push_back(const nlohmann::json& feature,
+                 const std::function<void(const std::function<void(LonLat)>&)>& each) {
+    separate();
+    const std::string text = json_text(feature, -1);
+    // Keys are written sorted, "geometry" first and in it "coordinates" first: the first such
+    // text is the geometry's (a quote inside a string is written \").
+    const std::size_t hole = text.find("\"coordinates\":[]");
+    if (hole == std::string::npos) throw std::logic_error("a streamed feature without coordinates");
+    const std::size_t after = hole + std::string_view("\"coordinates\":[").size();
+    out_(std::string_view(text).substr(0, after));
+    bool first = true;
+    each([&](LonLat position) {
+      if (!first) out_(",");
+      first = false;
+      out_(json_text(geojson_position(position), -1));
+    });
+    out_(std::string_view(text).substr(after));
+  }
+
+ private:
+  void separate() {
+    if (any_) out_(",");
+    any_ = true;
+  }
+
+  const TextSink& out_;
+  bool any_ = false;
+};
+
 // A group's hazard polygons and containment circles (estimate and upper bound).
-void add_containment_features(nlohmann::json& features, const GeoFrame& geo,
-                              const GroupFootprint& g) {
+void add_containment_features(FeatureList& features, const GeoFrame& geo, const GroupFootprint& g) {
   for (const auto& p : g.polygons)
     if (p.determined && p.ring.size() >= 3)
       features.push_back(polygon_feature(geo, p.ring,
@@ -185,7 +276,7 @@ void add_containment_features(nlohmann::json& features, const GeoFrame& geo,
 }
 
 // A group's features: containment, Gaussian ellipses, then its centre and mean impact points.
-void add_group_features(nlohmann::json& features, const GeoFrame& geo, const StudyRecord& r,
+void add_group_features(FeatureList& features, const GeoFrame& geo, const StudyRecord& r,
                         const GroupFootprint& g) {
   add_containment_features(features, geo, g);
   for (const auto& e : g.ellipses)
@@ -210,7 +301,7 @@ void add_group_features(nlohmann::json& features, const GeoFrame& geo, const Stu
 }
 
 // The zone of each zone rule: the planned radius about its group's centre, with its status.
-void add_rule_zone_features(nlohmann::json& features, const GeoFrame& geo, const Footprint& f) {
+void add_rule_zone_features(FeatureList& features, const GeoFrame& geo, const Footprint& f) {
   for (const auto& k : f.rules) {
     if (k.rule != "zone_radius") continue;
     for (const auto& g : f.groups)
@@ -225,17 +316,17 @@ void add_rule_zone_features(nlohmann::json& features, const GeoFrame& geo, const
   }
 }
 
-// One MultiPoint feature per body of the landed flights' impacts.
-void add_impact_features(nlohmann::json& features, const GeoFrame& geo, const StudyRecord& r,
+// One MultiPoint feature per body of the landed flights' impacts, written point by point.
+void add_impact_features(FeatureList& features, const GeoFrame& geo, const StudyRecord& r,
                          const StudyColumns& impacts) {
-  for (std::size_t b = 0; b < r.body_names.size(); ++b) {
-    nlohmann::json points = nlohmann::json::array();
-    for (std::size_t i = 0; i < impacts.rows(); ++i)
-      if (impacts.body[i] == b && impacts.status[i] == 0)
-        points.push_back(geo.point({impacts.east[i], impacts.north[i]}));
-    features.push_back(feature({{"type", "MultiPoint"}, {"coordinates", points}},
-                               {{"group", r.body_names[b]}, {"kind", "impacts"}}));
-  }
+  for (std::size_t b = 0; b < r.body_names.size(); ++b)
+    features.push_back(feature({{"type", "MultiPoint"}, {"coordinates", nlohmann::json::array()}},
+                               {{"group", r.body_names[b]}, {"kind", "impacts"}}),
+                       [&](const std::function<void(LonLat)>& position) {
+                         for (std::size_t i = 0; i < impacts.rows(); ++i)
+                           if (impacts.body[i] == b && impacts.status[i] == 0)
+                             position(geo.lonlat({impacts.east[i], impacts.north[i]}));
+                       });
 }
 
 // Appends the CSV rows of figures_csv, quoting the group and note and giving bounded figures
@@ -354,13 +445,25 @@ void figure_rows(const FigureRows& rows, const FigureDescription& d, const Footp
 
 }  // namespace
 
-std::string geojson_text(const StudyRecord& r, const StudyColumns* impacts) {
+void write_geojson(const StudyRecord& r, const StudyColumns* impacts, const TextSink& out) {
   if (!r.latitude || !r.longitude)
     throw UsageError(
         "GeoJSON needs the site's coordinates: the scenario gives no site.latitude and "
         "site.longitude (the local east/north figures are in the JSON, CSV and SVG outputs)");
   const GeoFrame geo{GeographicLib::LocalCartesian(*r.latitude, *r.longitude, r.ground)};
-  nlohmann::json features = nlohmann::json::array();
+  // The collection with no features, cut where they go: its keys are written sorted, so its
+  // first text "features":[] is its own.
+  nlohmann::json collection{{"type", "FeatureCollection"}, {"features", nlohmann::json::array()}};
+  collection["properties"] = {{"title", r.title},
+                              {"samples", r.samples},
+                              {"confidence", r.footprint.confidence},
+                              {"cautions", cautions()}};
+  const std::string shell = json_text(collection, -1);
+  const std::size_t hole = shell.find("\"features\":[]");
+  if (hole == std::string::npos) throw std::logic_error("a collection without its features");
+  const std::size_t after = hole + std::string_view("\"features\":[").size();
+  out(std::string_view(shell).substr(0, after));
+  FeatureList features(out);
   for (const auto& g : r.footprint.groups) add_group_features(features, geo, r, g);
   add_rule_zone_features(features, geo, r.footprint);
   features.push_back(feature({{"type", "Point"}, {"coordinates", geo.point(r.release)}},
@@ -368,12 +471,14 @@ std::string geojson_text(const StudyRecord& r, const StudyColumns* impacts) {
                               {"altitude_m", r.release_altitude},
                               {"track_deg", r.release_track}}));
   if (impacts) add_impact_features(features, geo, r, *impacts);
-  nlohmann::json collection{{"type", "FeatureCollection"}, {"features", features}};
-  collection["properties"] = {{"title", r.title},
-                              {"samples", r.samples},
-                              {"confidence", r.footprint.confidence},
-                              {"cautions", cautions()}};
-  return json_text(collection, -1) + "\n";
+  out(std::string_view(shell).substr(after));
+  out("\n");
+}
+
+std::string geojson_text(const StudyRecord& r, const StudyColumns* impacts) {
+  std::string text;
+  write_geojson(r, impacts, [&text](std::string_view piece) { text.append(piece); });
+  return text;
 }
 
 std::string figures_csv(const StudyRecord& r) {

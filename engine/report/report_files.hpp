@@ -2,7 +2,9 @@
 // The files of `strewn report`: GeoJSON (RFC 7946), CSV of every figure, the SVG map and the
 // self-contained HTML page. Each is built from the study's record alone, as stored in the results
 // file, so it shows exactly the figures `run` computed. docs/results.md describes each file.
+#include <functional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "pipeline/study_record.hpp"
@@ -20,13 +22,23 @@ namespace strewn {
 /// coordinates.
 std::string geojson_text(const StudyRecord& record, const StudyColumns* impacts);
 
+/// Text taken piece by piece, in order: a file being written, or a string.
+using TextSink = std::function<void(std::string_view)>;
+
+/// The text of geojson_text given to `out` as it is made, feature by feature and impact by
+/// impact, so that the impacts of a large study are never held whole in memory (neither as a JSON
+/// document nor as text). geojson_text is made by it: the bytes are the same.
+void write_geojson(const StudyRecord& record, const StudyColumns* impacts, const TextSink& out);
+
 /// Every figure as CSV, one row per figure: group, figure, level, estimate, interval, bound.
 std::string figures_csv(const StudyRecord& record);
 
 /// The map of a group's footprint as SVG (the body's name, or "all"): impact density shading,
 /// hazard polygons, containment circles labelled with their level, dispersion ellipses, each
-/// rule's zone labelled with its radius and status, the release point and track, latitude and
-/// longitude ticks (metre ticks without site coordinates), north arrow, scale bar and legend.
+/// rule's zone labelled with its radius and status, the release point and track, the graticule
+/// of true meridians and parallels (report/graticule.hpp) with their ticks and labels, each label
+/// saying in data-point which point (px) it marks (metre ticks without site coordinates), north
+/// arrow, scale bar and legend.
 /// The view holds every impact cell and every figure.
 std::string map_svg(const StudyRecord& record, const std::string& group);
 /// The map of all bodies together (of the one body, for a study of one).
@@ -42,6 +54,13 @@ std::string html_report(const StudyRecord& record);
 /// too) is refused, never replaced.
 void write_report_file(const std::string& path, const std::string& text,
                        const std::vector<std::string>& reads = {}, bool replace = true);
+
+/// Writes a file as write_report_file does, its text given piece by piece by `write` (as
+/// write_geojson gives it) and written out in blocks, never held whole. Whatever `write` or the
+/// writing throws (IoError, std::bad_alloc, a UsageError of `write`) is thrown on once the
+/// temporary file is removed: nothing is left under the output's name or its temporary name.
+void stream_report_file(const std::string& path, const std::function<void(const TextSink&)>& write,
+                        const std::vector<std::string>& reads = {}, bool replace = true);
 
 /// Text escaped for XML and HTML.
 std::string escape_markup(const std::string& text);

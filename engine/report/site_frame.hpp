@@ -25,7 +25,9 @@ class SiteFrame {
   /// The point's latitude and longitude (at the ground height); empty without coordinates or for
   /// a point that is not finite.
   [[nodiscard]] std::optional<GeoPoint> locate(PlanePoint point) const;
-  /// The local point (east, north, m) of a latitude and longitude (degrees).
+  /// The local point (east, north, m) that locate() takes to a latitude and longitude
+  /// (degrees): where the ellipsoid's normal there meets the site's plane. Not finite without
+  /// coordinates, or for a place on the far side of the Earth, which no point of the plane shows.
   [[nodiscard]] PlanePoint local(GeoPoint point) const;
 
  private:

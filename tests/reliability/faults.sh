@@ -1,7 +1,9 @@
 #!/usr/bin/env bash
 # Faults while writing: a file-size limit (the disk is full, as the process sees it: writes fail
 # with EFBIG), and the output folder removed while a study runs. Each ends with status 3 and a
-# message naming the path, and leaves no file under the final name.
+# message naming the path, and leaves no file under the final name. And an address-space limit
+# (ulimit -v): a study too large for it is refused, and the GeoJSON of many impacts is written
+# within it.
 # Usage: faults.sh STREWN_BINARY SOURCE_DIR
 set -uo pipefail
 source "$(dirname "$0")/../lib.sh" "$1" "$2"
@@ -66,6 +68,30 @@ if [[ -z "${ASAN_OPTIONS:-}" ]]; then
     fail "the refusal does not name the limit: $(cat "$work/limited.err")"
   [[ -e "$work/limited.h5" ]] && fail "a refused study wrote its results file"
   echo "ok: a study too large for ulimit -v is refused before any flight, naming the limit"
+
+  # The GeoJSON of every impact under an address-space limit. Built whole as one JSON document,
+  # 400 000 impacts needed about 230 MB of address space here (2026-12-05), and the allocation that
+  # failed was followed by one in the JSON library's destructor (nlohmann json_value::destroy
+  # allocates its stack), which ended the process with std::terminate (status 134). Written
+  # feature by feature, the report needs about 112 MB: under 160 MB it succeeds, with the same
+  # bytes as without the limit. (The site: an invented place, tests/places/invented-places.tsv.)
+  sed 's/^ground = 540.0$/ground = 540.0\nlatitude = 41.30\nlongitude = -33.70/' "$scenario" \
+    >"$work/placed.toml"
+  "$strewn" run "$work/placed.toml" -n 400000 -o "$work/impacts.h5" --quiet >/dev/null ||
+    fail "the study for the GeoJSON under ulimit -v did not run"
+  "$strewn" report "$work/impacts.h5" --geojson "$work/free.geojson" --impacts >/dev/null ||
+    fail "the GeoJSON of 400 000 impacts without a limit failed"
+  before=$failures status=0
+  (ulimit -v 160000 && "$strewn" report "$work/impacts.h5" --geojson "$work/limited.geojson" \
+    --impacts) >/dev/null 2>"$work/limited.err" || status=$?
+  [[ $status -eq 0 ]] ||
+    fail "the GeoJSON of 400 000 impacts under ulimit -v: status $status ($(head -c 300 "$work/limited.err"))"
+  cmp -s "$work/free.geojson" "$work/limited.geojson" ||
+    fail "the GeoJSON under ulimit -v differs from the one without"
+  compgen -G "$work/limited.geojson.partial*" >/dev/null &&
+    fail "the GeoJSON under ulimit -v left its temporary file"
+  [[ $failures == "$before" ]] &&
+    echo "ok: the GeoJSON of 400 000 impacts is written under ulimit -v 160000, byte for byte"
 fi
 
 finish "fault tests"

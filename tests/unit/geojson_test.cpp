@@ -11,6 +11,10 @@
 #include <GeographicLib/PolygonArea.hpp>
 #include <algorithm>
 #include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <iterator>
+#include <new>
 #include <nlohmann/json.hpp>
 #include <numbers>
 #include <optional>
@@ -18,8 +22,11 @@
 #include <string>
 #include <vector>
 
+#include "core/errors.hpp"
 #include "report/geojson_rings.hpp"
+#include "report/json_text.hpp"
 #include "report/report_files.hpp"
+#include "support.hpp"
 
 namespace strewn {
 namespace {
@@ -330,6 +337,72 @@ TEST(GeoJson, RingAboutTheSouthPoleIsAPolarCapToMinusNinety) {
   reference.Compute(false, true, perimeter, area);
   EXPECT_GT(area, 0.0);
   EXPECT_NEAR(checked[0].area, area, 1e-9 * area + 1.0);
+}
+
+// The GeoJSON is written feature by feature and impact by impact (so that the impacts of a large
+// study never stand whole in memory), and must be the bytes the JSON library writes for the whole
+// document at once, as it was written before: parsed and dumped again by nlohmann::json, it is
+// unchanged. Names that hold the very text the writer cuts at ("coordinates":[] and
+// "features":[]) and bytes that are not UTF-8 (written as U+FFFD) are among them, one body has no
+// landed impact, and the impacts take several of the writer's 64 KiB blocks.
+TEST(GeoJson, WrittenPieceByPieceAsTheWholeDocumentIsWritten) {
+  StudyRecord record;
+  record.title = "\"features\":[] and \xff";  // a byte that is not UTF-8
+  record.latitude = 41.3;                     // invented, open North Atlantic
+  record.longitude = -33.7;
+  record.release = {100.0, -50.0};
+  record.samples = 20000;
+  record.body_names = {"\"coordinates\":[]", "crate", "none landed"};
+  GroupFootprint all = group("all", {10.0, 20.0});
+  all.containment.push_back(containment(0.9, 800.0, 900.0));
+  record.footprint.groups = {all};
+  StudyColumns impacts;
+  impacts.resize(20000, 0);
+  for (std::size_t i = 0; i < impacts.rows(); ++i) {
+    impacts.body[i] = static_cast<std::uint16_t>(i % 3);
+    impacts.status[i] = i % 3 == 2 || i % 7 == 0 ? 4 : 0;  // body 2 never lands
+    impacts.east[i] = 0.37 * static_cast<double>(i) - 1000.0;
+    impacts.north[i] = 1e-3 * static_cast<double>(i * i % 9973);
+  }
+  const std::string text = geojson_text(record, &impacts);
+  ASSERT_GT(text.size(), std::size_t{3} << 16);
+  const auto whole = nlohmann::json::parse(text);
+  EXPECT_EQ(json_text(whole, -1) + "\n", text);  // nlohmann::json's own dump of the document
+  std::size_t points = 0;
+  for (const auto& f : whole["features"])
+    if (f["properties"].value("kind", "") == "impacts") {
+      EXPECT_EQ(f["geometry"]["type"], "MultiPoint");
+      points += f["geometry"]["coordinates"].size();
+    }
+  std::size_t landed = 0;
+  for (std::size_t i = 0; i < impacts.rows(); ++i) landed += impacts.status[i] == 0 ? 1 : 0;
+  EXPECT_EQ(points, landed);
+  // Written to a file, in blocks: the same bytes.
+  const test::ScratchFolder dir("geojson-test");
+  const auto path = dir / "impacts.geojson";
+  stream_report_file(path.string(),
+                     [&](const TextSink& out) { write_geojson(record, &impacts, out); });
+  std::ifstream in(path, std::ios::binary);
+  EXPECT_EQ(std::string(std::istreambuf_iterator<char>(in), {}), text);
+}
+
+// A file written piece by piece that fails half-way (memory runs out, or the writer refuses)
+// leaves nothing under its name nor its temporary name, and the failure goes on to the caller
+// (app/commands.cpp turns std::bad_alloc into status 3, "ran out of memory").
+TEST(GeoJson, AFileThatFailsWhileWrittenLeavesNothing) {
+  const test::ScratchFolder dir("geojson-test");
+  const auto path = (dir / "out.geojson").string();
+  const auto half_then = [](auto failure) {
+    return [failure](const TextSink& out) {
+      const std::string block(50000, 'x');
+      for (int k = 0; k < 4; ++k) out(block);  // past the first 64 KiB block: on disk
+      throw failure;
+    };
+  };
+  EXPECT_THROW(stream_report_file(path, half_then(std::bad_alloc())), std::bad_alloc);
+  EXPECT_TRUE(std::filesystem::is_empty(dir.path()));
+  EXPECT_THROW(stream_report_file(path, half_then(UsageError("refused"))), UsageError);
+  EXPECT_TRUE(std::filesystem::is_empty(dir.path()));
 }
 
 }  // namespace

@@ -4,6 +4,7 @@
 #include <gtest/gtest.h>
 
 #include <H5Cpp.h>
+#include <pthread.h>
 #include <sys/resource.h>
 
 #include <filesystem>
@@ -126,6 +127,40 @@ TEST(Resources, AnAllocationThatFailsIsStatusThree) {
   EXPECT_NE(result.err.find("ran out of memory"), std::string::npos) << result.err;
   EXPECT_NE(result.err.find("ulimit -v"), std::string::npos) << result.err;
   EXPECT_TRUE(result.out.empty());
+#endif
+}
+
+// Found by a tester: `report` under an address-space limit too tight for a thread's stack (the
+// thread that times the reading of the results file) ended with status 3 but said "Resource
+// temporarily unavailable", pthread_create's EAGAIN, instead of that memory ran out.
+TEST(Resources, AThreadWithoutRoomForItsStackIsMemoryRunningOut) {
+#ifdef STREWN_UNDER_ASAN
+  GTEST_SKIP() << "no address-space limit under AddressSanitizer";
+#else
+  // The stack a new thread maps: glibc's default, from ulimit -s (pthread_create(3)).
+  pthread_attr_t defaults;
+  ASSERT_EQ(pthread_getattr_default_np(&defaults), 0);
+  std::size_t stack = 0;
+  ASSERT_EQ(pthread_attr_getstacksize(&defaults, &stack), 0);
+  pthread_attr_destroy(&defaults);
+  if (stack < (std::size_t{4} << 20)) GTEST_SKIP() << "thread stacks of " << stack << " bytes";
+  const test::ScratchFolder dir("resources-test");
+  const auto file = (dir / "study.h5").string();
+  ASSERT_EQ(run({"run", STREWN_SOURCE_DIR "/tests/data/canopy-by-height.toml", "-n", "200", "-o",
+                 file, "--quiet"})
+                .status,
+            0);
+  // Room for the command's own allocations (a few hundred kilobytes), not for a thread's stack.
+  rlimit saved{};
+  ASSERT_EQ(getrlimit(RLIMIT_AS, &saved), 0);
+  rlimit tighter = saved;
+  tighter.rlim_cur = static_cast<rlim_t>(mapped_bytes() + static_cast<double>(stack) / 2.0);
+  ASSERT_EQ(setrlimit(RLIMIT_AS, &tighter), 0);
+  const auto result = run({"report", file, "--json"});
+  ASSERT_EQ(setrlimit(RLIMIT_AS, &saved), 0);
+  EXPECT_EQ(result.status, 3) << result.err;
+  EXPECT_NE(result.err.find("ran out of memory"), std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("ulimit -v"), std::string::npos) << result.err;
 #endif
 }
 
