@@ -90,33 +90,35 @@ ended_by "rank 1 killed (SIGKILL)" killed KILL rank1 "rank 0 ended by SIGTERM"
 ended_by "rank 0 sent SIGTERM" termed TERM rank0 "rank 0 ended by SIGTERM from process"
 ended_by "the launcher interrupted (SIGINT)" interrupted INT launcher "ended by SIG"
 
+# Launches `mpirun ARGS...` (after the first four arguments) for at most 120 s, standard error to
+# $work/NAME.err: it must end with status STATUS, its messages matching TEXT, and leave no file of
+# the output NAME.h5.
+job_ends() {
+  local what="$1" name="$2" expected_status="$3" expected_text="$4" status=0
+  shift 4
+  timeout 120 "${mpi[@]}" "$@" >/dev/null 2>"$work/$name.err" || status=$?
+  [[ $status == 124 ]] && fail "$what: the job hung"
+  [[ $status == "$expected_status" ]] || fail "$what: status $status, not $expected_status"
+  grep -q -- "$expected_text" "$work/$name.err" ||
+    fail "$what: no cause named: $(head -5 "$work/$name.err")"
+  no_litter "$what" "$name.h5"
+  echo "ok: $what ends every rank with status $status"
+}
+
 # 4. Rank 0 fails alone while rank 1 flies (its file-size limit stops the results file): it
 #    used to wait for ever in MPI_Finalize while rank 1 waited to send its rows.
-status=0
-timeout 120 "${mpi[@]}" -np 1 bash -c 'ulimit -f 64; exec "$@"' - "$strewn" run "$scenario" \
-  -n 400000 -j 1 -o "$work/full.h5" --quiet : -np 1 "$strewn" run "$scenario" -n 400000 -j 1 \
-  -o "$work/full.h5" --quiet >/dev/null 2>"$work/full.err" || status=$?
-[[ $status == 124 ]] && fail "rank 0 failing alone: the job hung"
-[[ $status == 3 ]] || fail "rank 0 failing alone: status $status, not 3"
-grep -q "full.h5.*File too large\|full.h5.*cannot write" "$work/full.err" ||
-  fail "rank 0 failing alone: no cause named: $(head -5 "$work/full.err")"
+job_ends "rank 0 failing alone" full 3 "full.h5.*\(File too large\|cannot write\)" \
+  -np 1 bash -c 'ulimit -f 64; exec "$@"' - "$strewn" run "$scenario" -n 400000 -j 1 \
+  -o "$work/full.h5" --quiet : -np 1 "$strewn" run "$scenario" -n 400000 -j 1 \
+  -o "$work/full.h5" --quiet
 grep -q "rank 0 failed alone; ending every rank of the job" "$work/full.err" ||
   fail "rank 0 failing alone: the ending is not said"
-no_litter "rank 0 failing alone" full.h5
-echo "ok: rank 0 failing alone ends every rank with status 3"
 
 # 5. A command line refused on rank 1 only (an option it does not know): every rank ends with
 #    status 2 and rank 1's refusal, before any flight (rank 0 used to wait for it at start-up).
-status=0
-timeout 120 "${mpi[@]}" -np 1 "$strewn" run "$scenario" -n 500 -o "$work/parsed.h5" --quiet : \
-  -np 1 "$strewn" run "$scenario" -n 500 -o "$work/parsed.h5" --quiet --no-such-option \
-  >/dev/null 2>"$work/parsed.err" || status=$?
-[[ $status == 124 ]] && fail "a line refused on rank 1: the job hung"
-[[ $status == 2 ]] || fail "a line refused on rank 1: status $status, not 2"
-grep -q "error (rank 1): .*no-such-option" "$work/parsed.err" ||
-  fail "a line refused on rank 1: no cause named: $(head -3 "$work/parsed.err")"
-no_litter "a line refused on rank 1" parsed.h5
-echo "ok: a command line refused on rank 1 ends every rank with status 2"
+job_ends "a command line refused on rank 1" parsed 2 "error (rank 1): .*no-such-option" \
+  -np 1 "$strewn" run "$scenario" -n 500 -o "$work/parsed.h5" --quiet : \
+  -np 1 "$strewn" run "$scenario" -n 500 -o "$work/parsed.h5" --quiet --no-such-option
 
 # 6. A sweep whose ranks read different files (a base scenario changed on rank 1's side) is
 #    refused before any case: its cases would mix two studies in one results file.
@@ -127,15 +129,9 @@ for side in a b; do
 done
 sed -i 's/^temperature_offset = 12.0$/temperature_offset = 13.0/' "$work/b/canopy-by-height.toml"
 cmp -s "$work/a/canopy-by-height.toml" "$work/b/canopy-by-height.toml" && fail "the two bases are the same"
-status=0
-timeout 120 "${mpi[@]}" -np 1 "$strewn" sweep "$work/a/sweeps/box.toml" -n 50 -o "$work/mixed.h5" --quiet : \
-  -np 1 "$strewn" sweep "$work/b/sweeps/box.toml" -n 50 -o "$work/mixed.h5" --quiet \
-  >/dev/null 2>"$work/mixed.err" || status=$?
-[[ $status == 124 ]] && fail "a sweep on other files: the job hung"
-[[ $status == 2 ]] || fail "a sweep on other files: status $status, not 2"
-grep -q "rank 1 read or was given other inputs than rank 0" "$work/mixed.err" ||
-  fail "a sweep on other files: no cause named: $(head -3 "$work/mixed.err")"
-no_litter "a sweep on other files" mixed.h5
-echo "ok: a sweep whose ranks read different files is refused"
+job_ends "a sweep whose ranks read different files" mixed 2 \
+  "rank 1 read or was given other inputs than rank 0" \
+  -np 1 "$strewn" sweep "$work/a/sweeps/box.toml" -n 50 -o "$work/mixed.h5" --quiet : \
+  -np 1 "$strewn" sweep "$work/b/sweeps/box.toml" -n 50 -o "$work/mixed.h5" --quiet
 
 finish "rank ends"
