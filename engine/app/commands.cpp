@@ -751,6 +751,20 @@ struct Commands {
         check_command(add_check_command(app, check)),
         atmosphere_command(add_atmosphere_command(app, atmosphere)) {}
 
+  // What this rank was asked to do, in words: the command and what changes its course (a
+  // replayed sample, a resume, a fresh sweep). The ranks of a job must all be asked the same.
+  std::string what_runs() const {
+    if (*run_command)
+      return "run" + (run.sample ? " --sample " + std::to_string(*run.sample) : "") +
+             (run.resume ? " --resume" : "");
+    if (*sweep_command) return sweep.options.fresh ? "sweep --fresh" : "sweep";
+    if (*trace_command) return "trace";
+    if (*report_command) return "report";
+    if (*check_command) return "check";
+    if (*atmosphere_command) return "atmosphere";
+    return "";
+  }
+
   // Runs the command given; `err` is rank 0's, `rank_err` every rank's own.
   int run_chosen(std::ostream& out, std::ostream& err, std::ostream& rank_err, const Job& job) {
     if (*trace_command) return run_trace(trace, out);
@@ -766,7 +780,11 @@ struct Commands {
         std::vector<std::string> files{sweep.file};
         if (!plan.files_read.empty())
           files.insert(files.end(), plan.files_read.begin(), plan.files_read.end() - 1);
-        return inputs_sha256(plan.text, files) + " " + std::to_string(plan.samples);
+        // And where the cases go: each rank writes its cases beside the results file.
+        const std::string output =
+            sweep.options.output.empty() ? plan.output : sweep.options.output;
+        return inputs_sha256(plan.text, files) + " " + std::to_string(plan.samples) + " " +
+               std::filesystem::absolute(output).lexically_normal().string();
       });
       std::optional<tbb::global_control> limit;
       if (sweep.options.threads > 0)
@@ -841,8 +859,15 @@ int describe_failure(const std::exception_ptr& failure, std::ostream& err, const
     return kExitFailure;
   } catch (const FailureNoRankWaitsFor& f) {
     return describe_failure(f.cause, err, job, reserve);
+  } catch (...) {
+    err << "error: an unexpected failure (not a standard exception)\n";
+    return kExitFailure;
   }
-  return kExitFailure;
+}
+
+// A number that tells texts apart (the first 64 bits of their SHA-256).
+std::uint64_t digest_of(const std::string& text) {
+  return std::stoull(sha256_hex(text).substr(0, 16), nullptr, 16);
 }
 
 // `text` with every line that starts "error:" made to name the rank: "error (rank 2):".
@@ -903,6 +928,15 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
       parsed = 2;
     }
   }
+  // The same command on every rank: a rank given another (a replay, a check) would end while
+  // the others wait for it. Help and --version count as a command of their own.
+  const std::string asked = parsed == 1 ? "--help or --version" : commands.what_runs();
+  const std::uint64_t leaders_ask = job.broadcast(digest_of(asked));
+  if (parsed == 0 && digest_of(asked) != leaders_ask) {
+    refusal = "error: given another command than rank 0 (" + asked +
+              "); every rank of a job runs the same command\n";
+    parsed = 2;
+  }
   const int agreed = job.highest(parsed);
   const std::uint64_t leaders = job.broadcast(static_cast<std::uint64_t>(parsed));
   if (parsed == 2) {
@@ -912,7 +946,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
     else if (leaders != 2)
       err_stream << naming_rank(refusal, job.rank());
   }
-  if (agreed != 0) return parsed == 1 || agreed == 1 ? kExitDone : kExitInvalid;
+  if (agreed != 0) return agreed == 1 ? kExitDone : kExitInvalid;
 
   try {
     return commands.run_chosen(out, err, err_stream, job);

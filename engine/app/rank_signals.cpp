@@ -57,7 +57,7 @@ extern "C" void end_rank(int signal_number, siginfo_t* info, void*) {
     line.add(" from process ");
     line.add(static_cast<long>(info->si_pid));
   }
-  line.add("; its partial files removed, no results file written\n");
+  line.add("; the files it was writing removed\n");
   [[maybe_unused]] const ssize_t ignored = ::write(STDERR_FILENO, line.text, line.size);
   ::_exit(kExitInterrupted);
 }

@@ -125,6 +125,8 @@ void stream_report_file(const std::string& path, const std::function<void(const 
   const std::string temporary = temporary_path_of(path);
   const int fd = create_new_file(temporary);
   if (fd < 0) throw IoError(path + ": cannot write the file (" + std::strerror(errno) + ")");
+  // A rank ended by a signal while it writes (a sweep's summary) leaves nothing behind.
+  RemovedOnSignal removed_on_signal(temporary);
   try {
     BlockWriter file(fd, path);
     write([&file](std::string_view piece) { file.append(piece); });
@@ -140,6 +142,7 @@ void stream_report_file(const std::string& path, const std::function<void(const 
     throw IoError(path + ": writing failed (cannot close the file)");
   }
   durable_rename(temporary, path, replace);
+  removed_on_signal.release();
 }
 
 void write_report_file(const std::string& path, const std::string& text,

@@ -16,6 +16,7 @@
 #include <fstream>
 #include <iterator>
 #include <string_view>
+#include <thread>
 
 #include "core/errors.hpp"
 
@@ -95,39 +96,59 @@ void remove_stale_partials(const std::string& folder, const std::string& output_
 
 namespace {
 
-// The slots of RemovedOnSignal: a slot is claimed (in_use), its name written, then published
-// (ready); the handler reads only published names. Lock-free atomics are safe in a handler.
+// The slots of RemovedOnSignal. Each slot has one state, changed only by compare-and-swap, so
+// that a name is never rewritten while a handler reads it and never unlinked after its holder
+// let it go (a lock file of that name may by then be another run's):
+//   free -> writing (claimed by a holder) -> held (published) -> removing (a handler unlinks it)
+//   -> removed; the holder returns held or removed to free, and waits while a handler removes.
+// Lock-free atomics are safe in a handler (signal-safety(7)).
+enum SlotState : int { kFree, kWriting, kHeld, kRemoving, kRemoved };
 struct HeldName {
-  std::atomic<bool> in_use{false}, ready{false};
+  std::atomic<int> state{kFree};
   char path[4096] = "";
 };
-std::array<HeldName, 16> held_names;
-static_assert(std::atomic<bool>::is_always_lock_free);
+std::array<HeldName, kSlotsForSignals> held_names;
+static_assert(std::atomic<int>::is_always_lock_free);
 
 }  // namespace
 
 RemovedOnSignal::RemovedOnSignal(const std::string& path) {
   if (path.empty() || path.size() >= sizeof HeldName::path) return;
   for (std::size_t k = 0; k < held_names.size(); ++k) {
-    bool free = false;
-    if (!held_names[k].in_use.compare_exchange_strong(free, true)) continue;
+    int free = kFree;
+    if (!held_names[k].state.compare_exchange_strong(free, kWriting)) continue;
     std::memcpy(held_names[k].path, path.data(), path.size());
     held_names[k].path[path.size()] = '\0';
-    held_names[k].ready = true;
+    held_names[k].state.store(kHeld, std::memory_order_release);
     slot_ = static_cast<int>(k);
     return;
   }
 }
 
 RemovedOnSignal::~RemovedOnSignal() {
+  release();
+}
+
+void RemovedOnSignal::release() noexcept {
   if (slot_ < 0) return;
-  held_names[static_cast<std::size_t>(slot_)].ready = false;
-  held_names[static_cast<std::size_t>(slot_)].in_use = false;
+  std::atomic<int>& state = held_names[static_cast<std::size_t>(slot_)].state;
+  for (;;) {
+    int held = kHeld, removed = kRemoved;
+    if (state.compare_exchange_strong(held, kFree) || state.compare_exchange_strong(removed, kFree))
+      break;
+    // A handler on another thread is removing the file and will end the process.
+    std::this_thread::yield();
+  }
+  slot_ = -1;
 }
 
 void remove_files_held_for_signals() noexcept {
-  for (HeldName& name : held_names)
-    if (name.ready) ::unlink(name.path);
+  for (HeldName& name : held_names) {
+    int held = kHeld;
+    if (!name.state.compare_exchange_strong(held, kRemoving, std::memory_order_acquire)) continue;
+    ::unlink(name.path);
+    name.state.store(kRemoved, std::memory_order_release);
+  }
 }
 
 int create_new_file(const std::string& path) {

@@ -2,6 +2,7 @@
 // Output files written safely: a path strewn must not write is refused before anything runs, a
 // file is made new (never through a link) under a temporary name beside the final one and renamed
 // into place when whole, and the temporary files of killed runs are cleared away.
+#include <cstddef>
 #include <memory>
 #include <string>
 #include <vector>
@@ -89,12 +90,18 @@ class RemovedOnSignal {
   ~RemovedOnSignal();
   RemovedOnSignal(const RemovedOnSignal&) = delete;
   RemovedOnSignal& operator=(const RemovedOnSignal&) = delete;
+  /// Lets the name go before the object is dropped (the file was renamed into its final name).
+  /// Waits while a handler on another thread removes it (that handler ends the process).
+  void release() noexcept;
 
  private:
   int slot_ = -1;
 };
 
-/// Unlinks every file held by a RemovedOnSignal now. Async-signal-safe: for a signal handler that
+/// How many names can be held for signals at once.
+inline constexpr std::size_t kSlotsForSignals = 16;
+
+/// Unlinks every file held by a RemovedOnSignal now (each once). Async-signal-safe: for a signal handler that
 /// ends the process.
 void remove_files_held_for_signals() noexcept;
 

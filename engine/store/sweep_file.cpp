@@ -192,7 +192,7 @@ SweepSummary write_sweep_file(const std::string& path, const std::string& sweep_
   H5::Exception::dontPrint();
   const fs::path final_path(path);
   const std::string temporary = temporary_path_of(path);
-  const RemovedOnSignal removed_on_signal(temporary);
+  RemovedOnSignal removed_on_signal(temporary);
   std::string csv, text;
   try {
     std::error_code ignored;
@@ -224,6 +224,7 @@ SweepSummary write_sweep_file(const std::string& path, const std::string& sweep_
     throw;
   }
   durable_rename(temporary, final_path.string());
+  removed_on_signal.release();
   return {csv, text};
 }
 

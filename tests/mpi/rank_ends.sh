@@ -57,6 +57,7 @@ wait_at_most() {
     sleep 0.05
   done
   if kill -0 "$pid" 2>/dev/null; then
+    pkill -9 -P "$pid" 2>/dev/null || true  # the ranks first: they would outlive the launcher
     kill -9 "$pid" 2>/dev/null || true
     wait "$pid" 2>/dev/null || true
     ended_status=124
@@ -70,12 +71,21 @@ ended_by() {  # ended_by WHAT NAME SIGNAL TARGET(rank0|rank1|launcher) EXPECTED_
   local what="$1" name="$2" signal="$3" target="$4" expected="$5"
   "${mpi[@]}" -np 2 "$strewn" "${long[@]}" -o "$work/$name.h5" >/dev/null 2>"$work/$name.err" &
   local launcher=$! victim
-  wait_for_flights "$name.h5" || fail "$what: the study did not start"
+  if ! wait_for_flights "$name.h5"; then
+    wait_at_most "$launcher" 0
+    fail "$what: the study did not start"
+    return
+  fi
   case "$target" in
-    rank0) victim=$(rank_pid "$launcher" 0) ;;
-    rank1) victim=$(rank_pid "$launcher" 1) ;;
+    rank0) victim=$(rank_pid "$launcher" 0) || victim="" ;;
+    rank1) victim=$(rank_pid "$launcher" 1) || victim="" ;;
     launcher) victim=$launcher ;;
   esac
+  if [[ -z $victim ]]; then
+    wait_at_most "$launcher" 0
+    fail "$what: rank not found among the launcher's children"
+    return
+  fi
   kill "-$signal" "$victim"
   wait_at_most "$launcher" 30
   local status=$ended_status
@@ -88,7 +98,7 @@ ended_by() {  # ended_by WHAT NAME SIGNAL TARGET(rank0|rank1|launcher) EXPECTED_
 }
 ended_by "rank 1 killed (SIGKILL)" killed KILL rank1 "rank 0 ended by SIGTERM"
 ended_by "rank 0 sent SIGTERM" termed TERM rank0 "rank 0 ended by SIGTERM from process"
-ended_by "the launcher interrupted (SIGINT)" interrupted INT launcher "ended by SIG"
+ended_by "the launcher interrupted (SIGINT)" interrupted INT launcher "rank [01] ended by SIG"
 
 # Launches `mpirun ARGS...` (after the first four arguments) for at most 120 s, standard error to
 # $work/NAME.err: it must end with status STATUS, its messages matching TEXT, and leave no file of
@@ -133,5 +143,16 @@ job_ends "a sweep whose ranks read different files" mixed 2 \
   "rank 1 read or was given other inputs than rank 0" \
   -np 1 "$strewn" sweep "$work/a/sweeps/box.toml" -n 50 -o "$work/mixed.h5" --quiet : \
   -np 1 "$strewn" sweep "$work/b/sweeps/box.toml" -n 50 -o "$work/mixed.h5" --quiet
+
+# 7. Ranks given different commands: a replay of one sample or a check on one rank while the
+#    other runs the study (the first ended at once while the other waited for its rows).
+job_ends "a replay on rank 1 while rank 0 runs the study" replay 2 \
+  "error (rank 1): given another command than rank 0 (run --sample 3)" \
+  -np 1 "$strewn" run "$scenario" -n 500 -o "$work/replay.h5" --quiet : \
+  -np 1 "$strewn" run "$scenario" -n 500 -o "$work/replay.h5" --quiet --sample 3
+job_ends "a check on rank 0 while rank 1 runs the study" checked 2 \
+  "error (rank 1): given another command than rank 0 (run)" \
+  -np 1 "$strewn" check "$scenario" : \
+  -np 1 "$strewn" run "$scenario" -n 500 -o "$work/checked.h5" --quiet
 
 finish "rank ends"

@@ -179,6 +179,17 @@ TEST(OutputRules, FilesHeldForSignalsAreRemovedOnlyWhileHeld) {
   EXPECT_FALSE(fs::exists(held));
   EXPECT_TRUE(fs::exists(dropped));
   EXPECT_TRUE(fs::exists(never));
+  // Removed once: a file made again under a removed name (a lock file another run now holds) is
+  // left alone, and so is a name let go by release() (a temporary renamed into its final name).
+  std::ofstream(held) << "another run's";
+  RemovedOnSignal renamed(never);
+  renamed.release();
+  remove_files_held_for_signals();
+  EXPECT_TRUE(fs::exists(held));
+  EXPECT_TRUE(fs::exists(never));
+  // A name longer than a slot takes none (a path of 5000 characters: beyond PATH_MAX too); it
+  // is held below while every slot is taken.
+  const RemovedOnSignal too_long((dir / std::string(5000, 'x')).string());
   // Every slot taken: a name beyond them is not held (the next run clears such leftovers), and
   // the slots are free again once dropped.
   std::vector<fs::path> names;
@@ -189,7 +200,7 @@ TEST(OutputRules, FilesHeldForSignalsAreRemovedOnlyWhileHeld) {
   remove_files_held_for_signals();
   int removed = 0;
   for (const auto& name : names) removed += fs::exists(name) ? 0 : 1;
-  EXPECT_EQ(removed, 15);  // 16 slots, one held by `keep`
+  EXPECT_EQ(removed, static_cast<int>(kSlotsForSignals) - 1);  // one slot held by `keep`
   many.clear();
   std::ofstream(dropped) << "x";
   const RemovedOnSignal again(dropped);
