@@ -101,8 +101,8 @@ class RemovedOnSignal {
 /// How many names can be held for signals at once.
 inline constexpr std::size_t kSlotsForSignals = 16;
 
-/// Unlinks every file held by a RemovedOnSignal now (each once). Async-signal-safe: for a signal handler that
-/// ends the process.
+/// Unlinks every file held by a RemovedOnSignal now (each once). Async-signal-safe: for a signal
+/// handler that ends the process.
 void remove_files_held_for_signals() noexcept;
 
 /// One writer for an output: held while a study writes `<path>` (and its checkpoint), so that a
