@@ -246,7 +246,7 @@ void ResultsWriter::finish(const StudyRecord& record) {
       throw;
     }
     durable_rename(temporary_, path_);  // on disk before the checkpoint is removed
-    removed_on_signal_->release();  // the name is the results file's now
+    removed_on_signal_->release();      // the name is the results file's now
   });
 }
 
