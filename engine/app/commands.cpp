@@ -767,7 +767,6 @@ struct Commands {
 
   // Runs the command given; `err` is rank 0's, `rank_err` every rank's own.
   int run_chosen(std::ostream& out, std::ostream& err, std::ostream& rank_err, const Job& job) {
-    if (*trace_command) return run_trace(trace, out);
     if (*run_command) return run_study_command(run, out, err, job);
     if (*sweep_command) {
       // Every rank reads the sweep, and all agree on it before any case runs: a rank that read
@@ -793,6 +792,7 @@ struct Commands {
       return run_sweep_command(job, plan, sweep.options, sweep.quiet, out, err, rank_err);
     }
     if (!job.leader()) return kExitDone;  // the other commands run on rank 0 only
+    if (*trace_command) return run_trace(trace, out);
     if (*report_command) return run_report(report, out);
     if (*check_command) return run_check(check, out);
     if (*atmosphere_command) {

@@ -26,11 +26,15 @@ int main(int argc, char** argv) {
   // A file-size limit (ulimit -f) must fail a write, not kill the process: the error is reported
   // and nothing is left under the final name.
   std::signal(SIGXFSZ, SIG_IGN);
+  // Likewise a reader that goes away (`strewn run ... --json | head`): the write fails, the run
+  // ends with status 3 and its files in order, instead of being killed with its lock left.
+  std::signal(SIGPIPE, SIG_IGN);
   int status = 0;
+  // A rank of several that is signalled ends at once, without litter (app/rank_signals.hpp); the
+  // handlers outlive the job, whose end (MPI_Finalize) waits for the other ranks.
+  std::optional<strewn::EndRankOnSignals> end_on_signals;
   {
     const strewn::Job job(argc, argv);  // MPI, when built with it
-    // A rank of several that is signalled ends at once, without litter (app/rank_signals.hpp).
-    std::optional<strewn::EndRankOnSignals> end_on_signals;
     if (job.size() > 1) end_on_signals.emplace(job.rank());
     // Everything written to the terminal is made inert (app/printable_output.hpp).
     strewn::PrintableOutput out_text(std::cout.rdbuf()), err_text(std::cerr.rdbuf());

@@ -25,6 +25,12 @@ std::string_view signal_name(int signal_number) {
       return "SIGTERM";
     case SIGHUP:
       return "SIGHUP";
+    case SIGUSR1:
+      return "SIGUSR1";
+    case SIGUSR2:
+      return "SIGUSR2";
+    case SIGALRM:
+      return "SIGALRM";
     default:
       return "a signal";
   }

@@ -499,7 +499,7 @@ constexpr const char* kCasesMark = "strewn-sweep-cases";
 // leftovers of a stopped run cleared; returns the cases still to run, in order.
 std::vector<std::size_t> pending_cases(const SweepPlan& plan, const SweepOptions& options,
                                        const std::string& output, const std::string& folder,
-                                       const SweepEvents& events) {
+                                       const SweepEvents& events, std::optional<OutputLock>& lock) {
   const bool named_in_file = options.output.empty() && plan.output_line > 0;
   const std::string origin =
       named_in_file ? plan.path + ":" + std::to_string(plan.output_line) + ": output: " : "";
@@ -517,6 +517,9 @@ std::vector<std::size_t> pending_cases(const SweepPlan& plan, const SweepOptions
   refuse_unsafe_output(output, origin, plan.files_read, rules);
   refuse_unsafe_output(summary_csv_of(output), "", plan.files_read, rules);
   prepare_output(output, origin, true, plan.files_read, rules);
+  // One sweep per output: a second one on it meanwhile is refused before it touches the cases
+  // (it would otherwise empty or remove the folder the first one writes in).
+  lock.emplace(output);
   std::error_code ec;
   // The folder of the cases is strewn's only when it holds the mark strewn puts in the folders it
   // makes: a folder of the user's that happens to have the name is never emptied or removed.
@@ -556,10 +559,11 @@ std::vector<std::size_t> leader_pending_cases(const Job& job, const SweepPlan& p
                                               const SweepOptions& options,
                                               const std::string& output, const std::string& folder,
                                               const SweepEvents& events,
+                                              std::optional<OutputLock>& lock,
                                               std::exception_ptr& refused) {
   if (!job.leader()) return {};
   try {
-    return pending_cases(plan, options, output, folder, events);
+    return pending_cases(plan, options, output, folder, events, lock);
   } catch (const std::exception&) {
     refused = std::current_exception();
     return {};
@@ -613,8 +617,9 @@ std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
   int threads = options.threads;
   if (threads <= 0) threads = static_cast<int>(std::thread::hardware_concurrency());
   std::exception_ptr refused;
+  std::optional<OutputLock> output_lock;  // rank 0's, until the sweep's file is in place
   const std::vector<std::size_t> pending =
-      leader_pending_cases(job, plan, options, output, folder, events, refused);
+      leader_pending_cases(job, plan, options, output, folder, events, output_lock, refused);
   std::mutex told;
   auto report_done = [&](std::size_t index) {
     if (!events.case_done) return;

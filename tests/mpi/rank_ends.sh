@@ -99,6 +99,9 @@ ended_by() {  # ended_by WHAT NAME SIGNAL TARGET(rank0|rank1|launcher) EXPECTED_
 ended_by "rank 1 killed (SIGKILL)" killed KILL rank1 "rank 0 ended by SIGTERM"
 ended_by "rank 0 sent SIGTERM" termed TERM rank0 "rank 0 ended by SIGTERM from process"
 ended_by "the launcher interrupted (SIGINT)" interrupted INT launcher "rank [01] ended by SIG"
+# SIGUSR1, which mpirun forwards to the ranks (and a scheduler sends as a warning): it used to end
+# them silently, leaving the partial and lock files.
+ended_by "the launcher sent SIGUSR1" warned USR1 launcher "rank [01] ended by SIGUSR1"
 
 # Launches `mpirun ARGS...` (after the first four arguments) for at most 120 s, standard error to
 # $work/NAME.err: it must end with status STATUS, its messages matching TEXT, and leave no file of

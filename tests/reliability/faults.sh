@@ -18,6 +18,18 @@ grep -q "full.h5" "$work/err" || fail "full disk: the message does not name the 
 compgen -G "$work/full.h5.partial*" >/dev/null && fail "full disk: the temporary file was left behind"
 echo "ok: full disk ends with status 3: $(head -1 "$work/err")"
 
+# A reader that goes away (`| head`; here `| true`, gone before the study ends): the write fails
+# (SIGPIPE is ignored), status 3 and a message, the results file whole and nothing else left; it
+# used to be killed, its lock left.
+"$strewn" run "$scenario" -n 2000 -o "$work/piped.h5" --json 2>"$work/err" | true
+status=${PIPESTATUS[0]}
+[[ $status == 3 ]] || fail "a reader gone: exit status $status, not 3 ($(cat "$work/err"))"
+grep -q "writing to standard output failed: Broken pipe" "$work/err" ||
+  fail "a reader gone: $(cat "$work/err")"
+[[ -e "$work/piped.h5.lock" ]] && fail "a reader gone: the lock file was left"
+"$strewn" report "$work/piped.h5" --json >/dev/null || fail "a reader gone: the results file"
+echo "ok: a reader gone ends with status 3 and leaves nothing"
+
 # The output folder vanishes while the study runs.
 mkdir -p "$work/vanishing"
 "$strewn" run "$scenario" -n 400000 -j 2 -o "$work/vanishing/out.h5" --quiet >/dev/null 2>"$work/err" &

@@ -76,4 +76,28 @@ for left in "$out.lock" "$out.checkpoint"; do [[ -e "$left" ]] && fail "left beh
 compgen -G "$out.partial*" >/dev/null && fail "left behind: a partial file"
 echo "ok: a lock left by a killed run is taken over; nothing is left behind"
 
+# One sweep per output: a second sweep on an output a sweep is writing is refused before it
+# touches the folder of the cases (it used to empty it under the first, which then failed).
+mkdir -p "$work/sweep/sweeps"
+cp "$source_dir/tests/data/sweeps/box.toml" "$work/sweep/sweeps/box.toml"
+cp "$source_dir/tests/data/canopy-by-height.toml" "$work/sweep/canopy-by-height.toml"
+swept="$work/swept.h5"
+"$strewn" sweep "$work/sweep/sweeps/box.toml" -n 100000 -j 1 -o "$swept" --quiet >/dev/null \
+  2>"$work/sweep1.err" &
+first_sweep=$!
+wait_for "$swept.lock" || fail "no lock file while the first sweep writes"
+wait_for "$swept.cases/strewn-sweep-cases" || fail "no folder of cases while the first sweep runs"
+"$strewn" sweep "$work/sweep/sweeps/box.toml" -n 100000 -o "$swept" --fresh --quiet >/dev/null \
+  2>"$work/sweep2.err"
+status=$?
+[[ $status == 2 ]] || fail "a second sweep on the same output: status $status, not 2"
+grep -q "another strewn run is writing this output now" "$work/sweep2.err" ||
+  fail "second sweep: $(cat "$work/sweep2.err")"
+[[ -e "$swept.cases/strewn-sweep-cases" ]] || fail "the second sweep removed the first's cases"
+wait "$first_sweep"
+status=$?
+[[ $status == 0 ]] || fail "the first sweep: status $status ($(cat "$work/sweep1.err"))"
+[[ -e "$swept" && ! -e "$swept.lock" ]] || fail "the first sweep: no results file, or its lock left"
+echo "ok: one sweep per output at a time"
+
 finish "one writer"
