@@ -82,12 +82,12 @@ mkdir -p "$work/sweep/sweeps"
 cp "$source_dir/tests/data/sweeps/box.toml" "$work/sweep/sweeps/box.toml"
 cp "$source_dir/tests/data/canopy-by-height.toml" "$work/sweep/canopy-by-height.toml"
 swept="$work/swept.h5"
-"$strewn" sweep "$work/sweep/sweeps/box.toml" -n 100000 -j 1 -o "$swept" --quiet >/dev/null \
+"$strewn" sweep "$work/sweep/sweeps/box.toml" -n 20000 -j 1 -o "$swept" --quiet >/dev/null \
   2>"$work/sweep1.err" &
 first_sweep=$!
 wait_for "$swept.lock" || fail "no lock file while the first sweep writes"
 wait_for "$swept.cases/strewn-sweep-cases" || fail "no folder of cases while the first sweep runs"
-"$strewn" sweep "$work/sweep/sweeps/box.toml" -n 100000 -o "$swept" --fresh --quiet >/dev/null \
+"$strewn" sweep "$work/sweep/sweeps/box.toml" -n 20000 -o "$swept" --fresh --quiet >/dev/null \
   2>"$work/sweep2.err"
 status=$?
 [[ $status == 2 ]] || fail "a second sweep on the same output: status $status, not 2"
