@@ -46,21 +46,38 @@ std::string temporary_path_of(const std::string& path) {
 
 namespace {
 
+// The state letter of a /proc/<pid>/stat or /proc/<pid>/task/<tid>/stat file (proc(5)), or '?'
+// when it cannot be read. The line is "pid (comm) state ...": the command name may hold spaces
+// and parentheses, so the state is read after the last ')'.
+char process_state(const std::filesystem::path& stat_file) {
+  std::ifstream stat(stat_file);
+  std::string line;
+  if (!std::getline(stat, line)) return '?';
+  const std::size_t close = line.rfind(')');
+  if (close == std::string::npos || close + 2 >= line.size()) return '?';
+  return line[close + 2];
+}
+
+bool ended(char state) {
+  return state == 'Z' || state == 'X';
+}
+
 // True while process `pid` of this machine may still write: it exists and has not ended. A process
 // that has ended but whose parent has not yet collected its status (a zombie, state Z or X in
 // /proc/<pid>/stat, proc(5)) still answers kill(pid, 0), yet writes nothing more: a rank killed
 // under a launcher stays so until the launcher reaps it.
 bool process_lives(pid_t pid) {
   if (::kill(pid, 0) != 0 && errno == ESRCH) return false;
-  std::ifstream stat("/proc/" + std::to_string(pid) + "/stat");
-  std::string line;
-  if (!std::getline(stat, line)) return true;  // no /proc: assume it lives
-  // "pid (comm) state ...": the command name may hold spaces and parentheses, so the state is
-  // read after the last ')'.
-  const std::size_t close = line.rfind(')');
-  if (close == std::string::npos || close + 2 >= line.size()) return true;
-  const char state = line[close + 2];
-  return state != 'Z' && state != 'X';
+  const std::filesystem::path proc = "/proc/" + std::to_string(pid);
+  const char state = process_state(proc / "stat");
+  if (state == '?') return true;  // no /proc: assume it lives
+  if (!ended(state)) return true;
+  // A leader thread that ended while other threads of its process run shows Z too: the process
+  // lives while one of its threads (/proc/<pid>/task) has not ended.
+  std::error_code ec;
+  for (const auto& task : std::filesystem::directory_iterator(proc / "task", ec))
+    if (const char s = process_state(task.path() / "stat"); s != '?' && !ended(s)) return true;
+  return false;
 }
 
 }  // namespace

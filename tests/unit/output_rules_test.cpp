@@ -2,9 +2,12 @@
 // replaced only when allowed, and an output a scenario names stays in the scenario's folder once
 // `..` and links are resolved as the kernel resolves them.
 #include <gtest/gtest.h>
+#include <pthread.h>
+#include <sys/syscall.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <csignal>
 #include <filesystem>
 #include <fstream>
 #include <memory>
@@ -164,6 +167,47 @@ TEST(OutputRules, ALeftoverOfAnEndedProcessNotYetReapedIsRemoved) {
   remove_stale_partials(dir.string(), "r.h5");
   EXPECT_FALSE(fs::exists(leftover));
   ::waitpid(child, nullptr, 0);
+}
+
+// From a review: a process whose first thread has ended while another still runs shows state Z
+// in /proc/<pid>/stat too (proc(5)), yet lives and may write; its partial file is left alone.
+TEST(OutputRules, APartialFileOfAProcessWhoseFirstThreadEndedIsKept) {
+  const test::ScratchFolder dir("leader-ended");
+  const pid_t child = ::fork();
+  if (child == 0) {
+    pthread_t worker;
+    ::pthread_create(
+        &worker, nullptr,
+        [](void*) -> void* {
+          ::sleep(30);  // ended by the parent long before
+          return nullptr;
+        },
+        nullptr);
+    // The first thread ends, the process goes on: the exit system call ends only the calling
+    // thread (exit(2)), without the unwinding of pthread_exit through the test framework.
+    ::syscall(SYS_exit, 0);
+  }
+  ASSERT_GT(child, 0);
+  const std::string stat = "/proc/" + std::to_string(child) + "/stat";
+  bool leader_ended = false;
+  for (int k = 0; k < 400 && !leader_ended; ++k) {
+    std::ifstream in(stat);
+    std::string line;
+    std::getline(in, line);
+    const std::size_t close = line.rfind(')');
+    leader_ended = close != std::string::npos && close + 2 < line.size() && line[close + 2] == 'Z';
+    if (!leader_ended) ::usleep(5000);
+  }
+  const std::string suffix = partial_suffix();
+  const std::string partial =
+      (dir / "r.h5").string() + suffix.substr(0, suffix.rfind('-') + 1) + std::to_string(child);
+  std::ofstream(partial) << "being written";
+  remove_stale_partials(dir.string(), "r.h5");
+  const bool kept = fs::exists(partial);
+  ::kill(child, SIGKILL);
+  ::waitpid(child, nullptr, 0);
+  ASSERT_TRUE(leader_ended) << "the first thread did not show as ended";
+  EXPECT_TRUE(kept);
 }
 
 // What a rank ended by a signal removes (RemovedOnSignal): the names held while they are held,
