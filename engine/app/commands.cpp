@@ -349,6 +349,10 @@ void prepare_together(const Job& job, Prepare&& prepare) {
   std::string mine;
   try {
     mine = "ok " + prepare() + " " + kEngineVersion;
+  } catch (const std::bad_alloc&) {
+    // In words for rank 0's message ("std::bad_alloc" says nothing to a user).
+    failure = std::current_exception();
+    mine = "failed ran out of memory while reading its inputs";
   } catch (const std::exception& e) {
     failure = std::current_exception();
     mine = std::string("failed ") + e.what();

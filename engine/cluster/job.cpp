@@ -198,9 +198,9 @@ std::string start_verdict(const Job& job, const std::string& mine) {
     for (int r = 1; r < job.size() && verdict.empty(); ++r)
       if (said[r] != said[0])
         verdict = "rank " + std::to_string(r) +
-                  " read or was given other inputs than rank 0 (the scenario or a file it "
-                  "reads, the sample count, the seed or the version of strewn differ); every "
-                  "rank must see the same files and the same command";
+                  " read or was given other inputs than rank 0 (the scenario or sweep, a file "
+                  "it reads, the sample count, the seed, a sweep's output or the version of "
+                  "strewn differ); every rank must see the same files and the same command";
     for (int r = 1; r < job.size(); ++r) job.send(r, bytes_of(verdict), kVerdictTag);
   } else {
     job.send(0, bytes_of(mine), kStartTag);
