@@ -23,6 +23,7 @@
 #include <optional>
 #include <sstream>
 
+#include "app/rank_signals.hpp"
 #include "app/read_deadline.hpp"
 #include "cluster/job.hpp"
 #include "cluster/rank_flights.hpp"
@@ -786,9 +787,16 @@ struct Commands {
         // And where the cases go: each rank writes its cases beside the results file.
         const std::string output =
             sweep.options.output.empty() ? plan.output : sweep.options.output;
+        // Links resolved as the kernel resolves them (lnk/../x is not x when lnk is a link).
+        std::error_code ec;
+        const auto where = std::filesystem::weakly_canonical(std::filesystem::absolute(output), ec);
         return inputs_sha256(plan.text, files) + " " + std::to_string(plan.samples) + " " +
-               std::filesystem::absolute(output).lexically_normal().string();
+               (ec ? std::filesystem::absolute(output).string() : where.string());
       });
+      // One process: a signal ends the sweep at once, its finished cases kept for the next run
+      // and the files it was writing removed (on ranks, main.cpp installs the same).
+      std::optional<EndRankOnSignals> end_on_signals;
+      if (job.size() == 1) end_on_signals.emplace(-1);
       std::optional<tbb::global_control> limit;
       if (sweep.options.threads > 0)
         limit.emplace(tbb::global_control::max_allowed_parallelism,
@@ -936,7 +944,7 @@ int run_command_line(int argc, const char* const* argv, std::ostream& out_stream
   // the others wait for it. Help and --version count as a command of their own.
   const std::string asked = parsed == 1 ? "--help or --version" : commands.what_runs();
   const std::uint64_t leaders_ask = job.broadcast(digest_of(asked));
-  if (parsed == 0 && digest_of(asked) != leaders_ask) {
+  if (parsed != 2 && digest_of(asked) != leaders_ask) {
     refusal = "error: given another command than rank 0 (" + asked +
               "); every rank of a job runs the same command\n";
     parsed = 2;

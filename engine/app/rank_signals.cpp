@@ -55,9 +55,13 @@ struct Line {
 extern "C" void end_rank(int signal_number, siginfo_t* info, void*) {
   remove_files_held_for_signals();
   Line line;
-  line.add("\nstrewn: rank ");
-  line.add(static_cast<long>(this_rank.load()));
-  line.add(" ended by ");
+  if (const int rank = this_rank.load(); rank >= 0) {
+    line.add("\nstrewn: rank ");
+    line.add(static_cast<long>(rank));
+    line.add(" ended by ");
+  } else {
+    line.add("\nstrewn: ended by ");
+  }
   line.add(signal_name(signal_number));
   if (info != nullptr && info->si_pid > 0) {
     line.add(" from process ");

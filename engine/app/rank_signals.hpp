@@ -15,7 +15,9 @@
 namespace strewn {
 
 /// Installed on every rank of a job of several processes until after MPI_Finalize (a rank that
-/// has done its part still waits there for the others); restores the previous handlers after.
+/// has done its part still waits there for the others), and for a sweep on one process (`rank`
+/// -1: the message names no rank; its finished cases are kept for the next run); restores the
+/// previous handlers after.
 class EndRankOnSignals {
  public:
   explicit EndRankOnSignals(int rank);

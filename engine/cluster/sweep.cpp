@@ -491,6 +491,11 @@ std::string summary_csv_of(const std::string& output) {
   return fs::path(output).replace_extension("").string() + "-summary.csv";
 }
 
+// One sweep per output: the locks rank 0 holds on the results file and on the summary.
+struct SweepLocks {
+  std::optional<OutputLock> results, summary;
+};
+
 // The file that marks a folder of cases as made by a sweep.
 constexpr const char* kCasesMark = "strewn-sweep-cases";
 
@@ -499,7 +504,7 @@ constexpr const char* kCasesMark = "strewn-sweep-cases";
 // leftovers of a stopped run cleared; returns the cases still to run, in order.
 std::vector<std::size_t> pending_cases(const SweepPlan& plan, const SweepOptions& options,
                                        const std::string& output, const std::string& folder,
-                                       const SweepEvents& events, std::optional<OutputLock>& lock) {
+                                       const SweepEvents& events, SweepLocks& locks) {
   const bool named_in_file = options.output.empty() && plan.output_line > 0;
   const std::string origin =
       named_in_file ? plan.path + ":" + std::to_string(plan.output_line) + ": output: " : "";
@@ -519,7 +524,9 @@ std::vector<std::size_t> pending_cases(const SweepPlan& plan, const SweepOptions
   prepare_output(output, origin, true, plan.files_read, rules);
   // One sweep per output: a second one on it meanwhile is refused before it touches the cases
   // (it would otherwise empty or remove the folder the first one writes in).
-  lock.emplace(output);
+  // The summary too: two sweeps on outputs of one stem (s.h5, s.hdf5) share it.
+  locks.results.emplace(output);
+  locks.summary.emplace(summary_csv_of(output));
   std::error_code ec;
   // The folder of the cases is strewn's only when it holds the mark strewn puts in the folders it
   // makes: a folder of the user's that happens to have the name is never emptied or removed.
@@ -558,12 +565,11 @@ std::vector<std::size_t> pending_cases(const SweepPlan& plan, const SweepOptions
 std::vector<std::size_t> leader_pending_cases(const Job& job, const SweepPlan& plan,
                                               const SweepOptions& options,
                                               const std::string& output, const std::string& folder,
-                                              const SweepEvents& events,
-                                              std::optional<OutputLock>& lock,
+                                              const SweepEvents& events, SweepLocks& locks,
                                               std::exception_ptr& refused) {
   if (!job.leader()) return {};
   try {
-    return pending_cases(plan, options, output, folder, events, lock);
+    return pending_cases(plan, options, output, folder, events, locks);
   } catch (const std::exception&) {
     refused = std::current_exception();
     return {};
@@ -617,9 +623,9 @@ std::optional<SweepOutcome> run_sweep(const Job& job, const SweepPlan& plan,
   int threads = options.threads;
   if (threads <= 0) threads = static_cast<int>(std::thread::hardware_concurrency());
   std::exception_ptr refused;
-  std::optional<OutputLock> output_lock;  // rank 0's, until the sweep's file is in place
+  SweepLocks locks;  // rank 0's, until the sweep's files are in place
   const std::vector<std::size_t> pending =
-      leader_pending_cases(job, plan, options, output, folder, events, output_lock, refused);
+      leader_pending_cases(job, plan, options, output, folder, events, locks, refused);
   std::mutex told;
   auto report_done = [&](std::size_t index) {
     if (!events.case_done) return;

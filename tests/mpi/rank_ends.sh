@@ -158,4 +158,18 @@ job_ends "a check on rank 0 while rank 1 runs the study" checked 2 \
   -np 1 "$strewn" check "$scenario" : \
   -np 1 "$strewn" run "$scenario" -n 500 -o "$work/checked.h5" --quiet
 
+job_ends "--version on rank 1 while rank 0 runs the study" versioned 2 \
+  "error (rank 1): given another command than rank 0 (--help or --version)" \
+  -np 1 "$strewn" run "$scenario" -n 500 -o "$work/versioned.h5" --quiet : \
+  -np 1 "$strewn" --version
+
+# 8. A sweep whose ranks name its output through a link (lnk/../out.h5 is sub/out.h5 when lnk
+#    leads to sub/deeper): other folders of cases, refused before any case.
+mkdir -p "$work/sub/deeper"
+ln -s sub/deeper "$work/lnk"
+job_ends "a sweep whose output differs through a link" linked 2 \
+  "rank 1 read or was given other inputs than rank 0" \
+  -np 1 "$strewn" sweep "$work/a/sweeps/box.toml" -n 50 -o "$work/linked.h5" --quiet : \
+  -np 1 "$strewn" sweep "$work/a/sweeps/box.toml" -n 50 -o "$work/lnk/../linked.h5" --quiet
+
 finish "rank ends"

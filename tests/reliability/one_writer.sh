@@ -94,10 +94,39 @@ status=$?
 grep -q "another strewn run is writing this output now" "$work/sweep2.err" ||
   fail "second sweep: $(cat "$work/sweep2.err")"
 [[ -e "$swept.cases/strewn-sweep-cases" ]] || fail "the second sweep removed the first's cases"
+# Another output of the same stem shares the summary (swept-summary.csv): refused too.
+"$strewn" sweep "$work/sweep/sweeps/box.toml" -n 2000 -o "$work/swept.hdf5" --quiet >/dev/null \
+  2>"$work/sweep3.err"
+status=$?
+[[ $status == 2 ]] || fail "a sweep sharing the summary: status $status, not 2"
+grep -q "swept-summary.csv.*another strewn run is writing this output now" "$work/sweep3.err" ||
+  fail "a sweep sharing the summary: $(cat "$work/sweep3.err")"
 wait "$first_sweep"
 status=$?
 [[ $status == 0 ]] || fail "the first sweep: status $status ($(cat "$work/sweep1.err"))"
 [[ -e "$swept" && ! -e "$swept.lock" ]] || fail "the first sweep: no results file, or its lock left"
 echo "ok: one sweep per output at a time"
+
+# A sweep on one process stopped by a signal ends at once (status 4, said), removes the files it
+# was writing and keeps its finished cases: the next run goes on. It used to be killed, its lock
+# and partial files left.
+stopped="$work/stopped.h5"
+"$strewn" sweep "$work/sweep/sweeps/box.toml" -n 20000 -j 1 -o "$stopped" --quiet >/dev/null \
+  2>"$work/stopped.err" &
+sweeping=$!
+wait_for "$stopped.cases/strewn-sweep-cases" || fail "no folder of cases while the sweep runs"
+sleep 0.5
+kill -TERM "$sweeping"
+wait "$sweeping"
+status=$?
+[[ $status == 4 ]] || fail "a sweep sent SIGTERM: status $status, not 4"
+grep -q "strewn: ended by SIGTERM" "$work/stopped.err" || fail "a sweep sent SIGTERM: $(cat "$work/stopped.err")"
+[[ -e "$stopped.lock" ]] && fail "a sweep sent SIGTERM: its lock file was left"
+compgen -G "$stopped.cases/*.partial-*" >/dev/null && fail "a sweep sent SIGTERM: a partial file was left"
+[[ -d "$stopped.cases" ]] || fail "a sweep sent SIGTERM: its finished cases were not kept"
+"$strewn" sweep "$work/sweep/sweeps/box.toml" -n 20000 -j 1 -o "$stopped" --quiet >/dev/null 2>&1 ||
+  fail "the stopped sweep run again"
+[[ -e "$stopped" ]] || fail "the stopped sweep run again: no results file"
+echo "ok: a sweep stopped by a signal ends at once, without litter, and goes on"
 
 finish "one writer"
