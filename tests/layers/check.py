@@ -9,11 +9,11 @@ import re
 import sys
 
 # The data path (scenario -> sampling -> flight -> study pipeline -> footprint -> store -> report
-# -> app) as dependencies, lowest first: the flight's physics under the scenario that describes
-# it, the footprint statistics (on rows, knowing nothing of flights) under the pipeline that
+# -> app) as dependencies, lowest first: the flight's physics under the terrain read from rasters
+# (GDAL) and the scenario that describes both, the footprint statistics (on rows, knowing nothing of flights) under the pipeline that
 # computes them, the processes of a job (cluster) under the command line.
-LAYERS = ["core", "medium", "flight", "scenario", "sampling", "study", "footprint", "pipeline",
-          "store", "report", "cluster", "app"]
+LAYERS = ["core", "medium", "flight", "terrain", "scenario", "sampling", "study", "footprint",
+          "pipeline", "store", "report", "cluster", "app"]
 
 def main() -> int:
     engine = pathlib.Path(sys.argv[1])
