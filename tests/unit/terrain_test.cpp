@@ -82,23 +82,32 @@ double gdallocationinfo(const std::string& path, double longitude, double latitu
   return value;
 }
 
+// A point (x, y in traditional GIS order: longitude first) carried from one reference system to
+// another ("WGS84" or any definition OSRSetFromUserInput reads) by GDAL.
+std::array<double, 2> carried(const std::string& from, const std::string& to, double x, double y) {
+  const auto reference = [](const std::string& definition) {
+    OGRSpatialReferenceH r = OSRNewSpatialReference(nullptr);
+    if (definition == "WGS84")
+      OSRSetWellKnownGeogCS(r, "WGS84");
+    else
+      OSRSetFromUserInput(r, definition.c_str());
+    OSRSetAxisMappingStrategy(r, OAMS_TRADITIONAL_GIS_ORDER);
+    return r;
+  };
+  OGRSpatialReferenceH source = reference(from), target = reference(to);
+  OGRCoordinateTransformationH transformation = OCTNewCoordinateTransformation(source, target);
+  OCTTransform(transformation, 1, &x, &y, nullptr);
+  OCTDestroyCoordinateTransformation(transformation);
+  OSRDestroySpatialReference(source);
+  OSRDestroySpatialReference(target);
+  return {x, y};
+}
+
 // The WGS 84 longitude and latitude of the centre of pixel (i, j) of a raster.
 std::array<double, 2> pixel_centre(const RasterSpec& spec, int i, int j) {
   const auto& t = spec.transform;
-  double x = t[0] + (i + 0.5) * t[1] + (j + 0.5) * t[2];
-  double y = t[3] + (i + 0.5) * t[4] + (j + 0.5) * t[5];
-  OGRSpatialReferenceH raster = OSRNewSpatialReference(nullptr),
-                       wgs84 = OSRNewSpatialReference(nullptr);
-  OSRSetFromUserInput(raster, spec.reference.c_str());
-  OSRSetWellKnownGeogCS(wgs84, "WGS84");
-  OSRSetAxisMappingStrategy(raster, OAMS_TRADITIONAL_GIS_ORDER);
-  OSRSetAxisMappingStrategy(wgs84, OAMS_TRADITIONAL_GIS_ORDER);
-  OGRCoordinateTransformationH to_wgs84 = OCTNewCoordinateTransformation(raster, wgs84);
-  OCTTransform(to_wgs84, 1, &x, &y, nullptr);
-  OCTDestroyCoordinateTransformation(to_wgs84);
-  OSRDestroySpatialReference(raster);
-  OSRDestroySpatialReference(wgs84);
-  return {x, y};
+  return carried(spec.reference, "WGS84", t[0] + (i + 0.5) * t[1] + (j + 0.5) * t[2],
+                 t[3] + (i + 0.5) * t[4] + (j + 0.5) * t[5]);
 }
 
 // A smooth invented ridge with valleys, m (for tests only).
@@ -114,20 +123,7 @@ TEST(Terrain, HeightsAtPostsAreThoseGdalReports) {
   const test::ScratchFolder dir("terrain-posts");
   const GeographicLib::LocalCartesian site(kLatitude, kLongitude, 0.0);
   // The site's origin in UTM 26N, from GDAL itself.
-  double x0 = kLongitude, y0 = kLatitude;
-  {
-    OGRSpatialReferenceH utm = OSRNewSpatialReference(nullptr),
-                         wgs84 = OSRNewSpatialReference(nullptr);
-    OSRSetFromUserInput(utm, "EPSG:32626");
-    OSRSetWellKnownGeogCS(wgs84, "WGS84");
-    OSRSetAxisMappingStrategy(utm, OAMS_TRADITIONAL_GIS_ORDER);
-    OSRSetAxisMappingStrategy(wgs84, OAMS_TRADITIONAL_GIS_ORDER);
-    OGRCoordinateTransformationH to_utm = OCTNewCoordinateTransformation(wgs84, utm);
-    OCTTransform(to_utm, 1, &x0, &y0, nullptr);
-    OCTDestroyCoordinateTransformation(to_utm);
-    OSRDestroySpatialReference(utm);
-    OSRDestroySpatialReference(wgs84);
-  }
+  const auto [x0, y0] = carried("WGS84", "EPSG:32626", kLongitude, kLatitude);
   RasterSpec projected{120,
                        100,
                        {x0 - 1800.0, 30.0, 0.0, y0 + 1500.0, 0.0, -30.0},
