@@ -31,5 +31,7 @@ inline constexpr Bounds kDegrees{0.0, 360.0, false, false, "an angle in [0, 360]
 /// to 86 km geometric (medium/us1976.hpp).
 inline constexpr Bounds kAltitude{-5000.0, 86000.0, false, false,
                                   "an altitude from -5000 to 86000 m above mean sea level"};
+inline constexpr Bounds kHeightAboveGround{0.0, 86000.0, true, false,
+                                           "a height above the ground in (0, 86000] m"};
 
 }  // namespace strewn

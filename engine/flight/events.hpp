@@ -68,10 +68,14 @@ class FlightEvents {
       kink_stop_ = std::numeric_limits<double>::infinity();
     else if (retake_to_kink(stepper))
       return {Kind::kink, kink_stop_};
-    // The deployment height lies above the ground, so it is crossed first.
-    if (!std::isnan(deploy_clearance) && offset(stepper.y(), deploy_clearance) <= 0.0)
+    // The deployment height lies above the ground, so it is crossed first. (Above the ground's
+    // highest point plus the clearance no surface is crossed: no height is looked up there.)
+    const double z = stepper.y()[2];
+    if (!std::isnan(deploy_clearance) && !clear_of(z, deploy_clearance) &&
+        offset(stepper.y(), deploy_clearance) <= 0.0)
       return {Kind::deployment, locate(stepper, deploy_clearance)};
-    if (offset(stepper.y(), 0.0) <= 0.0) return {Kind::ground, locate(stepper, 0.0)};
+    if (!clear_of(z, 0.0) && offset(stepper.y(), 0.0) <= 0.0)
+      return {Kind::ground, locate(stepper, 0.0)};
     // (Not while a deployment height is watched: the deployment comes first, however close.)
     if (std::isnan(deploy_clearance))
       if (const double landing = landing_just_ahead(stepper, t_stop); !std::isnan(landing))
@@ -80,6 +84,16 @@ class FlightEvents {
   }
 
  private:
+  // Whether altitude z lies above the surface `clearance` above the ground everywhere (above its
+  // highest point): a cheap screen before the ground's height is looked up. Never for a level
+  // ground, whose height costs nothing.
+  [[nodiscard]] bool clear_of(double z, double clearance) const {
+    if constexpr (Ground::level)
+      return false;
+    else
+      return z > ground_.highest() + clearance;
+  }
+
   // The offset from the surface `clearance` above the ground of the dense output at t, and its
   // time derivative (the exact derivative of the polynomials, the ground's slope included).
   template <class Stepper>
@@ -244,7 +258,8 @@ double FlightEvents<Ground>::foresee(const Stepper& stepper) const {
   double aimed_ground = kNever;
   if constexpr (Ground::level) {
     consider(ground_.height(0.0, 0.0) - 0.5 * sliver);
-  } else {
+  } else if (!clear_of(z_end, 0.0)) {
+    // (A step ending above the ground's highest point cannot be aimed at it: skipped.)
     // The sliver of the height above the ground (not of the altitude): a shallow glide into a
     // slope closes on it with little change of altitude.
     const double above = offset(stepper.y(), 0.0);
@@ -271,6 +286,15 @@ double FlightEvents<Ground>::foresee(const Stepper& stepper) const {
 template <class Ground>
 template <class Stepper>
 double FlightEvents<Ground>::landing_just_ahead(const Stepper& stepper, double t_stop) const {
+  if constexpr (!Ground::level) {
+    // The height above the ground is at least z - highest, and its change over the step at most
+    // the altitude's change plus the ground's relief: when the first exceeds a sliver of the
+    // second the test below fails, and no height need be looked up.
+    const double z = stepper.y()[2];
+    const double most_change =
+        std::abs(z - stepper.y_previous()[2]) + (ground_.highest() - ground_.lowest());
+    if (z - ground_.highest() > kSliver * most_change) return kNone;
+  }
   const double above = offset(stepper.y(), 0.0);
   // The last step's change of the height above the ground: of the altitude for a level ground.
   double change;

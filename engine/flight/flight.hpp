@@ -41,6 +41,8 @@ enum class FlightStatus : std::uint8_t {
   step_too_small = 3,  ///< the integrator could not meet the tolerance
   non_finite = 4,      ///< NaN or infinity in the state or forces
   floats = 5,          ///< lighter than the medium at the ground: it can never land
+  off_terrain = 6,     ///< came down where the terrain has no height (beyond the raster read, or
+                       ///< on posts without data): where it lands is not known
 };
 template <>
 struct EnumNames<FlightStatus> {
@@ -49,7 +51,8 @@ struct EnumNames<FlightStatus> {
                                     std::pair{FlightStatus::time_limit, "time_limit"},
                                     std::pair{FlightStatus::step_too_small, "step_too_small"},
                                     std::pair{FlightStatus::non_finite, "non_finite"},
-                                    std::pair{FlightStatus::floats, "floats"}};
+                                    std::pair{FlightStatus::floats, "floats"},
+                                    std::pair{FlightStatus::off_terrain, "off_terrain"}};
 };
 inline const char* to_string(FlightStatus status) {
   return name_of(status);
@@ -80,6 +83,9 @@ struct FlightResult {
   double speed = 0.0;            ///< |velocity|, m/s
   double energy = 0.0;           ///< 1/2 m speed^2, J
   double angle = 0.0;            ///< degrees below the horizontal at impact
+  double slope = 0.0;            ///< degrees: the ground's steepest slope at the impact point
+  /// Degrees between the impact velocity and the ground's surface there (90: square onto it).
+  double surface_angle = 0.0;
   double deploy_time = std::numeric_limits<double>::quiet_NaN();  ///< s, NaN: no deployment
   long steps = 0;
   long evaluations = 0;

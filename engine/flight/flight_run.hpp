@@ -39,6 +39,15 @@ class FlightRun {
   template <class Stepper, class State>
   Next integrate(Stepper& stepper, State& y, double& t, double t_stop, bool watch_deploy_height);
   void finish_landing(double t, const Vec3& position, const Vec3& velocity);
+  // Come down where the ground has no height (beyond a terrain read, or on posts without data;
+  // no surface can be met above its highest post): where it would land is not known.
+  template <class State>
+  [[nodiscard]] bool off_terrain(const State& y) const {
+    if constexpr (Ground::level)
+      return false;
+    else
+      return y[2] <= ground_.highest() && std::isnan(events_.ground_under(y[0], y[1]));
+  }
   void record(double t, const Vec3& position, const Vec3& velocity, bool quasi) {
     if (observer_) observer_->record({t, position, velocity, forces_.stage(), quasi}, forces_);
   }
@@ -178,6 +187,21 @@ void FlightRun<Ground>::finish_landing(double t, const Vec3& position, const Vec
   result_.speed = velocity.norm();
   result_.energy = 0.5 * body_.mass * result_.speed * result_.speed;
   result_.angle = std::atan2(-velocity.z(), velocity.head<2>().norm()) / constants::degree;
+  if constexpr (Ground::level) {
+    result_.slope = 0.0;
+    result_.surface_angle = result_.angle;
+  } else {
+    // The surface z = h(x, y) has the upward normal (-h_x, -h_y, 1); the velocity's angle with
+    // the surface is the complement of its angle with the normal.
+    const auto gradient = ground_.slope(position.x(), position.y());
+    const Vec3 normal = Vec3(-gradient[0], -gradient[1], 1.0).normalized();
+    result_.slope = std::acos(normal.z()) / constants::degree;
+    result_.surface_angle =
+        result_.speed > 0.0
+            ? std::asin(std::clamp(-velocity.dot(normal) / result_.speed, -1.0, 1.0)) /
+                  constants::degree
+            : 90.0;
+  }
 }
 
 // Advances `stepper` until the ground, a deployment height, t_stop or a failure. On return, (t, y)
@@ -243,6 +267,12 @@ typename FlightRun<Ground>::Next FlightRun<Ground>::integrate(Stepper& stepper, 
       finish_landing(t, y.template head<3>(), velocity_of(y, y[2]));
       return Next::ground;
     }
+    if (off_terrain(stepper.y())) {
+      result_.status = FlightStatus::off_terrain;
+      t = stepper.t();
+      y = stepper.y();
+      return Next::stop;
+    }
     if constexpr (!kQuasi) watch(stepper.y());  // a settling fall: judged at its ends only
     if (observer_ && options_.record_interval <= 0.0)
       record(stepper.t(), stepper.y().template head<3>(), velocity_of(stepper.y(), z), kQuasi);
@@ -257,7 +287,13 @@ typename FlightRun<Ground>::Next FlightRun<Ground>::integrate(Stepper& stepper, 
 template <class Ground>
 bool FlightRun<Ground>::ends_at_release(const FlightState& y, const ReleaseState& release) {
   if (!y.allFinite()) {
+    // A release height above a ground without a height there is not finite either.
     result_.status = FlightStatus::non_finite;
+    if (!Ground::level && std::isnan(events_.ground_under(y[0], y[1]))) {
+      result_.status = FlightStatus::off_terrain;
+      result_.position = release.position;
+      result_.velocity = release.velocity;
+    }
     return true;
   }
   if (events_.offset(y, 0.0) <= 0.0) {  // released on (or below) the ground

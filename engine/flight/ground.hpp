@@ -5,9 +5,11 @@
 //   static constexpr const char* name;
 //   static constexpr std::array<GroundKey, K> keys;  // what it reads of [site], with checks
 //   explicit Ground(std::span<const double> values); // from their values, in that order
-//   std::array<double, K> values() const;            // and back (the scenario report)
+//     or Ground(values, std::shared_ptr<const TerrainSurface>)  // a ground read from a raster
+//   std::array<double, K> values() const;            // and back (the scenario report; a file
+//                                                    // key's value is the scenario's to write)
 //   static constexpr bool level;        // one altitude everywhere (located as an altitude level)
-//   double height(double east, double north) const;                  // m above mean sea level
+//   double height(double east, double north) const;  // m above mean sea level; NaN: no ground
 //   std::array<double, 2> slope(double east, double north) const;    // its gradient
 //   double lowest() const, highest() const;  // bounds of the height anywhere (m)
 // Ground contact and deployment heights are located on the height above the ground along the
@@ -17,22 +19,25 @@
 #include <algorithm>
 #include <array>
 #include <cstddef>
+#include <memory>
 #include <optional>
 #include <span>
 #include <string>
 #include <string_view>
+#include <type_traits>
 #include <utility>
 #include <variant>
 #include <vector>
 
 #include "flight/grounds/level.hpp"
+#include "flight/grounds/terrain.hpp"
 
 namespace strewn {
 
 /// The registered grounds: adding one is its file under grounds/ and its type here. A scenario's
 /// ground is the first whose required keys [site] gives all of: the level ground, which requires
 /// none, is the default and stays last.
-using Grounds = std::variant<LevelGround>;
+using Grounds = std::variant<TerrainGround, LevelGround>;
 
 /// The kinds of ground of a variant (Grounds; tests give their own): their keys, the choice of
 /// a kind from the keys a [site] table gives, and the ground built from its keys' values.
@@ -88,11 +93,21 @@ struct GroundKinds {
     }
     return count - 1;
   }
-  /// The ground of kind `kind` from its keys' values, in the order of its keys.
-  static Variant make(std::size_t kind, std::span<const double> values) {
+  /// The ground of kind `kind` from its keys' values, in the order of its keys, and the surface
+  /// read from its raster (for the kinds built on one).
+  static Variant make(std::size_t kind, std::span<const double> values,
+                      std::shared_ptr<const TerrainSurface> surface = nullptr) {
     std::optional<Variant> ground;
+    auto build = [&]<std::size_t i>(std::integral_constant<std::size_t, i>) {
+      using Kind = At<i>;
+      if constexpr (std::is_constructible_v<Kind, std::span<const double>,
+                                            std::shared_ptr<const TerrainSurface>>)
+        ground.emplace(std::in_place_index<i>, values, surface);
+      else
+        ground.emplace(std::in_place_index<i>, values);
+    };
     [&]<std::size_t... i>(std::index_sequence<i...>) {
-      ((kind == i ? (ground.emplace(std::in_place_index<i>, values), 0) : 0), ...);
+      ((kind == i ? (build(std::integral_constant<std::size_t, i>{}), 0) : 0), ...);
     }
     (std::make_index_sequence<count>{});
     return std::move(ground.value());
@@ -135,14 +150,16 @@ inline constexpr std::size_t kMaxGroundKeys = GroundKindsOf::max_keys();
 static_assert(GroundKindsOf::default_is_last(),
               "exactly one registered ground, the last, may require no key: it is the default");
 
-/// A ground's keys with their values (what a scenario report writes back).
+/// A ground's number keys with their values (what a scenario report writes back; its file keys
+/// are the scenario's to write, as given).
 [[nodiscard]] inline std::vector<std::pair<const char*, double>> ground_settings(
     const Grounds& ground) {
   std::vector<std::pair<const char*, double>> out;
   std::visit(
       [&](const auto& g) {
         const auto values = g.values();
-        for (std::size_t k = 0; k < values.size(); ++k) out.emplace_back(g.keys[k].key, values[k]);
+        for (std::size_t k = 0; k < values.size(); ++k)
+          if (!g.keys[k].file) out.emplace_back(g.keys[k].key, values[k]);
       },
       ground);
   return out;

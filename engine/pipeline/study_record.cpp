@@ -86,14 +86,16 @@ struct Tally {
   std::uint64_t count = 0;
   double extreme = std::numeric_limits<double>::quiet_NaN(), second = extreme;
 };
-// Per body: the tallies of each flag (and last, of the floating rows) and its rows.
+// Per body: the tallies of each flag (and last, of the floating rows and of the rows that came
+// down off the terrain) and its rows.
+constexpr std::size_t kFloatsTally = kModelRangeFlagCount, kOffTerrainTally = kFloatsTally + 1;
 struct BodyTallies {
-  std::vector<std::array<Tally, kModelRangeFlagCount + 1>> tally;
+  std::vector<std::array<Tally, kModelRangeFlagCount + 2>> tally;
   std::vector<std::uint64_t> rows;
 };
 
 BodyTallies tally_flags(const StudyColumns& c, std::size_t bodies) {
-  std::vector<std::array<Tally, kModelRangeFlagCount + 1>> tally(bodies);  // last: floats
+  std::vector<std::array<Tally, kModelRangeFlagCount + 2>> tally(bodies);
   std::vector<std::uint64_t> rows(bodies, 0);
   auto most = [](double& into, double v) {
     if (!(v <= into)) into = v;  // NaN-safe maximum
@@ -133,7 +135,9 @@ BodyTallies tally_flags(const StudyColumns& c, std::size_t bodies) {
       }
     }
     if (c.status[i] == static_cast<std::uint8_t>(FlightStatus::floats))
-      ++tally[b][kModelRangeFlagCount].count;
+      ++tally[b][kFloatsTally].count;
+    if (c.status[i] == static_cast<std::uint8_t>(FlightStatus::off_terrain))
+      ++tally[b][kOffTerrainTally].count;
   }
   return {std::move(tally), std::move(rows)};
 }
@@ -189,7 +193,21 @@ std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
       }
       out.push_back(std::move(w));
     }
-    if (const std::uint64_t floats = tally[b][kModelRangeFlagCount].count) {
+    if (const std::uint64_t off = tally[b][kOffTerrainTally].count) {
+      RangeWarning w{s.bodies[b].name,
+                     "off_terrain",
+                     off,
+                     rows[b],
+                     std::numeric_limits<double>::quiet_NaN(),
+                     std::numeric_limits<double>::quiet_NaN(),
+                     ""};
+      w.text = counted(off) +
+               "came down where the terrain read has no height (beyond the raster or the reach "
+               "read, site.terrain_reach, or on posts without data): where they land is not "
+               "known (status off_terrain; counted as failed)";
+      out.push_back(std::move(w));
+    }
+    if (const std::uint64_t floats = tally[b][kFloatsTally].count) {
       RangeWarning w{s.bodies[b].name,
                      "floats",
                      floats,
@@ -222,7 +240,10 @@ StudyRecord make_record(const Scenario& s, const World& world, const StudyResult
   r.longitude = s.site.longitude;
   r.ground = s.site.ground_level();
   r.release = {s.release.east.nominal(), s.release.north.nominal()};
-  r.release_altitude = s.release.altitude.nominal();
+  // Above mean sea level: a height above the ground is taken above the ground under the nominal
+  // release point.
+  r.release_altitude =
+      s.bodies.empty() ? s.release.altitude.nominal() : nominal_flight(s, 0).release.position.z();
   r.release_track = s.release.track.nominal();
   r.target_width = s.study.target_width;
   r.max_samples = static_cast<std::uint64_t>(s.study.max_samples);

@@ -87,15 +87,16 @@ nlohmann::json wind_json(const Scenario& s) {
 
 // The release: where, how fast and when, with the burst when there is one.
 nlohmann::json release_json(const ReleaseSpec& r) {
-  nlohmann::json release{{"altitude", uncertain_json(r.altitude)},
-                         {"east", uncertain_json(r.east)},
-                         {"north", uncertain_json(r.north)},
-                         {"speed", uncertain_json(r.speed)},
-                         {"track", uncertain_json(r.track)},
-                         {"climb", uncertain_json(r.climb)},
-                         {"along_error", uncertain_json(r.along_error)},
-                         {"cross_error", uncertain_json(r.cross_error)},
-                         {"delay", uncertain_json(r.delay)}};
+  nlohmann::json release{
+      {r.above_ground ? "height_above_ground" : "altitude", uncertain_json(r.altitude)},
+      {"east", uncertain_json(r.east)},
+      {"north", uncertain_json(r.north)},
+      {"speed", uncertain_json(r.speed)},
+      {"track", uncertain_json(r.track)},
+      {"climb", uncertain_json(r.climb)},
+      {"along_error", uncertain_json(r.along_error)},
+      {"cross_error", uncertain_json(r.cross_error)},
+      {"delay", uncertain_json(r.delay)}};
   if (r.has_burst) release["burst"] = {{"speed", uncertain_json(r.burst_speed)}};
   return release;
 }
@@ -178,6 +179,7 @@ nlohmann::json scenario_json(const Scenario& s) {
   j["title"] = s.title;
   j["site"] = nlohmann::json::object();
   for (const auto& [key, value] : ground_settings(s.site.ground)) j["site"][key] = value;
+  if (!s.site.terrain.empty()) j["site"]["terrain"] = s.site.terrain;
   if (s.site.latitude) j["site"]["latitude"] = *s.site.latitude;
   if (s.site.longitude) j["site"]["longitude"] = *s.site.longitude;
   j["medium"] = medium_json(s);
@@ -196,6 +198,7 @@ nlohmann::json scenario_json(const Scenario& s) {
                       {"distribution", uncertain_json(in.distribution)},
                       {"nominal", in.distribution.nominal()}});
   j["sampled_inputs"] = inputs;
+  if (!s.warnings.empty()) j["warnings"] = s.warnings;
   return j;
 }
 
@@ -205,6 +208,7 @@ void write_scenario_text(std::ostream& out, const Scenario& s) {
   for (const auto& in : s.sampled_inputs)
     out << "  " << in.name << "  " << json_text(uncertain_json(in.distribution), -1) << "  nominal "
         << in.distribution.nominal() << "\n";
+  for (const auto& w : s.warnings) out << "warning: " << w << "\n";
 }
 
 }  // namespace strewn

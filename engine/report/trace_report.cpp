@@ -3,6 +3,7 @@
 #include <cmath>
 #include <cstdio>
 #include <iomanip>
+#include <variant>
 
 #include "core/errors.hpp"
 #include "core/text.hpp"
@@ -63,17 +64,26 @@ nlohmann::json flown_inputs(const TraceRecord& t) {
     j["medium.temperature_offset"] = t.inputs.conditions.temperature_offset;
   j["medium.density_factor"] = t.inputs.conditions.density_factor;
   const ReleaseSpec& r = s.release;
-  const std::pair<const char*, const Uncertain*> release[] = {{"altitude", &r.altitude},
-                                                              {"east", &r.east},
-                                                              {"north", &r.north},
-                                                              {"speed", &r.speed},
-                                                              {"track", &r.track},
-                                                              {"climb", &r.climb},
-                                                              {"along_error", &r.along_error},
-                                                              {"cross_error", &r.cross_error},
-                                                              {"delay", &r.delay}};
+  const std::pair<const char*, const Uncertain*> release[] = {
+      {r.above_ground ? "height_above_ground" : "altitude", &r.altitude},
+      {"east", &r.east},
+      {"north", &r.north},
+      {"speed", &r.speed},
+      {"track", &r.track},
+      {"climb", &r.climb},
+      {"along_error", &r.along_error},
+      {"cross_error", &r.cross_error},
+      {"delay", &r.delay}};
   for (const auto& [key, value] : release) j[std::string("release.") + key] = value->nominal();
   return j;
+}
+
+// A point's height above the ground under it (on terrain, the terrain's height there; NaN where
+// the terrain has none).
+double height_above_ground(const TraceRecord& t, const Vec3& position) {
+  return position.z() -
+         std::visit([&](const auto& g) { return g.height(position.x(), position.y()); },
+                    t.scenario->site.ground);
 }
 
 // "477 m left of track" for a crossrange of -477 m (positive is to the right of the track).
@@ -109,6 +119,9 @@ nlohmann::json trace_json(const TraceRecord& t) {
                    {"speed", r.speed},
                    {"energy", r.energy},
                    {"angle", r.angle},
+                   {"ground", r.position.z()},
+                   {"slope", r.slope},
+                   {"surface_angle", r.surface_angle},
                    {"velocity", {r.velocity.x(), r.velocity.y(), r.velocity.z()}},
                    {"downrange", downrange},
                    {"crossrange", crossrange}};
@@ -138,13 +151,12 @@ nlohmann::json trace_json(const TraceRecord& t) {
   j["integration"] = {
       {"tolerance", t.tolerance}, {"steps", r.steps}, {"evaluations", r.evaluations}};
   nlohmann::json points = nlohmann::json::array();
-  const double ground = t.scenario->site.ground_level();
   for (const auto& p : t.recorder.points()) {
     points.push_back({{"time", p.point.time},
                       {"east", p.point.position.x()},
                       {"north", p.point.position.y()},
                       {"altitude", p.point.position.z()},
-                      {"height", p.point.position.z() - ground},
+                      {"height", height_above_ground(t, p.point.position)},
                       {"speed", p.point.velocity.norm()},
                       {"air_speed", p.air_speed},
                       {"reynolds", p.reynolds},
@@ -158,11 +170,10 @@ nlohmann::json trace_json(const TraceRecord& t) {
 
 void write_trace_csv(std::ostream& out, const TraceRecord& t) {
   out << "time_s,east_m,north_m,altitude_m,height_m,speed_ms,air_speed_ms,reynolds,mach,stage\n";
-  const double ground = t.scenario->site.ground_level();
   out << std::setprecision(10);
   for (const auto& p : t.recorder.points()) {
     out << p.point.time << ',' << p.point.position.x() << ',' << p.point.position.y() << ','
-        << p.point.position.z() << ',' << p.point.position.z() - ground << ','
+        << p.point.position.z() << ',' << height_above_ground(t, p.point.position) << ','
         << p.point.velocity.norm() << ',' << p.air_speed << ',' << p.reynolds << ',' << p.mach
         << ',' << stage_name(p.point.stage) << '\n';
   }
@@ -183,6 +194,9 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
     out << "          speed " << readable_number(r.speed, 3) << " m/s   energy "
         << readable_number(r.energy, 3) << " J   angle " << fixed(r.angle, 1)
         << " deg below horizontal\n";
+    out << "ground    " << fixed(r.position.z(), 1) << " m above mean sea level   slope "
+        << fixed(r.slope, 1) << " deg   " << fixed(r.surface_angle, 1)
+        << " deg to the ground's surface\n";
   } else {
     out << "no impact the flight ended at " << fixed(r.time, 2) << " s, east "
         << fixed(r.position.x(), 2) << " m, north " << fixed(r.position.y(), 2) << " m, altitude "
@@ -213,13 +227,13 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
     std::vector<std::size_t> rows;
     for (std::size_t i = 0; i < points.size(); i += stride) rows.push_back(i);
     if (rows.back() != points.size() - 1) rows.push_back(points.size() - 1);
-    const double ground = t.scenario->site.ground_level();
     char line[160];
     for (std::size_t i : rows) {
       const auto& p = points[i];
       std::snprintf(line, sizeof line, "%8.2f %9.1f %9.1f %9.1f %11.2f  %s\n", p.point.time,
-                    p.point.position.x(), p.point.position.y(), p.point.position.z() - ground,
-                    p.point.velocity.norm(), stage_name(p.point.stage));
+                    p.point.position.x(), p.point.position.y(),
+                    height_above_ground(t, p.point.position), p.point.velocity.norm(),
+                    stage_name(p.point.stage));
       out << line;
     }
     out << "  (" << points.size() << " points; --csv or --json for all)\n";

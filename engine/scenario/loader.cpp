@@ -11,6 +11,8 @@
 #include "scenario/reader.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/table_file.hpp"
+#include "scenario/terrain_ground.hpp"
+#include "scenario/world.hpp"
 
 namespace strewn {
 
@@ -106,6 +108,7 @@ class Loader {
     read_output(top.table("output"));
     read_correlations(top);
     top.finish();
+    read_terrain_raster();
     cross_checks();
     if (!diagnostics_.empty()) throw ScenarioError(diagnostics_.take());
     return std::move(scenario_);
@@ -146,9 +149,20 @@ class Loader {
     const std::size_t kind = GroundKindsOf::choose(has);
     std::array<double, kMaxGroundKeys> values{};
     const auto keys = GroundKindsOf::keys(kind);
-    for (std::size_t k = 0; k < keys.size(); ++k)
+    for (std::size_t k = 0; k < keys.size(); ++k) {
+      if (keys[k].file) {  // a raster, read once the rest of the scenario is known
+        values[k] = std::numeric_limits<double>::quiet_NaN();
+        if (auto file = site.text(keys[k].key, {}, keys[k].required)) {
+          scenario_.site.terrain = *file;
+          scenario_.site.terrain_path = read_from(*file);
+          terrain_line_ = site.line_of(keys[k].key);
+        }
+        continue;
+      }
       values[k] =
           site.number(keys[k].key, keys[k].bounds, keys[k].required).value_or(keys[k].fallback);
+    }
+    ground_values_.assign(values.begin(), values.begin() + static_cast<long>(keys.size()));
     for (const auto& [key, message] : GroundKindsOf::keys_of_others(kind, has)) {
       site.mark(key);
       diagnostics_.add(site.key_path(key), site.line_of(key), message);
@@ -156,6 +170,32 @@ class Loader {
     scenario_.site.ground =
         GroundKindsOf::make(kind, std::span<const double>(values.data(), keys.size()));
     site.finish();
+  }
+
+  // The terrain raster of a terrain ground, over the reach of the flights (worked out from the
+  // nominal flights unless site.terrain_reach gives it): refused with the key and the reason.
+  // With other problems already found the nominal flights cannot be trusted: the raster is then
+  // only opened and checked.
+  void read_terrain_raster() {
+    if (scenario_.site.terrain_path.empty()) return;
+    if (!scenario_.site.latitude) {
+      diagnostics_.add("site.terrain", terrain_line_,
+                       "needs the site's latitude and longitude: they place the frame on the "
+                       "raster");
+      return;
+    }
+    const double reach = ground_values_.size() > 1 ? ground_values_[1] : 0.0;
+    try {
+      if (diagnostics_.empty()) {
+        read_terrain_ground(scenario_, reach);
+      } else {
+        Scenario probe = scenario_;
+        probe.bodies.clear();
+        read_terrain_ground(probe, kLeastTerrainReach);
+      }
+    } catch (const InputFileError& error) {
+      diagnostics_.add("site.terrain", terrain_line_, error.what());
+    }
   }
 
   void read_medium(Table medium) {
@@ -369,7 +409,19 @@ class Loader {
     auto input = [&](const char* key, double fallback, const Bounds& bounds) {
       return sampled(std::string("release.") + key, release.uncertain(key, fallback, bounds));
     };
-    if (present) {
+    if (present && release.has("height_above_ground")) {
+      // m above the ground under the release point, rather than above mean sea level.
+      r.above_ground = true;
+      if (release.has("altitude")) {
+        release.mark("altitude");
+        diagnostics_.add(release.key_path("altitude"), release.line_of("altitude"),
+                         "give the release's altitude (m above mean sea level) or its "
+                         "height_above_ground (m above the ground under the release point), not "
+                         "both");
+      }
+      if (auto height = release.uncertain("height_above_ground", kHeightAboveGround, true))
+        r.altitude = sampled("release.height_above_ground", *height);
+    } else if (present) {
       auto altitude = release.uncertain("altitude", kAltitude, true);
       if (altitude) r.altitude = sampled("release.altitude", *altitude);
     }
@@ -717,35 +769,68 @@ class Loader {
     }
   }
 
-  void cross_checks() {
+  // The release above the ground and within the sounding. A terrain that could not be read has
+  // no heights to check against (its problem is said already).
+  void check_release_against_ground() {
     const auto& r = scenario_.release;
+    if (const auto* terrain = std::get_if<TerrainGround>(&scenario_.site.ground);
+        terrain && !terrain->surface)
+      return;
     const double ground = scenario_.site.ground_level();
-    // Release below the ground: refused when any real share of the release altitudes is.
-    if (r.altitude.probability_below(ground + 1e-9) > kOutsideTolerance ||
-        r.altitude.nominal() <= ground)
+    // The ground under the nominal release point (for a level ground its one altitude).
+    const ReleaseState nominal =
+        release_state(r.altitude.nominal(), r.east.nominal(), r.north.nominal(), r.speed.nominal(),
+                      r.track.nominal(), r.climb.nominal(), r.along_error.nominal(),
+                      r.cross_error.nominal(), r.delay.nominal());
+    const double ground_there = std::visit(
+        [&](const auto& g) { return g.height(nominal.position.x(), nominal.position.y()); },
+        scenario_.site.ground);
+    const bool level = std::holds_alternative<LevelGround>(scenario_.site.ground);
+    const char* key = r.above_ground ? "height_above_ground" : "altitude";
+    if (std::isnan(ground_there)) {
+      diagnostics_.add(std::string("release.") + key, line_for("release", key),
+                       "the terrain read has no height under the nominal release point");
+      return;
+    }
+    if (!r.above_ground && (r.altitude.probability_below(ground + 1e-9) > kOutsideTolerance ||
+                            r.altitude.nominal() <= ground_there)) {
+      // Release below the ground: refused when any real share of the release altitudes is
+      // below the lowest ground, or the nominal release is below the ground under it.
+      const bool under = r.altitude.nominal() <= ground_there;
       diagnostics_.add("release.altitude", line_for("release", "altitude"),
                        "the release (nominal " + format_number(r.altitude.nominal()) +
-                           " m) must be above the ground at " + format_number(ground) +
-                           " m above mean sea level (site.ground)");
-    if (scenario_.medium.model == Medium::Kind::profile && scenario_.medium.profile.size() >= 2) {
-      const auto& levels = scenario_.medium.profile;
-      // Every release altitude a study may draw must lie within the sounding (the same share
-      // as the physical ranges allow, 1e-6), not only the nominal one.
-      const double top = levels.back().altitude;
-      if (ground < levels.front().altitude || r.altitude.nominal() > top)
-        diagnostics_.add("medium.profile", line_for("medium", "profile"),
-                         "the sounding covers " + format_number(levels.front().altitude) + " .. " +
-                             format_number(top) + " m; it must reach from the ground (" +
-                             format_number(ground) + " m) to the release altitude (nominal " +
-                             format_number(r.altitude.nominal()) + " m)");
-      else if (r.altitude.probability_above(top) > kOutsideTolerance)
-        diagnostics_.add("release.altitude", line_for("release", "altitude"),
-                         "the release altitude may reach above the sounding's top at " +
-                             format_number(top) + " m (probability " +
-                             printf_text("%.3g", r.altitude.probability_above(top)) +
-                             "); extend the sounding, or truncate the altitude with max = " +
-                             format_number(top));
+                           " m) must be above the ground at " +
+                           format_number(under ? ground_there : ground) +
+                           " m above mean sea level" +
+                           (level   ? " (site.ground)"
+                            : under ? " (the terrain under the nominal release point)"
+                                    : " (the lowest terrain read)"));
     }
+    if (scenario_.medium.model != Medium::Kind::profile || scenario_.medium.profile.size() < 2)
+      return;
+    // Every release altitude a study may draw must lie within the sounding (the same share as
+    // the physical ranges allow, 1e-6), not only the nominal one. A height above the ground is
+    // taken above the ground under the nominal release point.
+    const double lift = r.above_ground ? ground_there : 0.0;
+    const auto& levels = scenario_.medium.profile;
+    const double top = levels.back().altitude;
+    if (ground < levels.front().altitude || r.altitude.nominal() + lift > top)
+      diagnostics_.add("medium.profile", line_for("medium", "profile"),
+                       "the sounding covers " + format_number(levels.front().altitude) + " .. " +
+                           format_number(top) + " m; it must reach from the ground (" +
+                           format_number(ground) + " m) to the release altitude (nominal " +
+                           format_number(r.altitude.nominal() + lift) + " m)");
+    else if (r.altitude.probability_above(top - lift) > kOutsideTolerance)
+      diagnostics_.add(std::string("release.") + key, line_for("release", key),
+                       "the release altitude may reach above the sounding's top at " +
+                           format_number(top) + " m (probability " +
+                           printf_text("%.3g", r.altitude.probability_above(top - lift)) +
+                           "); extend the sounding, or truncate the " + key +
+                           " with max = " + format_number(top - lift));
+  }
+
+  void cross_checks() {
+    check_release_against_ground();
     // Correlations must name sampled inputs, each pair once.
     std::vector<std::string> names;
     for (const auto& s : scenario_.sampled_inputs) names.push_back(s.name);
@@ -820,6 +905,8 @@ class Loader {
   std::string path_;
   std::filesystem::path folder_;
   Scenario scenario_;
+  std::vector<double> ground_values_;  // the values of the ground's keys, as read
+  long terrain_line_ = 0;
 };
 
 }  // namespace

@@ -27,6 +27,8 @@ struct SiteSpec {
   std::optional<double> longitude;  ///< WGS84 degrees
   /// The ground flights end on, of the kind its [site] keys choose (flight/ground.hpp).
   Grounds ground = LevelGround{};
+  /// A terrain ground's raster: as the scenario gives it (`terrain`), and resolved.
+  std::string terrain, terrain_path;
   /// The ground's lowest altitude, m above mean sea level (for a level ground its one altitude):
   /// what still takes the ground as one number (DEVELOPERS.md, "A ground").
   [[nodiscard]] double ground_level() const { return lowest_ground(ground); }
@@ -51,7 +53,10 @@ struct WindSpec {
 };
 
 struct ReleaseSpec {
-  Uncertain altitude = 0.0;  ///< m above mean sea level
+  /// m above mean sea level (`altitude`), or, when `above_ground`, m above the ground under the
+  /// release point (`height_above_ground`).
+  Uncertain altitude = 0.0;
+  bool above_ground = false;
   Uncertain east = 0.0, north = 0.0;
   Uncertain speed = 0.0;                           ///< carrier ground speed, m/s
   Uncertain track = 0.0;                           ///< degrees clockwise from north
@@ -156,6 +161,9 @@ struct Scenario {
   /// Every file the scenario reads, resolved: itself, then its tables (sounding, wind files), so
   /// that no output may be written over one of them.
   std::vector<std::string> files_read;
+  /// What `check` says of the scenario without refusing it (a terrain raster that the nominal
+  /// footprint reaches the edge of).
+  std::vector<std::string> warnings;
 
   /// Index of the body with this name, or -1.
   [[nodiscard]] int body_index(const std::string& name) const;

@@ -66,6 +66,13 @@ FlightInputs build_flight(const Scenario& s, std::size_t body_index, const Input
   in.release = release_state(value(r.altitude), value(r.east), value(r.north), value(r.speed),
                              value(r.track), value(r.climb), value(r.along_error),
                              value(r.cross_error), value(r.delay));
+  if (r.above_ground) {
+    // A height above the ground under the release point (NaN beyond the terrain read: the flight
+    // ends at once, off the terrain).
+    const Vec3& p = in.release.position;
+    in.release.position.z() +=
+        std::visit([&](const auto& ground) { return ground.height(p.x(), p.y()); }, s.site.ground);
+  }
   return in;
 }
 

@@ -28,7 +28,7 @@ namespace strewn {
 
 // 2: /footprint; 3: the model-range columns and warnings, the choice columns, "all" as one release;
 // 4: sealed with the SHA-256 of its bytes in the user block (store/file_seal.hpp)
-inline constexpr int kResultsFormatVersion = 4;
+inline constexpr int kResultsFormatVersion = 5;
 
 /// Writes a results file as a study runs: rows are appended round by round (a RowSink, fed on
 /// the study's writer thread), then finish() adds the counts, closes the file and renames it into

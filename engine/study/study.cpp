@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <atomic>
 #include <cstring>
+#include <limits>
 #include <mutex>
 
 namespace strewn {
@@ -67,6 +68,11 @@ inline void store_row(StudyColumns& c, std::size_t row, std::size_t b, const Fli
   c.altitude_max[row] = static_cast<float>(r.regime.altitude_max);
   c.curvature_offset[row] = static_cast<float>(r.curvature_offset);
   c.rotation_offset[row] = static_cast<float>(r.rotation_offset);
+  const bool landed = r.status == FlightStatus::landed;
+  constexpr float kNone = std::numeric_limits<float>::quiet_NaN();
+  c.ground[row] = landed ? static_cast<float>(r.position.z()) : kNone;
+  c.slope[row] = landed ? static_cast<float>(r.slope) : kNone;
+  c.surface_angle[row] = landed ? static_cast<float>(r.surface_angle) : kNone;
   const std::size_t dims = values.size();
   for (std::size_t d = 0; d < dims; ++d) c.inputs[d][row] = values[d];
   for (std::size_t k = 0; k < chosen.size(); ++k) c.inputs[dims + k][row] = chosen[k];

@@ -34,6 +34,10 @@ struct StudyColumns {
   std::vector<std::uint8_t> regime_flags;
   std::vector<float> reynolds_beyond, mach_beyond, altitude_max;
   std::vector<float> curvature_offset, rotation_offset;
+  // Landed flights: the ground's height at the impact point (m above mean sea level), its
+  // steepest slope there and the impact velocity's angle with the surface (degrees); NaN
+  // otherwise. Single precision: a height to 0.1 mm, angles to 1e-5 degrees.
+  std::vector<float> ground, slope, surface_angle;
   /// The named columns: first the sampled inputs (their values), then the last `choices` of them,
   /// the sample's own random choices (SampleModel::choice_names: ensemble member, wind
   /// perturbation, burst velocity), recorded so that they can be ranked like the inputs.
@@ -87,7 +91,9 @@ struct StudyColumns {
         std::pair{"mach_beyond", &StudyColumns::mach_beyond},
         std::pair{"altitude_max", &StudyColumns::altitude_max},
         std::pair{"curvature_offset", &StudyColumns::curvature_offset},
-        std::pair{"rotation_offset", &StudyColumns::rotation_offset});
+        std::pair{"rotation_offset", &StudyColumns::rotation_offset},
+        std::pair{"ground", &StudyColumns::ground}, std::pair{"slope", &StudyColumns::slope},
+        std::pair{"surface_angle", &StudyColumns::surface_angle});
   }
   template <class Table, class F>
   static void visit(Table& table, F& f) {

@@ -3,7 +3,9 @@
 // same accuracy, side by side. Each reports its impact error against a tolerance-1e-11 reference.
 #include <benchmark/benchmark.h>
 
+#include <array>
 #include <cmath>
+#include <memory>
 
 #include "../unit/reference_flight.hpp"
 #include "flight/flight.hpp"
@@ -52,6 +54,53 @@ void BM_BundleFlight_strewn(benchmark::State& state) {
   state.counters["evaluations"] = static_cast<double>(result.evaluations);
 }
 BENCHMARK(BM_BundleFlight_strewn)->Unit(benchmark::kMicrosecond);
+
+// The same bundle over terrain: a surface of posts 30 m apart (the usual spacing of open elevation
+// tiles) rolling 60 m about the flat bench's ground, read from memory as a raster is read
+// (flight/grounds/terrain_surface.hpp). Against BM_BundleFlight_strewn: the cost of the terrain's
+// height look-ups and of locating the contact on a surface that is not level.
+Grounds rolling_terrain() {
+  constexpr double kHalf = 6000.0, kPost = 30.0;
+  PostHeights posts;
+  posts.columns = posts.rows = static_cast<std::size_t>(2.0 * kHalf / kPost) + 1;
+  posts.heights.resize(posts.columns * posts.rows);
+  for (std::size_t j = 0; j < posts.rows; ++j)
+    for (std::size_t i = 0; i < posts.columns; ++i) {
+      const double east = -kHalf + kPost * static_cast<double>(i);
+      const double north = -kHalf + kPost * static_cast<double>(j);
+      posts.heights[j * posts.columns + i] =
+          static_cast<float>(540.0 + 60.0 * std::sin(east / 800.0) * std::cos(north / 600.0));
+    }
+  FrameToPosts frame;
+  frame.half_width = kHalf;
+  frame.spacing = 100.0;
+  frame.nodes = static_cast<std::size_t>(2.0 * kHalf / frame.spacing) + 1;
+  for (std::size_t j = 0; j < frame.nodes; ++j)
+    for (std::size_t i = 0; i < frame.nodes; ++i) {
+      frame.column.push_back(frame.spacing * static_cast<double>(i) / kPost);
+      frame.row.push_back(frame.spacing * static_cast<double>(j) / kPost);
+    }
+  const std::array<double, 2> values{std::nan(""), kHalf};
+  return TerrainGround(values,
+                       std::make_shared<const TerrainSurface>(std::move(posts), std::move(frame)));
+}
+
+void BM_BundleFlight_terrain(benchmark::State& state) {
+  const auto& b = bundle();
+  Environment environment = b.environment;
+  environment.ground = rolling_terrain();
+  FlightOptions options;  // default tolerance 0.05 m
+  FlightResult result;
+  for (auto _ : state) {
+    result = fly(b.body, environment, b.release, options);
+    benchmark::DoNotOptimize(result);
+  }
+  if (result.status != FlightStatus::landed) state.SkipWithError("the bundle did not land");
+  state.counters["ground_m"] = result.position.z();
+  state.counters["steps"] = static_cast<double>(result.steps);
+  state.counters["evaluations"] = static_cast<double>(result.evaluations);
+}
+BENCHMARK(BM_BundleFlight_terrain)->Unit(benchmark::kMicrosecond);
 
 // Odeint at the loosest tolerance (a factor-2 ladder) whose impact error is no worse than
 // strewn's at the default tolerance: the same accuracy, for a fair comparison of cost.

@@ -8,7 +8,9 @@
 set -uo pipefail
 source "$(dirname "$0")/../lib.sh" "$1" "$2"
 
-# The demo scenario with a hostile title and body name (TOML escapes: \u001b is ESC).
+# The demo scenario with a hostile title and body name (TOML escapes: \u001b is ESC), beside its
+# terrain.
+cp -r "$source_dir/inputs/terrain" "$work/terrain"
 sed -e 's|^title = .*|title = "\\u001b[2J\\u001b]0;owned\\u0007 \\u202Eexe.fdp <script>alert(1)</script> \\u0085 \\u009b31m"|' \
     -e 's|^name = .*|name = "=HYPERLINK(\\"x\\",\\"y\\")"|' \
     "$source_dir/inputs/ridge-drop.toml" >"$work/hostile.toml"

@@ -12,6 +12,7 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 #include <sstream>
+#include <variant>
 
 #include "app/commands.hpp"
 #include "command_line.hpp"
@@ -56,7 +57,13 @@ TEST(Cli, TraceJsonLandsOnTheIndependentReference) {
       const FlightInputs in =
           nominal_flight(scenario, static_cast<std::size_t>(scenario.body_index(body.name)));
       const Environment env{&world.medium, in.conditions, &world.wind, world.ground};
-      const auto reference = test::reference_fly(in.body, env, in.release);
+      // The reference meets the scenario's own ground (a terrain's surface too), located by
+      // TOMS 748 on Odeint's dense output.
+      test::ReferenceFrame frame;
+      frame.ground = [&](double east, double north) {
+        return std::visit([&](const auto& g) { return g.height(east, north); }, world.ground);
+      };
+      const auto reference = test::reference_fly(in.body, env, in.release, 1e-10, 1e6, frame);
       ASSERT_TRUE(reference.landed);
       const double miss =
           std::hypot(json["impact"]["east"].get<double>() - reference.position.x(),

@@ -20,54 +20,19 @@
 #include <vector>
 
 #include "core/errors.hpp"
+#include "rasters.hpp"
 #include "support.hpp"
 #include "terrain/elevation_raster.hpp"
 
 namespace strewn {
 namespace {
 
+using test::carried;
+using test::RasterSpec;
+using test::write_geotiff;
+
 // The ridge supply drop's invented place (tests/places/invented-places.tsv).
 constexpr double kLatitude = 41.30, kLongitude = -33.70;
-
-// A GeoTIFF of `columns` × `rows` posts: heights(column, row), its geotransform and its reference
-// system (any definition OSRSetFromUserInput reads; empty: none); `unit` for the band.
-struct RasterSpec {
-  int columns = 0, rows = 0;
-  std::array<double, 6> transform{};
-  std::string reference;
-  std::function<double(int, int)> heights;
-  std::optional<double> no_data;
-  std::string unit;
-};
-
-void write_geotiff(const std::string& path, const RasterSpec& spec) {
-  GDALAllRegister();
-  GDALDriverH driver = GDALGetDriverByName("GTiff");
-  ASSERT_NE(driver, nullptr);
-  GDALDatasetH dataset =
-      GDALCreate(driver, path.c_str(), spec.columns, spec.rows, 1, GDT_Float32, nullptr);
-  ASSERT_NE(dataset, nullptr);
-  std::array<double, 6> transform = spec.transform;
-  if (transform[1] != 0.0) GDALSetGeoTransform(dataset, transform.data());
-  if (!spec.reference.empty()) {
-    OGRSpatialReferenceH reference = OSRNewSpatialReference(nullptr);
-    ASSERT_EQ(OSRSetFromUserInput(reference, spec.reference.c_str()), OGRERR_NONE);
-    GDALSetSpatialRef(dataset, reference);
-    OSRDestroySpatialReference(reference);
-  }
-  GDALRasterBandH band = GDALGetRasterBand(dataset, 1);
-  if (spec.no_data) GDALSetRasterNoDataValue(band, *spec.no_data);
-  if (!spec.unit.empty()) GDALSetRasterUnitType(band, spec.unit.c_str());
-  std::vector<float> values(static_cast<std::size_t>(spec.columns * spec.rows));
-  for (int j = 0; j < spec.rows; ++j)
-    for (int i = 0; i < spec.columns; ++i)
-      values[static_cast<std::size_t>(j * spec.columns + i)] =
-          static_cast<float>(spec.heights(i, j));
-  ASSERT_EQ(GDALRasterIO(band, GF_Write, 0, 0, spec.columns, spec.rows, values.data(), spec.columns,
-                         spec.rows, GDT_Float32, 0, 0),
-            CE_None);
-  GDALClose(dataset);
-}
 
 // The value gdallocationinfo reports at a longitude and latitude (WGS 84).
 double gdallocationinfo(const std::string& path, double longitude, double latitude) {
@@ -80,27 +45,6 @@ double gdallocationinfo(const std::string& path, double longitude, double latitu
   if (std::fscanf(pipe, "%lf", &value) != 1) value = std::nan("");
   ::pclose(pipe);
   return value;
-}
-
-// A point (x, y in traditional GIS order: longitude first) carried from one reference system to
-// another ("WGS84" or any definition OSRSetFromUserInput reads) by GDAL.
-std::array<double, 2> carried(const std::string& from, const std::string& to, double x, double y) {
-  const auto reference = [](const std::string& definition) {
-    OGRSpatialReferenceH r = OSRNewSpatialReference(nullptr);
-    if (definition == "WGS84")
-      OSRSetWellKnownGeogCS(r, "WGS84");
-    else
-      OSRSetFromUserInput(r, definition.c_str());
-    OSRSetAxisMappingStrategy(r, OAMS_TRADITIONAL_GIS_ORDER);
-    return r;
-  };
-  OGRSpatialReferenceH source = reference(from), target = reference(to);
-  OGRCoordinateTransformationH transformation = OCTNewCoordinateTransformation(source, target);
-  OCTTransform(transformation, 1, &x, &y, nullptr);
-  OCTDestroyCoordinateTransformation(transformation);
-  OSRDestroySpatialReference(source);
-  OSRDestroySpatialReference(target);
-  return {x, y};
 }
 
 // The WGS 84 longitude and latitude of the centre of pixel (i, j) of a raster.
