@@ -291,21 +291,32 @@ StudyRun fly_and_store(const Job& job, const SampleModel& model, const World& wo
 }
 
 // True, after saying so with the first samples to replay, when more flights failed than
-// study.max_failed allows.
+// study.max_failed allows. Flights that came down beyond the terrain read (off_terrain) are not
+// failures of the integration: they count as failed in the figures and the warnings name them,
+// but they do not stop the run (a wider raster or reach is the remedy, not a replay).
 bool too_many_failed(const StudyResult& result, double max_failed, std::ostream& err) {
+  auto counts = [](std::uint8_t status) {
+    return status != static_cast<std::uint8_t>(FlightStatus::landed) &&
+           status != static_cast<std::uint8_t>(FlightStatus::off_terrain);
+  };
+  // (The rows kept in memory name the off-terrain ones; every other failure counts.)
+  const auto off_terrain = static_cast<std::uint64_t>(
+      std::count(result.columns.status.begin(), result.columns.status.end(),
+                 static_cast<std::uint8_t>(FlightStatus::off_terrain)));
+  const std::uint64_t failed = result.failed - std::min(off_terrain, result.failed);
   const double failed_share =
-      static_cast<double>(result.failed) /
+      static_cast<double>(failed) /
       static_cast<double>(std::max<std::uint64_t>(1, result.failed + result.completed));
   if (!(failed_share > max_failed)) return false;
-  err << "error: " << result.failed << " flights failed, more than study.max_failed (" << max_failed
+  err << "error: " << failed << " flights failed, more than study.max_failed (" << max_failed
       << ") allows; replay them with --sample:";
   int listed = 0;
   for (std::size_t row = 0; row < result.columns.rows() && listed < 10; ++row)
-    if (result.columns.status[row] != 0) {
+    if (counts(result.columns.status[row])) {
       err << ' ' << row / result.bodies;
       ++listed;
     }
-  err << (result.failed > 10 ? " ...\n" : "\n");
+  err << (failed > 10 ? " ...\n" : "\n");
   return true;
 }
 

@@ -224,6 +224,42 @@ std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
   return out;
 }
 
+double Relief::height(double east, double north) const {
+  if (nodes < 2 || !(spacing > 0.0)) return std::numeric_limits<double>::quiet_NaN();
+  const double x = (east + half_width) / spacing, y = (north + half_width) / spacing;
+  const double last = static_cast<double>(nodes - 1);
+  if (!(x >= 0.0 && x <= last && y >= 0.0 && y <= last))
+    return std::numeric_limits<double>::quiet_NaN();
+  const std::size_t i = std::min(static_cast<std::size_t>(x), nodes - 2);
+  const std::size_t j = std::min(static_cast<std::size_t>(y), nodes - 2);
+  const double fx = x - static_cast<double>(i), fy = y - static_cast<double>(j);
+  auto at = [&](std::size_t a, std::size_t b) {
+    return static_cast<double>(heights[b * nodes + a]);
+  };
+  return (1 - fx) * (1 - fy) * at(i, j) + fx * (1 - fy) * at(i + 1, j) +
+         (1 - fx) * fy * at(i, j + 1) + fx * fy * at(i + 1, j + 1);
+}
+
+Relief relief_of(const Scenario& s) {
+  Relief relief;
+  const auto* terrain = std::get_if<TerrainGround>(&s.site.ground);
+  if (terrain == nullptr || !terrain->surface) return relief;
+  const TerrainSurface& surface = *terrain->surface;
+  relief.source = s.site.terrain;
+  relief.half_width = surface.frame().half_width;
+  // Nodes no closer than 10 m (finer than a map of the footprint shows), at most kReliefNodes.
+  relief.nodes = std::clamp<std::size_t>(
+      static_cast<std::size_t>(2.0 * relief.half_width / 10.0) + 1, 2, kReliefNodes);
+  relief.spacing = 2.0 * relief.half_width / static_cast<double>(relief.nodes - 1);
+  relief.heights.resize(relief.nodes * relief.nodes);
+  for (std::size_t j = 0; j < relief.nodes; ++j)
+    for (std::size_t i = 0; i < relief.nodes; ++i)
+      relief.heights[j * relief.nodes + i] = static_cast<float>(
+          surface.height(-relief.half_width + relief.spacing * static_cast<double>(i),
+                         -relief.half_width + relief.spacing * static_cast<double>(j)));
+  return relief;
+}
+
 StudyRecord make_record(const Scenario& s, const World& world, const StudyResult& result,
                         Footprint footprint, std::uint64_t seed, int threads) {
   StudyRecord r;
@@ -250,6 +286,7 @@ StudyRecord make_record(const Scenario& s, const World& world, const StudyResult
   for (const auto& b : s.bodies) r.body_names.push_back(b.name);
   r.tolerance = s.study.tolerance;
   r.range_warnings = range_warnings(s, world, result.columns, footprint);
+  r.relief = relief_of(s);
   r.footprint = std::move(footprint);
   return r;
 }

@@ -28,6 +28,25 @@ struct RangeWarning {
   std::string text;      ///< the warning in words, with the counts
 };
 
+/// The ground under a study that is not level, as the map draws it: heights (m above mean sea
+/// level; NaN where the terrain read has none) at the nodes of a square grid of the site's frame,
+/// `nodes` a side and `spacing` m apart over east, north in [-half_width, half_width], row by row
+/// from the south-west corner. Empty on a level ground.
+struct Relief {
+  std::string source;  ///< the raster, as the scenario names it
+  std::size_t nodes = 0;
+  double half_width = 0.0, spacing = 0.0;
+  std::vector<float> heights;
+  [[nodiscard]] bool empty() const { return heights.empty(); }
+  /// The height at a point of the frame, bilinear between the nodes; NaN outside or without data.
+  [[nodiscard]] double height(double east, double north) const;
+};
+
+/// The relief of a scenario's ground (empty for a level ground): its terrain sampled on at most
+/// kReliefNodes a side over the window read.
+inline constexpr std::size_t kReliefNodes = 601;
+Relief relief_of(const Scenario& scenario);
+
 struct StudyRecord {
   std::string title, sampling;
   std::string engine_version, created, scenario_sha256, scenario_text, file;
@@ -46,6 +65,7 @@ struct StudyRecord {
   double tolerance = 0.0;  ///< study.tolerance, m
   Footprint footprint;
   std::vector<RangeWarning> range_warnings;  ///< per body, in the order of the flags
+  Relief relief;                             ///< the ground under the map (terrain only)
 };
 
 /// What identifies a run and what it counted, each with its attribute name in results files: one

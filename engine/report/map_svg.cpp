@@ -11,6 +11,7 @@
 #include "core/text.hpp"
 #include "report/footprint_report.hpp"
 #include "report/graticule.hpp"
+#include "report/relief.hpp"
 #include "report/report_files.hpp"
 #include "report/site_frame.hpp"
 
@@ -211,7 +212,13 @@ class MapWriter {
     s_ << "<rect x=\"" << kLeft << "\" y=\"" << kTop << "\" width=\"" << kPanel << "\" height=\""
        << kPanel << "\" fill=\"#f7f7f2\"/>\n";
     s_ << "<g clip-path=\"url(#panel-" << clip_id() << ")\">\n";
+    // The ground under everything else, on terrain; its heights over the impact density.
+    const ReliefDrawing relief = relief_svg(
+        r_.relief, {view_.centre_e, view_.centre_n, view_.half, kLeft, kTop, view_.scale()});
+    relief_interval_ = relief.interval;
+    s_ << relief.ground;
     density();
+    s_ << relief.labels;
     grid_lines();
     figures();
     zones();
@@ -554,7 +561,32 @@ class MapWriter {
        << "\" font-size=\"11\" text-anchor=\"end\">" << printf_text("%.1e", peak_) << "</text>\n";
     s_ << "<text x=\"" << x << "\" y=\"" << y + 44
        << "\" font-size=\"11\">objects per m\u00b2 per release (log scale)</text>\n";
+    if (relief_interval_ > 0.0) relief_legend(x, y + 70);
     s_ << "</g>\n";
+  }
+
+  // The legend's entry for the ground, on terrain: the contour interval and the raster's name.
+  void relief_legend(double x, double y) {
+    s_ << "<text x=\"" << x << "\" y=\"" << y << "\" font-weight=\"bold\">Ground</text>\n";
+    y += 18;
+    s_ << "<line x1=\"" << x << "\" y1=\"" << y - 4 << "\" x2=\"" << x + 22 << "\" y2=\"" << y - 4
+       << "\" stroke=\"#8a6a3f\" stroke-width=\"1.1\"/><text x=\"" << x + 30 << "\" y=\"" << y
+       << "\">" << printf_text("contours every %g m", relief_interval_) << "</text>\n";
+    y += 18;
+    s_ << "<text x=\"" << x << "\" y=\"" << y << "\" font-size=\"11\">"
+       << printf_text("labelled every %g m (m above sea level)", 5.0 * relief_interval_)
+       << "</text>\n";
+    y += 16;
+    // The raster's name as the scenario gives it, shortened to the legend's width.
+    std::string source = r_.relief.source;
+    if (source.size() > 34) {
+      std::size_t from = source.size() - 33;
+      while (from < source.size() && (static_cast<unsigned char>(source[from]) & 0xC0) == 0x80)
+        ++from;  // not inside a UTF-8 character
+      source = "\u2026" + source.substr(from);
+    }
+    s_ << "<text x=\"" << x << "\" y=\"" << y << "\" font-size=\"11\">hillshade of "
+       << escape_markup(printable(source)) << "</text>\n";
   }
 
   const StudyRecord& r_;
@@ -564,6 +596,7 @@ class MapWriter {
   View view_{};
   Graticule graticule_;
   double peak_ = 0.0, low_ = 0.0;
+  double relief_interval_ = 0.0;  // m between contour lines; 0: no relief drawn
   std::ostringstream s_;
 };
 

@@ -91,9 +91,10 @@ void warn_near_edges(Scenario& s, const TerrainSurface& surface) {
     if (edge < std::max(drift, 1000.0))
       s.warnings.push_back(
           who + "its nominal impact lies " + format_number(std::round(edge)) +
-          " m from the edge of the terrain read from " + s.site.terrain +
-          ", less than its drift of " + format_number(std::round(drift)) +
-          " m: flights that come down beyond the edge count as failed (status off_terrain); " +
+          " m from the edge of the terrain read from " + s.site.terrain + ", within " +
+          (drift > 1000.0 ? "its drift of " + format_number(std::round(drift)) + " m"
+                          : std::string("1000 m")) +
+          ": flights that come down beyond the edge count as failed (status off_terrain); " +
           "widen the raster or site.terrain_reach");
   }
 }

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <limits>
 
+#include "core/errors.hpp"
 #include "footprint/figures.hpp"
 #include "store/hdf5_support.hpp"
 
@@ -404,7 +405,38 @@ void write_footprint(H5::H5File& file, const StudyRecord& r) {
   write_vector(warnings, "extreme", column(w, [](const auto& k) { return k.extreme; }));
   write_vector(warnings, "limit", column(w, [](const auto& k) { return k.limit; }));
   write_strings(warnings, "text", text);
+  // The ground under the map, on terrain only.
+  if (!r.relief.empty()) {
+    H5::Group relief = root.createGroup("relief");
+    write_attribute(relief, "source", r.relief.source);
+    write_attribute(relief, "nodes", static_cast<std::uint64_t>(r.relief.nodes));
+    write_attribute(relief, "half_width", r.relief.half_width);
+    write_attribute(relief, "spacing", r.relief.spacing);
+    write_vector(relief, "heights", r.relief.heights);
+  }
 }
+
+namespace {
+
+// The relief, checked to be a square grid of finite, positive spacing: a file that says otherwise
+// is refused rather than drawn.
+void read_relief(const H5::Group& root, const std::string& where, Relief& relief) {
+  if (!root.nameExists("relief")) return;
+  H5::Group g = root.openGroup("relief");
+  relief.source = read_string_attribute(g, "source");
+  const auto nodes = read_attribute<std::uint64_t>(g, "nodes");
+  relief.half_width = read_attribute<double>(g, "half_width");
+  relief.spacing = read_attribute<double>(g, "spacing");
+  relief.heights = read_vector<float>(g, "heights");
+  if (nodes < 2 || nodes > kReliefNodes || relief.heights.size() != nodes * nodes ||
+      !(relief.spacing > 0.0) || !(relief.half_width > 0.0) ||
+      std::abs(relief.spacing * static_cast<double>(nodes - 1) - 2.0 * relief.half_width) >
+          1e-6 * relief.half_width)
+    throw InputFileError(where + ": the relief of the footprint is not a square grid");
+  relief.nodes = static_cast<std::size_t>(nodes);
+}
+
+}  // namespace
 
 void read_footprint(const H5::Group& file, StudyRecord& r) {
   H5::Group root = file.openGroup("footprint");
@@ -457,6 +489,7 @@ void read_footprint(const H5::Group& file, StudyRecord& r) {
   for (std::size_t k = 0; k < wgroup.size(); ++k)
     r.range_warnings.push_back(
         {wgroup[k], kind.at(k), wcount.at(k), wrows.at(k), extreme.at(k), limit.at(k), text.at(k)});
+  read_relief(root, r.file.empty() ? std::string("results file") : r.file, r.relief);
 }
 
 }  // namespace strewn

@@ -7,11 +7,14 @@
 #include <GeographicLib/LocalCartesian.hpp>
 #include <array>
 #include <cmath>
+#include <filesystem>
 #include <fstream>
+#include <iterator>
 #include <memory>
 #include <string>
 #include <vector>
 
+#include "command_line.hpp"
 #include "core/constants.hpp"
 #include "core/errors.hpp"
 #include "flight/flight.hpp"
@@ -19,6 +22,7 @@
 #include "sampling/input_sampler.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/world.hpp"
+#include "store/results_file.hpp"
 #include "study/study.hpp"
 #include "support.hpp"
 
@@ -303,6 +307,52 @@ TEST(TerrainGround, AReleaseHeightIsAboveTheTerrainUnderTheReleasePoint) {
   }
 }
 
+// A study on terrain keeps the ground it landed on in its results file (footprint/relief), and
+// its map draws it: the hillshade and contour lines under the impacts, the legend naming the
+// raster; a study on a level ground draws none.
+TEST(TerrainGround, TheResultsKeepTheReliefAndTheMapDrawsIt) {
+  const test::ScratchFolder dir("terrain-map");
+  test::write_geotiff(
+      (dir / "hill.tif").string(),
+      {300,
+       300,
+       {kLongitude - 0.06, 0.0004, 0.0, kLatitude + 0.045, 0.0, -0.0003},
+       "EPSG:4326",
+       [](int i, int j) {
+         return 600.0 +
+                250.0 * std::exp(-(std::pow(i - 170.0, 2) + std::pow(j - 150.0, 2)) / 2000.0);
+       },
+       {},
+       "m"});
+  const std::string release = "altitude = 1500.0\n";
+  for (const bool terrain : {true, false}) {
+    const std::string name = terrain ? "hill" : "level";
+    const std::string scenario = (dir / (name + ".toml")).string();
+    std::ofstream(scenario) << scenario_over(
+        terrain ? "terrain = \"hill.tif\"\n" : "ground = 600.0\n", release);
+    const std::string h5 = (dir / (name + ".h5")).string(), svg = (dir / (name + ".svg")).string();
+    ASSERT_EQ(test::run({"run", scenario, "-n", "200", "-o", h5, "--quiet"}).status, 0);
+    const ResultsFile file = read_results(h5, false);
+    EXPECT_EQ(file.record.relief.empty(), !terrain);
+    ASSERT_EQ(test::run({"report", h5, "--svg", svg}).status, 0);
+    std::ifstream in(svg);
+    const std::string map((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    EXPECT_EQ(map.find("class=\"relief\"") != std::string::npos, terrain);
+    EXPECT_EQ(map.find("data:image/png;base64,") != std::string::npos, terrain);
+    EXPECT_EQ(map.find("data-level=") != std::string::npos, terrain);
+    EXPECT_EQ(map.find("hillshade of hill.tif") != std::string::npos, terrain);
+    if (terrain) {
+      // The relief read back is the terrain under the frame: the hill's top is 850 m.
+      const Relief& r = file.record.relief;
+      float top = 0.0f;
+      for (const float h : r.heights)
+        if (!std::isnan(h)) top = std::max(top, h);
+      EXPECT_NEAR(top, 850.0f, 1.0f);
+      EXPECT_EQ(r.source, "hill.tif");
+    }
+  }
+}
+
 // Rasters that cannot serve, and terrain keys that do not go together, are refused when the
 // scenario is read, each with its key.
 TEST(TerrainGround, BadTerrainIsRefusedWithItsKey) {
@@ -326,6 +376,22 @@ TEST(TerrainGround, BadTerrainIsRefusedWithItsKey) {
                        [](int, int) { return 1000.0; },
                        {},
                        "ft"});
+  test::write_geotiff((dir / "empty.tif").string(),
+                      {200,
+                       200,
+                       {kLongitude - 0.05, 0.0005, 0.0, kLatitude + 0.05, 0.0, -0.0005},
+                       "EPSG:4326",
+                       [](int, int) { return -9999.0; },
+                       -9999.0,
+                       "m"});
+  test::write_geotiff((dir / "local.tif").string(),
+                      {200,
+                       200,
+                       {-5000.0, 50.0, 0.0, 5000.0, 0.0, -50.0},
+                       "LOCAL_CS[\"an engineering grid\",UNIT[\"metre\",1]]",
+                       [](int, int) { return 100.0; },
+                       {},
+                       "m"});
   const std::string release = "altitude = 2500.0\n";
   struct Case {
     std::string site, release, key, words;
@@ -336,6 +402,8 @@ TEST(TerrainGround, BadTerrainIsRefusedWithItsKey) {
            {"terrain = \"nocrs.tif\"\n", release, "site.terrain", "reference system"},
            {"terrain = \"far.tif\"\n", release, "site.terrain", "does not cover the site"},
            {"terrain = \"feet.tif\"\n", release, "site.terrain", "not in metres"},
+           {"terrain = \"empty.tif\"\n", release, "site.terrain", "no data only"},
+           {"terrain = \"local.tif\"\n", release, "site.terrain", "not related to WGS 84"},
            {"terrain = \"far.tif\"\nground = 10.0\n", release, "site.ground", "terrain"},
            {"ground = 10.0\n", "altitude = 900.0\nheight_above_ground = 800.0\n",
             "release.altitude", "not both"},
@@ -349,6 +417,51 @@ TEST(TerrainGround, BadTerrainIsRefusedWithItsKey) {
       EXPECT_NE(message.find(c.words), std::string::npos) << message;
     }
   }
+  // `run` refuses it too before any flight, with status 2, and writes nothing.
+  const std::string scenario = (dir / "missing.toml").string();
+  std::ofstream(scenario) << scenario_over("terrain = \"missing.tif\"\n", release);
+  const std::string h5 = (dir / "missing.h5").string();
+  const test::CommandResult r = test::run({"run", scenario, "-n", "100", "-o", h5, "--quiet"});
+  EXPECT_EQ(r.status, 2);
+  EXPECT_NE(r.err.find("site.terrain"), std::string::npos) << r.err;
+  EXPECT_FALSE(std::filesystem::exists(h5));
+}
+
+// A raster that covers little more than the release: `check` warns that the nominal footprint
+// reaches the edge of the terrain, and a study counts the flights that come down beyond it as
+// failed (status off_terrain), with their number in the warnings.
+TEST(TerrainGround, FlightsBeyondTheTerrainAreCountedAndNamed) {
+  const test::ScratchFolder dir("terrain-edge");
+  // About 330 m east and west of the origin: the bundles land about 500 m east of it.
+  test::write_geotiff((dir / "small.tif").string(),
+                      {8,
+                       8,
+                       {kLongitude - 0.004, 0.001, 0.0, kLatitude + 0.003, 0.0, -0.00075},
+                       "EPSG:4326",
+                       [](int, int) { return 540.0; },
+                       {},
+                       "m"});
+  const std::string text = scenario_over("terrain = \"small.tif\"\n", "altitude = 1500.0\n");
+  const Scenario s = parse_scenario(text, (dir / "edge.toml").string());
+  ASSERT_FALSE(s.warnings.empty());
+  EXPECT_NE(s.warnings[0].find("beyond the terrain"), std::string::npos) << s.warnings[0];
+  const std::string scenario = (dir / "edge.toml").string();
+  std::ofstream(scenario) << text;
+  const std::string h5 = (dir / "edge.h5").string();
+  const test::CommandResult r =
+      test::run({"run", scenario, "-n", "200", "-o", h5, "--quiet", "--json"});
+  ASSERT_EQ(r.status, 0) << r.err;
+  const ResultsFile file = read_results(h5, true);
+  std::uint64_t off = 0;
+  for (const auto status : file.columns.status)
+    off += status == static_cast<std::uint8_t>(FlightStatus::off_terrain);
+  EXPECT_GT(off, 150u);
+  EXPECT_EQ(file.record.failed, off);
+  bool named = false;
+  for (const auto& w : file.record.range_warnings)
+    named = named || (w.kind == "off_terrain" && w.count == off);
+  EXPECT_TRUE(named);
+  EXPECT_NE(r.out.find("status off_terrain; counted as failed"), std::string::npos);
 }
 
 }  // namespace
