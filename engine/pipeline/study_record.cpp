@@ -274,7 +274,7 @@ StudyRecord make_record(const Scenario& s, const World& world, const StudyResult
   r.threads = threads;
   r.latitude = s.site.latitude;
   r.longitude = s.site.longitude;
-  r.ground = s.site.ground_level();
+  r.ground = s.site.frame_height();
   r.release = {s.release.east.nominal(), s.release.north.nominal()};
   // Above mean sea level: a height above the ground is taken above the ground under the nominal
   // release point.

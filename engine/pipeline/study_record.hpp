@@ -52,10 +52,10 @@ struct StudyRecord {
   std::string engine_version, created, scenario_sha256, scenario_text, file;
   std::uint64_t seed = 0, samples = 0, completed = 0, failed = 0;
   int threads = 1;
-  int ranks = 1;                                       ///< MPI ranks of the run
-  std::optional<double> latitude, longitude;           ///< the site's WGS84 origin, degrees
-  double ground = 0.0;                                 ///< m above mean sea level
-  PlanePoint release;                                  ///< nominal release point, m
+  int ranks = 1;                              ///< MPI ranks of the run
+  std::optional<double> latitude, longitude;  ///< the site's WGS84 origin, degrees
+  double ground = 0.0;  ///< m: the frame origin's height (SiteSpec::frame_height)
+  PlanePoint release;   ///< nominal release point, m
   double release_altitude = 0.0, release_track = 0.0;  ///< m, degrees from north
   std::optional<double> target_width;
   std::uint64_t max_samples = 0;

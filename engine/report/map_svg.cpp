@@ -577,10 +577,10 @@ class MapWriter {
        << printf_text("labelled every %g m (m above sea level)", 5.0 * relief_interval_)
        << "</text>\n";
     y += 16;
-    // The raster's name as the scenario gives it, shortened to the legend's width.
-    std::string source = r_.relief.source;
-    if (source.size() > 34) {
-      std::size_t from = source.size() - 33;
+    // The raster's file name (its folder left out), shortened to the legend's width.
+    std::string source = r_.relief.source.substr(r_.relief.source.find_last_of('/') + 1);
+    if (source.size() > 28) {
+      std::size_t from = source.size() - 27;
       while (from < source.size() && (static_cast<unsigned char>(source[from]) & 0xC0) == 0x80)
         ++from;  // not inside a UTF-8 character
       source = "\u2026" + source.substr(from);

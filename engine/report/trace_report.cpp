@@ -202,6 +202,10 @@ void write_trace_text(std::ostream& out, const TraceRecord& t) {
         << fixed(r.position.x(), 2) << " m, north " << fixed(r.position.y(), 2) << " m, altitude "
         << fixed(r.position.z(), 2) << " m\n";
   }
+  // Where the release was: above the ground under it (given as such or not).
+  const Vec3& release = t.inputs.release.position;
+  out << "release   altitude " << fixed(release.z(), 1) << " m above mean sea level, "
+      << fixed(height_above_ground(t, release), 1) << " m above the ground under it\n";
   if (!std::isnan(r.deploy_time))
     out << "canopy    deployed at " << fixed(r.deploy_time, 2) << " s\n";
   const auto& rec = t.recorder;

@@ -153,6 +153,11 @@ class Loader {
       if (keys[k].file) {  // a raster, read once the rest of the scenario is known
         values[k] = std::numeric_limits<double>::quiet_NaN();
         if (auto file = site.text(keys[k].key, {}, keys[k].required)) {
+          if (file->empty()) {
+            diagnostics_.add(site.key_path(keys[k].key), site.line_of(keys[k].key),
+                             "is empty: give the path of an elevation raster");
+            continue;
+          }
           scenario_.site.terrain = *file;
           scenario_.site.terrain_path = read_from(*file);
           terrain_line_ = site.line_of(keys[k].key);

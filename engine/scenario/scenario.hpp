@@ -32,6 +32,12 @@ struct SiteSpec {
   /// The ground's lowest altitude, m above mean sea level (for a level ground its one altitude):
   /// what still takes the ground as one number (DEVELOPERS.md, "A ground").
   [[nodiscard]] double ground_level() const { return lowest_ground(ground); }
+  /// The height (m above the WGS 84 ellipsoid) of the local frame's origin, where GeographicLib's
+  /// LocalCartesian turns east/north into latitudes and longitudes: a level ground's altitude,
+  /// and 0 on terrain (where the raster's posts were placed on the frame: terrain/).
+  [[nodiscard]] double frame_height() const {
+    return std::holds_alternative<LevelGround>(ground) ? ground_level() : 0.0;
+  }
 };
 
 struct MediumSpec {

@@ -4,6 +4,7 @@
 #include <cpl_error.h>
 #include <gdal.h>
 #include <ogr_srs_api.h>
+#include <sys/stat.h>
 
 #include <GeographicLib/LocalCartesian.hpp>
 #include <algorithm>
@@ -138,9 +139,13 @@ PostHeights read_window(const std::string& path, GDALDatasetH dataset, GDALRaste
                  ")");
     for (std::size_t i = 0; i < heights.columns; ++i) {
       const double v = line[i];
-      heights.heights[j * heights.columns + i] = (has_no_data && v == no_data) || std::isnan(v)
-                                                     ? std::nanf("")
-                                                     : static_cast<float>(v * scale + offset);
+      // No data, and heights no air of strewn's covers (not finite, or outside -5000 .. 86000
+      // m: a damaged post), are no height: a flight that comes down there is off the terrain.
+      const double h = v * scale + offset;
+      heights.heights[j * heights.columns + i] =
+          (has_no_data && v == no_data) || !std::isfinite(h) || h < -5000.0 || h > 86000.0
+              ? std::nanf("")
+              : static_cast<float>(h);
     }
   }
   for (std::size_t k = 0; k < frame.column.size(); ++k) {
@@ -152,12 +157,51 @@ PostHeights read_window(const std::string& path, GDALDatasetH dataset, GDALRaste
 
 }  // namespace
 
+namespace {
+
+// The drivers a scenario's raster may be opened with: every raster driver GDAL has but those
+// that read other files or memory by name (a virtual raster may point at any file, at memory
+// through MEM:::, or at a URL): a shared scenario must not make strewn read those.
+const std::vector<std::string>& allowed_drivers() {
+  static const std::vector<std::string> names = [] {
+    std::vector<std::string> out;
+    for (int k = 0; k < GDALGetDriverCount(); ++k) {
+      GDALDriverH driver = GDALGetDriver(k);
+      const std::string name = GDALGetDriverShortName(driver);
+      if (GDALGetMetadataItem(driver, GDAL_DCAP_RASTER, nullptr) == nullptr) continue;
+      if (name == "VRT" || name == "MEM" || name == "DERIVED" || name == "GTI") continue;
+      out.push_back(name);
+    }
+    return out;
+  }();
+  return names;
+}
+
+// A raster is a regular file that exists: not a FIFO (whose open would wait for a writer), a
+// device, a folder or one of GDAL's special names (/vsi..., MEM:::, a URL).
+void check_regular_file(const std::string& path) {
+  if (path.empty()) throw InputFileError("(empty): names no elevation raster");
+  struct stat status {};
+  if (::stat(path.c_str(), &status) != 0)
+    throw InputFileError(path + ": does not exist or cannot be reached");
+  if (!S_ISREG(status.st_mode))
+    throw InputFileError(path +
+                         ": is not a regular file (a folder, device or pipe cannot be "
+                         "an elevation raster)");
+}
+
+}  // namespace
+
 TerrainSurface read_terrain(const TerrainRequest& r) {
   static std::once_flag registered;
   std::call_once(registered, [] { GDALAllRegister(); });
+  check_regular_file(r.path);
   const QuietGdal quiet;
-  const std::unique_ptr<void, DatasetClose> dataset(
-      GDALOpenEx(r.path.c_str(), GDAL_OF_RASTER | GDAL_OF_READONLY, nullptr, nullptr, nullptr));
+  std::vector<const char*> drivers;
+  for (const auto& name : allowed_drivers()) drivers.push_back(name.c_str());
+  drivers.push_back(nullptr);
+  const std::unique_ptr<void, DatasetClose> dataset(GDALOpenEx(
+      r.path.c_str(), GDAL_OF_RASTER | GDAL_OF_READONLY, drivers.data(), nullptr, nullptr));
   if (!dataset) refuse(r.path, "cannot be read as an elevation raster");
   if (GDALGetRasterCount(dataset.get()) < 1) refuse(r.path, "holds no band of heights");
   double transform[6] = {}, inverse[6] = {};

@@ -8,7 +8,7 @@
 
 #include <cmath>
 #include <numbers>
-#include <regex>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -44,21 +44,22 @@ TEST(Relief, ContourLinesOfAPlaneLieOnItsLevels) {
   // Heights under the view run from 500 + 0.1 (-900) + 0.05 (-1050) to 500 + 0.1 1100 +
   // 0.05 950, a range of 300 m: 20 m apart (about fifteen lines).
   EXPECT_EQ(d.interval, 20.0);
-  const std::regex path("<path data-level=\"([-0-9.e+]+)\"[^>]*d=\"([^\"]+)\"");
-  const std::regex point("[ML]([-0-9.]+) ([-0-9.]+)");
+  // Each line is <path data-level="L" ... d="M x y L x y ...">.
   int lines = 0, points = 0;
-  for (auto p = std::sregex_iterator(d.ground.begin(), d.ground.end(), path);
-       p != std::sregex_iterator(); ++p) {
-    const double level = std::stod((*p)[1]);
+  const std::string level_mark = "<path data-level=\"", shape_mark = " d=\"";
+  for (auto at = d.ground.find(level_mark); at != std::string::npos;
+       at = d.ground.find(level_mark, at + 1)) {
+    const double level = std::stod(d.ground.substr(at + level_mark.size()));
     EXPECT_EQ(std::fmod(level, 20.0), 0.0) << level;
     ++lines;
-    const std::string shape = (*p)[2];
-    for (auto q = std::sregex_iterator(shape.begin(), shape.end(), point);
-         q != std::sregex_iterator(); ++q) {
-      const double east =
-          kView.centre_east - kView.half + (std::stod((*q)[1]) - kView.left) / kView.scale;
-      const double north =
-          kView.centre_north + kView.half - (std::stod((*q)[2]) - kView.top) / kView.scale;
+    const auto shape_at = d.ground.find(shape_mark, at) + shape_mark.size();
+    std::istringstream shape(d.ground.substr(shape_at, d.ground.find('"', shape_at) - shape_at));
+    char command = 0;
+    double x = 0.0, y = 0.0;
+    while (shape >> command >> x >> y) {
+      ASSERT_TRUE(command == 'M' || command == 'L') << command;
+      const double east = kView.centre_east - kView.half + (x - kView.left) / kView.scale;
+      const double north = kView.centre_north + kView.half - (y - kView.top) / kView.scale;
       // GDAL carries each line on to the raster's border, half a node beyond the view, with
       // the heights of the nearest nodes: those ends lie under the panel's frame, unseen.
       if (std::abs(east - kView.centre_east) > kView.half ||

@@ -3,6 +3,7 @@
 // same height puts them; alike whether the raster is geographic or projected; ending off the
 // terrain where it has no height; and rasters that cannot serve refused at loading with the key.
 #include <gtest/gtest.h>
+#include <sys/stat.h>
 
 #include <GeographicLib/LocalCartesian.hpp>
 #include <array>
@@ -25,6 +26,7 @@
 #include "store/results_file.hpp"
 #include "study/study.hpp"
 #include "support.hpp"
+#include "terrain/elevation_raster.hpp"
 
 namespace strewn {
 namespace {
@@ -353,6 +355,30 @@ TEST(TerrainGround, TheResultsKeepTheReliefAndTheMapDrawsIt) {
   }
 }
 
+// Posts that hold no height a body could meet (infinite, or beyond the altitudes of strewn's
+// air: a damaged post) are no height, like no data (found by a tester: flights "landed" on them
+// with an infinite ground).
+TEST(TerrainGround, PostsOutsideTheAirHaveNoHeight) {
+  const test::ScratchFolder dir("terrain-spikes");
+  const std::string path = (dir / "spikes.tif").string();
+  test::write_geotiff(path, {40,
+                             40,
+                             {kLongitude - 0.02, 0.001, 0.0, kLatitude + 0.015, 0.0, -0.00075},
+                             "EPSG:4326",
+                             [](int i, int j) {
+                               if (i == 20 && j == 20)
+                                 return std::numeric_limits<double>::infinity();
+                               if (i == 21 && j == 20) return 1e30;
+                               if (i == 22 && j == 20) return -6000.0;
+                               return 540.0;
+                             },
+                             {},
+                             "m"});
+  const TerrainSurface surface = read_terrain({path, kLatitude, kLongitude, 1000.0});
+  EXPECT_EQ(surface.highest(), 540.0);
+  EXPECT_EQ(surface.lowest(), 540.0);
+}
+
 // Rasters that cannot serve, and terrain keys that do not go together, are refused when the
 // scenario is read, each with its key.
 TEST(TerrainGround, BadTerrainIsRefusedWithItsKey) {
@@ -392,12 +418,27 @@ TEST(TerrainGround, BadTerrainIsRefusedWithItsKey) {
                        [](int, int) { return 100.0; },
                        {},
                        "m"});
+  // Found by a tester: a FIFO made the reading wait for ever; a virtual raster may point at
+  // memory or any file (refused as a format).
+  ASSERT_EQ(::mkfifo((dir / "fifo.tif").string().c_str(), 0600), 0);
+  std::ofstream((dir / "far.vrt").string())
+      << "<VRTDataset rasterXSize=\"10\" rasterYSize=\"10\"><SRS>EPSG:4326</SRS>"
+         "<GeoTransform>-33.8, 0.02, 0, 41.4, 0, -0.02</GeoTransform>"
+         "<VRTRasterBand dataType=\"Float32\" band=\"1\"><SimpleSource><SourceFilename>"
+      << (dir / "far.tif").string()
+      << "</SourceFilename><SourceBand>1</SourceBand></SimpleSource></VRTRasterBand></VRTDataset>";
   const std::string release = "altitude = 2500.0\n";
   struct Case {
     std::string site, release, key, words;
   };
   for (const Case& c : std::vector<Case>{
-           {"terrain = \"missing.tif\"\n", release, "site.terrain", "cannot be read"},
+           {"terrain = \"missing.tif\"\n", release, "site.terrain", "does not exist"},
+           {"terrain = \"\"\n", release, "site.terrain", "is empty"},
+           {"terrain = \"fifo.tif\"\n", release, "site.terrain", "not a regular file"},
+           {"terrain = \".\"\n", release, "site.terrain", "not a regular file"},
+           {"terrain = \"far.vrt\"\n", release, "site.terrain", "cannot be read"},
+           {"terrain = \"MEM:::DATAPOINTER=0x1000,PIXELS=10,LINES=10\"\n", release, "site.terrain",
+            "does not exist"},
            {"terrain = \"junk.tif\"\n", release, "site.terrain", "cannot be read"},
            {"terrain = \"nocrs.tif\"\n", release, "site.terrain", "reference system"},
            {"terrain = \"far.tif\"\n", release, "site.terrain", "does not cover the site"},

@@ -25,7 +25,7 @@ struct TerrainGround {
   static constexpr std::array<GroundKey, 2> keys{
       {{"terrain", kAny, true, 0.0, true},
        {"terrain_reach",
-        Bounds{0.0, 1.0e6, false, false, "a distance in [0, 1000000] m (0: worked out)"}, false,
+        Bounds{0.0, 1.0e5, false, false, "a distance in [0, 100000] m (0: worked out)"}, false,
         0.0}}};
   static constexpr bool level = false;
 
