@@ -232,17 +232,7 @@ int run_replay(const RunArguments& a, const SampleModel& model, std::ostream& ou
          {"status", to_string(r.status)},
          {"canopy", to_string(row.inputs.body.canopy_state())},
          // No impact for a flight that did not land: where it ended.
-         {"impact", r.status == FlightStatus::landed
-                        ? nlohmann::json{{"time", r.time},
-                                         {"east", r.position.x()},
-                                         {"north", r.position.y()},
-                                         {"speed", r.speed},
-                                         {"energy", r.energy},
-                                         {"angle", r.angle},
-                                         {"ground", r.position.z()},
-                                         {"slope", r.slope},
-                                         {"surface_angle", r.surface_angle}}
-                        : nlohmann::json(nullptr)},
+         {"impact", r.status == FlightStatus::landed ? impact_json(r) : nlohmann::json(nullptr)},
          {"end", r.status == FlightStatus::landed ? nlohmann::json(nullptr)
                                                   : nlohmann::json{{"time", r.time},
                                                                    {"east", r.position.x()},

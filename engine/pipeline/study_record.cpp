@@ -8,6 +8,7 @@
 
 #include "core/text.hpp"
 #include "core/version.hpp"
+#include "flight/grounds/terrain_surface.hpp"
 #include "pipeline/nominal_flight.hpp"
 
 namespace strewn {
@@ -193,51 +194,29 @@ std::vector<RangeWarning> range_warnings(const Scenario& s, const World& world,
       }
       out.push_back(std::move(w));
     }
-    if (const std::uint64_t off = tally[b][kOffTerrainTally].count) {
-      RangeWarning w{s.bodies[b].name,
-                     "off_terrain",
-                     off,
-                     rows[b],
-                     std::numeric_limits<double>::quiet_NaN(),
-                     std::numeric_limits<double>::quiet_NaN(),
-                     ""};
-      w.text = counted(off) +
-               "came down where the terrain read has no height (beyond the raster or the reach "
-               "read, site.terrain_reach, or on posts without data): where they land is not "
-               "known (status off_terrain; counted as failed)";
-      out.push_back(std::move(w));
-    }
-    if (const std::uint64_t floats = tally[b][kFloatsTally].count) {
-      RangeWarning w{s.bodies[b].name,
-                     "floats",
-                     floats,
-                     rows[b],
-                     std::numeric_limits<double>::quiet_NaN(),
-                     std::numeric_limits<double>::quiet_NaN(),
-                     ""};
-      w.text = counted(floats) +
-               "the body is lighter than the medium at the ground: it would rise or hover, never "
-               "land (status floats; counted as failed)";
-      out.push_back(std::move(w));
-    }
+    // The statuses a body's flights ended with instead of landing, each with its count.
+    auto status_warning = [&](std::size_t tally_index, const char* kind, const char* words) {
+      const std::uint64_t count = tally[b][tally_index].count;
+      if (count == 0) return;
+      constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+      out.push_back({s.bodies[b].name, kind, count, rows[b], kNaN, kNaN, counted(count) + words});
+    };
+    status_warning(kOffTerrainTally, "off_terrain",
+                   "came down where the terrain read has no height (beyond the raster or the "
+                   "reach read, site.terrain_reach, or on posts without data): where they land is "
+                   "not known (status off_terrain; counted as failed)");
+    status_warning(kFloatsTally, "floats",
+                   "the body is lighter than the medium at the ground: it would rise or hover, "
+                   "never land (status floats; counted as failed)");
   }
   return out;
 }
 
 double Relief::height(double east, double north) const {
-  if (nodes < 2 || !(spacing > 0.0)) return std::numeric_limits<double>::quiet_NaN();
-  const double x = (east + half_width) / spacing, y = (north + half_width) / spacing;
-  const double last = static_cast<double>(nodes - 1);
-  if (!(x >= 0.0 && x <= last && y >= 0.0 && y <= last))
-    return std::numeric_limits<double>::quiet_NaN();
-  const std::size_t i = std::min(static_cast<std::size_t>(x), nodes - 2);
-  const std::size_t j = std::min(static_cast<std::size_t>(y), nodes - 2);
-  const double fx = x - static_cast<double>(i), fy = y - static_cast<double>(j);
-  auto at = [&](std::size_t a, std::size_t b) {
-    return static_cast<double>(heights[b * nodes + a]);
-  };
-  return (1 - fx) * (1 - fy) * at(i, j) + fx * (1 - fy) * at(i + 1, j) +
-         (1 - fx) * fy * at(i, j + 1) + fx * fy * at(i + 1, j + 1);
+  if (!(spacing > 0.0)) return std::numeric_limits<double>::quiet_NaN();
+  std::array<double, 2> gradient{};
+  return bilinear_on_grid(heights, nodes, nodes, (east + half_width) / spacing,
+                          (north + half_width) / spacing, gradient);
 }
 
 Relief relief_of(const Scenario& s) {

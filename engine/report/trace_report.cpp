@@ -100,6 +100,12 @@ std::string general(double v) {
 }
 }  // namespace
 
+nlohmann::json impact_json(const FlightResult& r) {
+  return {{"time", r.time},           {"east", r.position.x()}, {"north", r.position.y()},
+          {"speed", r.speed},         {"energy", r.energy},     {"angle", r.angle},
+          {"ground", r.position.z()}, {"slope", r.slope},       {"surface_angle", r.surface_angle}};
+}
+
 nlohmann::json trace_json(const TraceRecord& t) {
   const auto& r = t.result;
   const auto [downrange, crossrange] = track_offsets(t);
@@ -113,18 +119,10 @@ nlohmann::json trace_json(const TraceRecord& t) {
                (t.scenario->release.has_burst ? ", no burst velocity" : "");
   j["status"] = to_string(r.status);
   if (r.status == FlightStatus::landed) {
-    j["impact"] = {{"time", r.time},
-                   {"east", r.position.x()},
-                   {"north", r.position.y()},
-                   {"speed", r.speed},
-                   {"energy", r.energy},
-                   {"angle", r.angle},
-                   {"ground", r.position.z()},
-                   {"slope", r.slope},
-                   {"surface_angle", r.surface_angle},
-                   {"velocity", {r.velocity.x(), r.velocity.y(), r.velocity.z()}},
-                   {"downrange", downrange},
-                   {"crossrange", crossrange}};
+    j["impact"] = impact_json(r);
+    j["impact"]["velocity"] = {r.velocity.x(), r.velocity.y(), r.velocity.z()};
+    j["impact"]["downrange"] = downrange;
+    j["impact"]["crossrange"] = crossrange;
     j["end"] = nullptr;
   } else {
     // No impact: where and when the flight ended instead.

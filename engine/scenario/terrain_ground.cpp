@@ -80,8 +80,7 @@ void warn_near_edges(Scenario& s, const TerrainSurface& surface) {
     if (r.status == FlightStatus::off_terrain) {
       s.warnings.push_back(who + "its nominal flight comes down beyond the terrain read from " +
                            s.site.terrain + " (reach " +
-                           format_number(std::visit([](const auto& g) { return g.values().back(); },
-                                                    s.site.ground)) +
+                           format_number(std::get<TerrainGround>(s.site.ground).reach) +
                            " m); flights that do count as failed");
       continue;
     }

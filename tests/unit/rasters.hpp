@@ -55,29 +55,8 @@ inline void write_geotiff(const std::string& path, const RasterSpec& spec) {
   GDALClose(dataset);
 }
 
-// A point (x, y in traditional GIS order: longitude first) carried from one reference system to
-// another ("WGS84" or any definition OSRSetFromUserInput reads) by GDAL.
-inline std::array<double, 2> carried(const std::string& from, const std::string& to, double x,
-                                     double y) {
-  const auto reference = [](const std::string& definition) {
-    OGRSpatialReferenceH r = OSRNewSpatialReference(nullptr);
-    if (definition == "WGS84")
-      OSRSetWellKnownGeogCS(r, "WGS84");
-    else
-      OSRSetFromUserInput(r, definition.c_str());
-    OSRSetAxisMappingStrategy(r, OAMS_TRADITIONAL_GIS_ORDER);
-    return r;
-  };
-  OGRSpatialReferenceH source = reference(from), target = reference(to);
-  OGRCoordinateTransformationH transformation = OCTNewCoordinateTransformation(source, target);
-  OCTTransform(transformation, 1, &x, &y, nullptr);
-  OCTDestroyCoordinateTransformation(transformation);
-  OSRDestroySpatialReference(source);
-  OSRDestroySpatialReference(target);
-  return {x, y};
-}
-
-// Many points carried at once (x, y in traditional GIS order), in place.
+// Points (x, y in traditional GIS order: longitude first) carried from one reference system to
+// another ("WGS84" or any definition OSRSetFromUserInput reads) by GDAL, in place.
 inline void carry_all(const std::string& from, const std::string& to, std::vector<double>& x,
                       std::vector<double>& y) {
   const auto reference = [](const std::string& definition) {
@@ -95,6 +74,14 @@ inline void carry_all(const std::string& from, const std::string& to, std::vecto
   OCTDestroyCoordinateTransformation(transformation);
   OSRDestroySpatialReference(source);
   OSRDestroySpatialReference(target);
+}
+
+// One point carried so.
+inline std::array<double, 2> carried(const std::string& from, const std::string& to, double x,
+                                     double y) {
+  std::vector<double> xs{x}, ys{y};
+  carry_all(from, to, xs, ys);
+  return {xs[0], ys[0]};
 }
 
 }  // namespace strewn::test

@@ -22,6 +22,33 @@ struct PostHeights {
   }
 };
 
+/// The value of a grid of `columns` x `rows` nodes (`values` row by row) at node coordinates
+/// (x, y), bilinear in the four nodes around it, and its gradient per node (d/dx, d/dy); NaN
+/// outside [0, columns - 1] x [0, rows - 1].
+/// The cell of a grid of `count` nodes a coordinate `at` (in node units) falls in, and where in
+/// it; false outside [0, count - 1]. The last node belongs to the cell before it.
+inline bool grid_cell(double at, std::size_t count, std::size_t& index, double& fraction) {
+  if (!(at >= 0.0) || count < 2 || at > static_cast<double>(count - 1)) return false;
+  index = std::min(static_cast<std::size_t>(at), count - 2);
+  fraction = at - static_cast<double>(index);
+  return true;
+}
+
+template <class Value>
+double bilinear_on_grid(const std::vector<Value>& values, std::size_t columns, std::size_t rows,
+                        double x, double y, std::array<double, 2>& gradient) {
+  std::size_t i = 0, j = 0;
+  double fx = 0.0, fy = 0.0;
+  if (!grid_cell(x, columns, i, fx) || !grid_cell(y, rows, j, fy))
+    return std::numeric_limits<double>::quiet_NaN();
+  const auto at = [&](std::size_t a, std::size_t b) {
+    return static_cast<double>(values[b * columns + a]);
+  };
+  const double h00 = at(i, j), h10 = at(i + 1, j), h01 = at(i, j + 1), h11 = at(i + 1, j + 1);
+  gradient = {(1 - fy) * (h10 - h00) + fy * (h11 - h01), (1 - fx) * (h01 - h00) + fx * (h11 - h10)};
+  return (1 - fx) * (1 - fy) * h00 + fx * (1 - fy) * h10 + (1 - fx) * fy * h01 + fx * fy * h11;
+}
+
 /// Where the points of the site's frame fall among the posts: the post coordinates (column, row)
 /// of the nodes of a square lattice over east, north in [-half_width, half_width], `spacing` m
 /// apart, row by row from the south-west corner. Between nodes the coordinates are interpolated
@@ -78,22 +105,13 @@ class TerrainSurface {
  private:
   static constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-  // The cell of a grid of `count` nodes a coordinate `x` (in node units) falls in, and where in
-  // it; false outside [0, count - 1]. The last node belongs to the cell before it.
-  static bool cell(double x, std::size_t count, std::size_t& index, double& fraction) {
-    if (!(x >= 0.0) || count < 2 || x > static_cast<double>(count - 1)) return false;
-    index = std::min(static_cast<std::size_t>(x), count - 2);
-    fraction = x - static_cast<double>(index);
-    return true;
-  }
-
   bool lattice(double east, double north, std::array<double, 2>& at,
                std::array<std::array<double, 2>, 2>& jacobian) const {
     const double x = (east + frame_.half_width) / frame_.spacing;
     const double y = (north + frame_.half_width) / frame_.spacing;
     std::size_t i = 0, j = 0;
     double fx = 0.0, fy = 0.0;
-    if (!cell(x, frame_.nodes, i, fx) || !cell(y, frame_.nodes, j, fy)) return false;
+    if (!grid_cell(x, frame_.nodes, i, fx) || !grid_cell(y, frame_.nodes, j, fy)) return false;
     const std::size_t n = frame_.nodes;
     for (int k = 0; k < 2; ++k) {
       const std::vector<double>& v = k == 0 ? frame_.column : frame_.row;
@@ -107,14 +125,7 @@ class TerrainSurface {
   }
 
   double bilinear(double column, double row, std::array<double, 2>& gradient) const {
-    std::size_t i = 0, j = 0;
-    double fx = 0.0, fy = 0.0;
-    if (!cell(column, posts_.columns, i, fx) || !cell(row, posts_.rows, j, fy)) return kNaN;
-    const double h00 = posts_.at(i, j), h10 = posts_.at(i + 1, j), h01 = posts_.at(i, j + 1),
-                 h11 = posts_.at(i + 1, j + 1);
-    gradient = {(1 - fy) * (h10 - h00) + fy * (h11 - h01),
-                (1 - fx) * (h01 - h00) + fx * (h11 - h10)};
-    return (1 - fx) * (1 - fy) * h00 + fx * (1 - fy) * h10 + (1 - fx) * fy * h01 + fx * fy * h11;
+    return bilinear_on_grid(posts_.heights, posts_.columns, posts_.rows, column, row, gradient);
   }
 
   double extreme(bool lowest) const {
