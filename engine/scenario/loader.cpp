@@ -811,6 +811,18 @@ class Loader {
                             : under ? " (the terrain under the nominal release point)"
                                     : " (the lowest terrain read)"));
     }
+    // A height above a high terrain may put the release above the atmosphere's top: the
+    // altitude, not only the height, must stay within the models' range.
+    if (r.above_ground &&
+        (r.altitude.nominal() + ground_there > kAltitude.high ||
+         r.altitude.probability_above(kAltitude.high - ground_there) > kOutsideTolerance))
+      diagnostics_.add(
+          "release.height_above_ground", line_for("release", "height_above_ground"),
+          "the release may reach " + format_number(r.altitude.nominal() + ground_there) +
+              " m above mean sea level (nominal height plus the terrain's " +
+              format_number(ground_there) + " m); the atmosphere ends at " +
+              format_number(kAltitude.high) + " m, so truncate the height with max = " +
+              format_number(kAltitude.high - ground_there));
     if (scenario_.medium.model != Medium::Kind::profile || scenario_.medium.profile.size() < 2)
       return;
     // Every release altitude a study may draw must lie within the sounding (the same share as

@@ -12,6 +12,7 @@
 #include <cmath>
 #include <memory>
 #include <mutex>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -50,8 +51,12 @@ class QuietGdal {
   QuietGdal& operator=(const QuietGdal&) = delete;
 };
 
+// GDAL's own reason is kept for the curious, cut to its first line and 200 characters: some
+// drivers return a whole reference-system definition.
 [[noreturn]] void refuse(const std::string& path, const std::string& reason) {
-  const std::string gdal = CPLGetLastErrorMsg();
+  std::string gdal = CPLGetLastErrorMsg();
+  gdal = gdal.substr(0, gdal.find_first_of("\r\n"));
+  if (gdal.size() > 200) gdal = gdal.substr(0, 197) + "...";
   throw InputFileError(path + ": " + reason + (gdal.empty() ? "" : " (GDAL: " + gdal + ")"));
 }
 
@@ -63,8 +68,10 @@ bool in_metres(std::string unit) {
 
 // The lattice over the reach: each node's place in the raster, as post coordinates of the whole
 // raster (the centre of pixel (i, j) is post (i, j); GDAL's geotransform maps pixel corners).
+// A geographic raster may count longitudes -180 .. 180 or 0 .. 360 east (as some global models
+// write them): each node's longitude is taken in the turn nearest the raster's middle column.
 FrameToPosts lattice_in_raster(const TerrainRequest& r, OGRCoordinateTransformationH to_raster,
-                               const double (&inverse)[6]) {
+                               const double (&inverse)[6], std::optional<double> middle_longitude) {
   FrameToPosts frame;
   frame.spacing = kLatticeSpacing;
   const auto half_cells = static_cast<std::size_t>(std::ceil(r.reach / kLatticeSpacing));
@@ -84,6 +91,9 @@ FrameToPosts lattice_in_raster(const TerrainRequest& r, OGRCoordinateTransformat
     }
   std::vector<int> ok(count, 0);
   OCTTransformEx(to_raster, static_cast<int>(count), x.data(), y.data(), nullptr, ok.data());
+  if (middle_longitude)
+    for (double& longitude : x)
+      longitude += 360.0 * std::round((*middle_longitude - longitude) / 360.0);
   frame.column.resize(count);
   frame.row.resize(count);
   for (std::size_t k = 0; k < count; ++k) {
@@ -223,9 +233,12 @@ TerrainSurface read_terrain(const TerrainRequest& r) {
   GDALRasterBandH band = GDALGetRasterBand(dataset.get(), 1);
   if (const char* unit = GDALGetRasterUnitType(band); unit != nullptr && !in_metres(unit))
     refuse(r.path, std::string("holds heights in \"") + unit + "\", not in metres");
-  FrameToPosts frame = lattice_in_raster(r, to_raster.get(), inverse);
   const double columns = GDALGetRasterXSize(dataset.get()),
                rows = GDALGetRasterYSize(dataset.get());
+  std::optional<double> middle_longitude;
+  if (OSRIsGeographic(raster_reference.get()))
+    middle_longitude = transform[0] + transform[1] * columns / 2.0 + transform[2] * rows / 2.0;
+  FrameToPosts frame = lattice_in_raster(r, to_raster.get(), inverse, middle_longitude);
   // The origin is the lattice's middle node.
   const std::size_t middle = (frame.nodes / 2) * frame.nodes + frame.nodes / 2;
   const double origin_column = frame.column[middle], origin_row = frame.row[middle];

@@ -23,10 +23,22 @@ install_packages() {
   DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -q --no-install-recommends "${missing[@]}"
 }
 
+# The compiler cache: a second build of the same sources, in this clone or in another one
+# (paths are taken relative to the clone, and the working folder is left out of the key), is
+# read from ~/.cache/ccache instead of compiled again. Debug information may then name the
+# other clone's folder; the objects are otherwise the same.
+compiler_cache_arguments() {
+  command -v ccache >/dev/null || return 0
+  export CCACHE_BASEDIR="$STREWN_ROOT" CCACHE_NOHASHDIR=1
+  echo -DCMAKE_CXX_COMPILER_LAUNCHER=ccache -DCMAKE_C_COMPILER_LAUNCHER=ccache
+}
+
 # Configures and builds into the folder $1 with extra CMake arguments after it.
 build_in() {
   local folder="$1"
   shift
-  cmake -S "$STREWN_ROOT" -B "$STREWN_ROOT/$folder" -G Ninja "$@" >/dev/null
+  # shellcheck disable=SC2046  # the arguments are words without blanks
+  cmake -S "$STREWN_ROOT" -B "$STREWN_ROOT/$folder" -G Ninja $(compiler_cache_arguments) "$@" \
+    >/dev/null
   cmake --build "$STREWN_ROOT/$folder" --parallel "$(nproc)"
 }

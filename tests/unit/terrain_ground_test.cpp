@@ -252,17 +252,26 @@ TEST(TerrainGround, GeographicAndProjectedRastersOfOneTerrainLandAlike) {
       "m"};
   test::write_geotiff((dir / "utm.tif").string(), projected);
   test::write_geotiff((dir / "geo.tif").string(), geographic);
+  // The same geographic raster with longitudes counted 0 .. 360 east, as some global models
+  // write them: the site's longitude -33.7 is 326.3 there (common practice).
+  test::RasterSpec east_of_greenwich = geographic;
+  east_of_greenwich.transform[0] += 360.0;
+  test::write_geotiff((dir / "geo360.tif").string(), east_of_greenwich);
   const std::string site_tail = "terrain_reach = 3000.0\n";
   const std::string release = "altitude = 1600.0\n";
   const Scenario utm = parse_scenario(scenario_over("terrain = \"utm.tif\"\n" + site_tail, release),
                                       (dir / "u.toml").string());
   const Scenario geo = parse_scenario(scenario_over("terrain = \"geo.tif\"\n" + site_tail, release),
                                       (dir / "g.toml").string());
-  const StudyColumns a = study_of(utm, 64), b = study_of(geo, 64);
+  const Scenario geo360 = parse_scenario(
+      scenario_over("terrain = \"geo360.tif\"\n" + site_tail, release), (dir / "w.toml").string());
+  const StudyColumns a = study_of(utm, 64), b = study_of(geo, 64), c = study_of(geo360, 64);
   int on_slope = 0;
   for (std::size_t i = 0; i < a.rows(); ++i) {
     ASSERT_EQ(a.status[i], static_cast<std::uint8_t>(FlightStatus::landed));
     ASSERT_EQ(b.status[i], static_cast<std::uint8_t>(FlightStatus::landed));
+    EXPECT_NEAR(b.east[i], c.east[i], 1e-6) << i;
+    EXPECT_NEAR(b.ground[i], c.ground[i], 1e-6) << i;
     EXPECT_NEAR(a.east[i], b.east[i], 0.05) << i;
     EXPECT_NEAR(a.north[i], b.north[i], 0.05) << i;
     EXPECT_NEAR(a.ground[i], b.ground[i], 0.02) << i;
@@ -306,6 +315,18 @@ TEST(TerrainGround, AReleaseHeightIsAboveTheTerrainUnderTheReleasePoint) {
     const double east = in.release.position.x();
     EXPECT_NEAR(east, error, 1e-9);
     EXPECT_NEAR(in.release.position.z(), 800.0 + 500.0 + 0.1 * east, 5e-3);
+  }
+  // A height that is within its own range but, above this 500 m ground, puts the release above
+  // the top of the U.S. Standard Atmosphere 1976 (86 km) is refused; it used to pass unchecked.
+  try {
+    (void)parse_scenario(
+        scenario_over("terrain = \"plane.tif\"\n", "height_above_ground = 85800.0\n"),
+        (dir / "high.toml").string());
+    ADD_FAILURE() << "a release at 86 300 m was accepted";
+  } catch (const ScenarioError& e) {
+    const std::string message = e.what();
+    EXPECT_NE(message.find("release.height_above_ground"), std::string::npos) << message;
+    EXPECT_NE(message.find("atmosphere ends at 86000 m"), std::string::npos) << message;
   }
 }
 
