@@ -164,7 +164,7 @@ class FlightEvents {
 
   // Mach number of a full state.
   [[nodiscard]] double mach_of(const FlightState& y) const {
-    const Air air = forces_.medium().air(y[2], forces_.conditions());
+    const Air air = forces_.air().air(y[2]);
     const Eigen::Vector2d w = forces_.wind().at(y[2]);
     const Vec3 u(y[3] - w.x(), y[4] - w.y(), y[5]);
     return u.norm() / air.sound_speed;

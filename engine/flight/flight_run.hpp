@@ -99,7 +99,7 @@ class FlightRun {
   // The exact check of the drag law at air speed `speed` at altitude z.
   void judge(double z, double speed) {
     if (!(speed > 0.0)) return;
-    const Air air = forces_.medium().air(z, forces_.conditions());
+    const Air air = forces_.air().air(z);
     const DragLaw& law = forces_.drag();
     if (!(law.coefficient(speed, air) * speed >= judged_drag_)) return;
     RegimeExtent& r = result_.regime;
@@ -169,7 +169,7 @@ double FlightRun<Ground>::remaining_time_estimate(double z) const {
   if (forces_.stage() == DragStage::body) {
     speed = forces_.terminal_speed(lowest_ground_);
   } else {
-    const double rho = forces_.medium().density(lowest_ground_, forces_.conditions());
+    const double rho = forces_.air().density(lowest_ground_);
     speed = std::sqrt(2.0 * forces_.mass() * forces_.effective_gravity(lowest_ground_) /
                       (rho * body_.canopy.drag_area));
   }
@@ -448,7 +448,7 @@ void FlightRun<Ground>::set_screen(double top) {
   const DragLaw& law = forces_.drag();
   double mu_low, mu_high, sound_low, rho_low, rho_high;
   if (medium.kind() == Medium::Kind::uniform) {
-    const Air air = medium.air(lowest_ground_, c);
+    const Air air = forces_.air().air(lowest_ground_);
     mu_low = mu_high = air.viscosity;
     sound_low = air.sound_speed;
     rho_low = rho_high = air.density;
@@ -460,8 +460,8 @@ void FlightRun<Ground>::set_screen(double top) {
     sound_low = us1976::sound_speed(cold);
     // rho = p / (R T'): pressure falls with height (a sounding's must, US76's does), so between
     // the ground and the top it lies between theirs, and T' between the coldest and warmest.
-    const double p_high = medium.pressure(lowest_ground_);
-    const double p_low = medium.pressure(std::min(screen_top_, medium.top()));
+    const double p_high = forces_.air().pressure(lowest_ground_);
+    const double p_low = forces_.air().pressure(std::min(screen_top_, medium.top()));
     constexpr double kR = constants::air_specific_gas_constant;
     rho_high = c.density_factor * p_high / (kR * cold);
     rho_low = c.density_factor * p_low / (kR * warm);

@@ -10,10 +10,10 @@ double Forces::terminal_speed(double z) const {
   if (!(weight > 0.0)) return std::numeric_limits<double>::quiet_NaN();
   if (drag_.constant_cd()) {
     // Newton's law with constant Cd: v_t = sqrt(m g_eff / (1/2 rho Cd A)); only the density.
-    const Air air{medium_.density(z, conditions_), 0.0, 0.0};
+    const Air air{medium_.density(z), 0.0, 0.0};
     return std::sqrt(weight / drag_.coefficient(1.0, air));
   }
-  const Air air = medium_.air(z, conditions_);
+  const Air air = medium_.air(z);
   if (drag_.linear()) return weight / drag_.coefficient(0.0, air);  // Stokes: k independent of v
   // Force balance k(v) v = m g_eff, solved by bracketing. The drag force grows with speed and is
   // at least the Stokes force for the diameter models (Cd Re >= 24), so the Stokes settling

@@ -25,8 +25,7 @@ enum class DragStage { body, filling, canopy };
 class Forces {
  public:
   Forces(const Body& body, const Environment& environment)
-      : medium_(*environment.medium),
-        conditions_(environment.conditions),
+      : medium_(*environment.medium, environment.conditions),
         wind_(*environment.wind),
         drag_(body.drag),
         mass_(body.mass),
@@ -62,11 +61,10 @@ class Forces {
     // density, is known earlier. So the density is multiplied in first, off that chain.
     double density, k;
     if (constant_cd_ && stage_ == DragStage::body) {  // the common case: only the density
-      density = medium_.density(z, conditions_);
+      density = medium_.density(z);
       k = (half_cd_area_per_mass_ * density) * speed;
     } else {
-      const Air air = needs_full_air_ ? medium_.air(z, conditions_)
-                                      : Air{medium_.density(z, conditions_), 0.0, 0.0};
+      const Air air = needs_full_air_ ? medium_.air(z) : Air{medium_.density(z), 0.0, 0.0};
       density = air.density;
       k = drag_coefficient(t, speed, air) * inverse_mass_;
     }
@@ -97,7 +95,7 @@ class Forces {
 
   /// Effective gravity (m/s^2, downward positive) at altitude z: buoyancy included.
   [[nodiscard]] double effective_gravity(double z) const {
-    return gravity_at(z) * (1.0 - medium_.density(z, conditions_) * inverse_body_density_);
+    return gravity_at(z) * (1.0 - medium_.density(z) * inverse_body_density_);
   }
 
   /// Terminal (settling) speed in still air at altitude z with the body's own drag, m/s;
@@ -123,14 +121,15 @@ class Forces {
   }
 
   [[nodiscard]] const DragLaw& drag() const { return drag_; }
-  [[nodiscard]] const Medium& medium() const { return medium_; }
-  [[nodiscard]] const MediumConditions& conditions() const { return conditions_; }
+  [[nodiscard]] const Medium& medium() const { return medium_.medium(); }
+  [[nodiscard]] const MediumConditions& conditions() const { return medium_.conditions(); }
+  /// The medium under this flight's conditions (hot or cold day, density factor).
+  [[nodiscard]] const ConditionedMedium& air() const { return medium_; }
   [[nodiscard]] const WindProfile& wind() const { return wind_; }
   [[nodiscard]] double mass() const { return mass_; }
 
  private:
-  const Medium& medium_;
-  MediumConditions conditions_;
+  ConditionedMedium medium_;
   const WindProfile& wind_;
   DragLaw drag_;
   double mass_, inverse_mass_, inverse_body_density_;

@@ -7,7 +7,7 @@ namespace strewn {
 void TrajectoryRecorder::record(const TrajectoryPoint& point, const Forces& forces) {
   if (!points_.empty() && points_.back().point.time == point.time) return;  // stage boundary
   const double z = point.position.z();
-  const Air air = forces.medium().air(z, forces.conditions());
+  const Air air = forces.air().air(z);
   const Eigen::Vector2d w = forces.wind().at(z);
   const Vec3 u = point.velocity - Vec3(w.x(), w.y(), 0.0);
   const double speed = u.norm();

@@ -8,6 +8,7 @@
 #include <sstream>
 
 #include "core/text.hpp"
+#include "medium/us1976.hpp"
 #include "scenario/reader.hpp"
 #include "scenario/scenario.hpp"
 #include "scenario/table_file.hpp"
@@ -251,31 +252,40 @@ class Loader {
 
   void read_profile(const std::string& file, const std::string& key, long line) {
     try {
-      const auto table = read_table_file(file, {"altitude_m", "temperature_K", "pressure_Pa"});
+      // Pressure is optional: without it the sounding is balanced hydrostatically from the
+      // standard atmosphere's pressure at its lowest level.
+      const auto table = read_table_file(file, {"altitude_m", "temperature_K", "pressure_Pa"}, 2);
+      const bool has_pressure = table.present[2];
       std::vector<SoundingLevel> levels;
       for (const auto& row : table.rows)
         levels.push_back({row.values[0], row.values[1], row.values[2]});
       for (std::size_t i = 0; i < levels.size(); ++i) {
         const auto& l = levels[i];
-        const long row_line = table.rows[i].line;
-        if (!(l.temperature > 0.0 && l.pressure > 0.0))
+        const std::string where = file + ":" + std::to_string(table.rows[i].line) + ": ";
+        if (!(l.temperature > 0.0 && (!has_pressure || l.pressure > 0.0)))
           diagnostics_.add(key, line,
-                           file + ":" + std::to_string(row_line) +
-                               ": temperature and pressure must be positive");
+                           where + (has_pressure ? "temperature and pressure must be positive"
+                                                 : "temperature must be positive"));
         if (i > 0 && !(l.altitude > levels[i - 1].altitude))
-          diagnostics_.add(key, line,
-                           file + ":" + std::to_string(row_line) +
-                               ": altitudes must increase strictly down the file");
+          diagnostics_.add(key, line, where + "altitudes must increase strictly down the file");
         // Hydrostatic balance: pressure falls with height everywhere in a real atmosphere; a
         // level with more pressure than the one below it is a mistake in the file (columns
         // swapped, a unit of hPa among Pa).
-        else if (i > 0 && !(l.pressure < levels[i - 1].pressure))
+        else if (has_pressure && i > 0 && !(l.pressure < levels[i - 1].pressure))
           diagnostics_.add(key, line,
-                           file + ":" + std::to_string(row_line) + ": pressure " +
-                               format_number(l.pressure) + " Pa does not fall from the " +
+                           where + "pressure " + format_number(l.pressure) +
+                               " Pa does not fall from the " +
                                format_number(levels[i - 1].pressure) +
                                " Pa of the level below; pressure must fall with height");
       }
+      if (!has_pressure && !levels.empty() &&
+          !(levels.front().altitude >= us1976::lowest_altitude &&
+            levels.front().altitude <= us1976::highest_altitude))
+        diagnostics_.add(key, line,
+                         file +
+                             ": a sounding without column \"pressure_Pa\" starts from the "
+                             "standard atmosphere's pressure at its lowest level, so that "
+                             "level must lie within -5000 .. 86000 m");
       if (levels.size() < 2)
         diagnostics_.add(key, line, file + ": a sounding needs at least two levels");
       scenario_.medium.profile = std::move(levels);

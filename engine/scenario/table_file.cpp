@@ -4,6 +4,7 @@
 #include <cmath>
 #include <filesystem>
 #include <fstream>
+#include <limits>
 #include <sstream>
 
 #include "core/text.hpp"
@@ -11,6 +12,8 @@
 namespace strewn {
 
 namespace {
+constexpr std::size_t kAbsent = static_cast<std::size_t>(-1);  // an optional column not there
+
 std::string trim(const std::string& s) {
   const auto a = s.find_first_not_of(" \t\r");
   if (a == std::string::npos) return "";
@@ -26,9 +29,38 @@ std::vector<std::string> split(const std::string& line) {
   if (!line.empty() && line.back() == ',') out.emplace_back();
   return out;
 }
+
+// Where each requested column sits in the header `cells` (kAbsent: an optional one not there).
+std::vector<std::size_t> header_columns(const std::vector<std::string>& cells,
+                                        const std::vector<std::string>& columns,
+                                        std::size_t optional_from, const std::string& where) {
+  std::vector<std::size_t> index;
+  for (const auto& column : columns) {
+    std::size_t found = cells.size();
+    for (std::size_t i = 0; i < cells.size(); ++i) {
+      if (cells[i] != column) continue;
+      if (found != cells.size())
+        throw TableFileError(where + ": the header names column \"" + column +
+                             "\" twice; which one holds the values is not clear");
+      found = i;
+    }
+    if (found != cells.size()) {
+      index.push_back(found);
+    } else if (index.size() >= optional_from) {
+      index.push_back(kAbsent);
+    } else {
+      std::string all;
+      for (const auto& c : columns) all += (all.empty() ? "" : ", ") + c;
+      throw TableFileError(where + ": the header lacks column \"" + column +
+                           "\" (expected columns: " + all + ")");
+    }
+  }
+  return index;
+}
 }  // namespace
 
-TableFile read_table_file(const std::string& path, const std::vector<std::string>& columns) {
+TableFile read_table_file(const std::string& path, const std::vector<std::string>& columns,
+                          std::size_t optional_from) {
   // A regular file of sane size only: a device (/dev/zero), a pipe or a folder would make the
   // reading hang or fail obscurely.
   constexpr std::uintmax_t kLargest = std::uintmax_t{64} << 20;
@@ -58,32 +90,17 @@ TableFile read_table_file(const std::string& path, const std::vector<std::string
     const std::string content = trim(line);
     if (content.empty() || content[0] == '#') continue;
     const auto cells = split(content);
-    if (index.empty()) {
-      for (const auto& column : columns) {
-        std::size_t found = cells.size();
-        for (std::size_t i = 0; i < cells.size(); ++i) {
-          if (cells[i] != column) continue;
-          if (found != cells.size())
-            throw TableFileError(path + ":" + std::to_string(number) +
-                                 ": the header names column \"" + column +
-                                 "\" twice; which one holds the values is not clear");
-          found = i;
-        }
-        if (found == cells.size())
-          throw TableFileError(path + ":" + std::to_string(number) +
-                               ": the header lacks column \"" + column + "\" (expected columns: " +
-                               [&] {
-                                 std::string all;
-                                 for (const auto& c : columns) all += (all.empty() ? "" : ", ") + c;
-                                 return all;
-                               }() +
-                               ")");
-        index.push_back(found);
-      }
+    if (table.present.empty()) {
+      index = header_columns(cells, columns, optional_from, path + ":" + std::to_string(number));
+      for (std::size_t k : index) table.present.push_back(k != kAbsent);
       continue;
     }
     TableFile::Row row{number, {}};
     for (std::size_t k = 0; k < index.size(); ++k) {
+      if (index[k] == kAbsent) {
+        row.values.push_back(std::numeric_limits<double>::quiet_NaN());
+        continue;
+      }
       if (index[k] >= cells.size())
         throw TableFileError(path + ":" + std::to_string(number) + ": missing value for \"" +
                              columns[k] + "\"");
@@ -97,7 +114,7 @@ TableFile read_table_file(const std::string& path, const std::vector<std::string
     }
     table.rows.push_back(std::move(row));
   }
-  if (index.empty()) throw TableFileError(path + ": no header line (is the file empty?)");
+  if (table.present.empty()) throw TableFileError(path + ": no header line (is the file empty?)");
   return table;
 }
 

@@ -1,6 +1,7 @@
 #include "scenario/world.hpp"
 
 #include <algorithm>
+#include <cmath>
 #include <variant>
 
 #include "core/constants.hpp"
@@ -20,6 +21,15 @@ World build_world(const Scenario& s) {
     }
     return Medium::us1976();
   }();
+  // The hot/cold days the flights may draw (a fixed offset: that day alone; an unbounded
+  // distribution: all but 1e-12 of it at each end, the rest held at the ends).
+  const Uncertain& offset = s.medium.temperature_offset;
+  if (!(offset.is_fixed() && offset.p1() == 0.0)) {
+    const double lowest = std::isfinite(offset.lowest()) ? offset.lowest() : offset.quantile(1e-12);
+    const double highest =
+        std::isfinite(offset.highest()) ? offset.highest() : offset.quantile(1.0 - 1e-12);
+    medium.tabulate_offsets(lowest, highest);
+  }
   return {std::move(medium), WindProfile(s.wind.layers, s.site.ground_level()), s.site.ground};
 }
 

@@ -102,6 +102,31 @@ void BM_BundleFlight_terrain(benchmark::State& state) {
 }
 BENCHMARK(BM_BundleFlight_terrain)->Unit(benchmark::kMicrosecond);
 
+// The same bundle on a hot day drawn from a range (+7.3 K out of a normal offset of sd 4 K: a
+// lattice of days, four weighed per query), against BM_BundleFlight_strewn: the cost of the
+// hydrostatic hot or cold day (medium/medium.hpp).
+void BM_BundleFlight_hot_day(benchmark::State& state) {
+  const auto& b = bundle();
+  static const Medium drawn_days = [] {
+    Medium m = Medium::us1976();
+    m.tabulate_offsets(-28.0, 28.0);  // +-7 sd, as a study tabulates a normal offset's range
+    return m;
+  }();
+  Environment environment = b.environment;
+  environment.medium = &drawn_days;
+  environment.conditions = {7.3, 1.0};
+  FlightOptions options;  // default tolerance 0.05 m
+  FlightResult result;
+  for (auto _ : state) {
+    result = fly(b.body, environment, b.release, options);
+    benchmark::DoNotOptimize(result);
+  }
+  if (result.status != FlightStatus::landed) state.SkipWithError("the bundle did not land");
+  state.counters["days"] = static_cast<double>(drawn_days.offsets().size());
+  state.counters["steps"] = static_cast<double>(result.steps);
+}
+BENCHMARK(BM_BundleFlight_hot_day)->Unit(benchmark::kMicrosecond);
+
 // Odeint at the loosest tolerance (a factor-2 ladder) whose impact error is no worse than
 // strewn's at the default tolerance: the same accuracy, for a fair comparison of cost.
 void BM_BundleFlight_odeint_dopri5(benchmark::State& state) {

@@ -1,9 +1,14 @@
 // The medium against the U.S. Standard Atmosphere 1976 tables, and the tabulation error bounds.
 #include <gtest/gtest.h>
 
+#include <algorithm>
+#include <array>
+#include <boost/numeric/odeint.hpp>
 #include <cmath>
 #include <random>
+#include <vector>
 
+#include "core/constants.hpp"
 #include "medium/gravity.hpp"
 #include "medium/medium.hpp"
 #include "medium/us1976.hpp"
@@ -68,17 +73,85 @@ TEST(MediumTable, InterpolationErrorIsBounded) {
   EXPECT_LT(worst_sound, 1e-7);
 }
 
-// Hot/cold day: T' = T + dT on the standard pressure, rho = p / (R T') (ideal gas law).
-TEST(MediumTable, TemperatureOffsetAndDensityFactor) {
-  const Medium table = Medium::us1976();
-  const MediumConditions hot{15.0, 1.1};
-  for (double z : {0.0, 1234.0, 11000.0, 30000.0}) {
-    const auto s = us1976::at(z);
-    const double expected =
-        1.1 * s.pressure / (constants::air_specific_gas_constant * (s.temperature + 15.0));
-    EXPECT_NEAR(table.density(z, hot) / expected, 1.0, 2e-6);
-    EXPECT_NEAR(table.air(z, hot).sound_speed, us1976::sound_speed(s.temperature + 15.0), 1e-4);
+// The pressure of a hot or cold day, integrated independently: Boost.Odeint's Dormand-Prince
+// (tolerance 1e-12) on the hydrostatic equation dp/dz = -p g(z) / (R (T(z) + dT)) with the exact
+// US76 temperature (NOAA-S/T 76-1562 eqs. 18 and 33a; g(z) = g0 (r0 / (r0 + z))^2, eq. 17) from
+// the standard's 101 325 Pa at sea level, up and down. Returns p at each altitude of `heights`
+// (increasing from 0 upward, or decreasing from 0 downward).
+std::vector<double> hydrostatic_pressures(double offset, const std::vector<double>& heights) {
+  namespace odeint = boost::numeric::odeint;
+  using State = std::array<double, 1>;
+  const auto balance = [offset](const State& p, State& dpdz, double z) {
+    dpdz[0] = -p[0] * gravity(z) /
+              (constants::air_specific_gas_constant * (us1976::at(z).temperature + offset));
+  };
+  std::vector<double> out;
+  State p{101325.0};
+  double z = 0.0;
+  for (double next : heights) {
+    odeint::integrate_adaptive(
+        odeint::make_controlled(1e-12, 1e-12, odeint::runge_kutta_dopri5<State>()), balance, p, z,
+        next, next > z ? 10.0 : -10.0);
+    z = next;
+    out.push_back(p[0]);
   }
+  return out;
+}
+
+// A hot or cold day is an atmosphere in hydrostatic balance at T' = T + dT: its pressure against
+// the independent integration above, to the tabulation's own error (linear interpolation of an
+// exponential over 25 m: (h / Hs)^2 / 8 with the day's scale height Hs = R T' / g0, below 3e-6
+// but for the coldest days high up), for a fixed offset (one day tabulated) and for offsets drawn
+// within a range (the cubic between days 5 K apart).
+TEST(MediumTable, HotAndColdDaysAreInHydrostaticBalance) {
+  const std::vector<double> up{1234.0, 11000.0, 20000.0, 30000.0, 50000.0, 85000.0};
+  const std::vector<double> down{-2500.0, -4900.0};
+  for (double offset : {25.0, -30.0, 13.7, -61.3}) {
+    SCOPED_TRACE("offset " + std::to_string(offset) + " K");
+    Medium fixed = Medium::us1976();
+    fixed.tabulate_offsets(offset, offset);
+    Medium drawn = Medium::us1976();
+    drawn.tabulate_offsets(-70.0, 40.0);
+    const MediumConditions day{offset, 1.1};
+    const auto above = hydrostatic_pressures(offset, up);
+    const auto below = hydrostatic_pressures(offset, down);
+    for (const Medium* table : {&fixed, &drawn}) {
+      for (std::size_t i = 0; i < up.size(); ++i) {
+        const double t = us1976::at(up[i]).temperature + offset;
+        const double scale_height = constants::air_specific_gas_constant * t / constants::g0;
+        // The tabulation's bound, and the cubic's 1e-6 (medium.cpp, tabulate_offsets).
+        const double tolerance =
+            std::max(3e-6, 1.1 * std::pow(25.0 / scale_height, 2) / 8.0) + 1e-6;
+        EXPECT_NEAR(table->pressure(up[i], day) / above[i], 1.0, tolerance) << up[i] << " m";
+        const double rho = 1.1 * above[i] / (constants::air_specific_gas_constant * t);
+        EXPECT_NEAR(table->density(up[i], day) / rho, 1.0, tolerance) << up[i] << " m";
+        EXPECT_NEAR(table->air(up[i], day).sound_speed, us1976::sound_speed(t), 1e-4);
+      }
+      for (std::size_t i = 0; i < down.size(); ++i)
+        EXPECT_NEAR(table->pressure(down[i], day) / below[i], 1.0, 3e-6) << down[i] << " m";
+      // Sea level keeps the standard's pressure whatever the day.
+      EXPECT_NEAR(table->pressure(0.0, day), 101325.0, 1e-6);
+    }
+  }
+}
+
+// At zero offset the day is the standard atmosphere itself, with or without the lattice; and the
+// old reading (the standard pressure under a warmer temperature) is off at altitude by the share
+// the balanced day's pressure gains: at +25 K and 20 km, a third (the integration above gives
+// p'/p = 1.326: the old density was 25 % under the balanced day's).
+TEST(MediumTable, ZeroOffsetIsTheStandardAtmosphere) {
+  Medium table = Medium::us1976();
+  table.tabulate_offsets(-40.0, 40.0);
+  for (double z : {-3000.0, 0.0, 5000.0, 20000.0, 80000.0}) {
+    EXPECT_NEAR(table.density(z, {}) / us1976::at(z).density, 1.0, 3e-6);
+    EXPECT_NEAR(table.pressure(z, {}) / us1976::at(z).pressure, 1.0, 3e-6);
+  }
+  const double balanced = hydrostatic_pressures(25.0, {20000.0})[0];
+  EXPECT_NEAR(balanced / us1976::at(20000.0).pressure, 1.326, 1e-3);
+  EXPECT_NEAR(table.pressure(20000.0, {25.0, 1.0}) / balanced, 1.0, 3e-6);
+  // An offset outside the lattice takes the pressure of its nearer end; none at all is refused.
+  EXPECT_DOUBLE_EQ(table.pressure(9000.0, {55.0, 1.0}), table.pressure(9000.0, {40.0, 1.0}));
+  EXPECT_THROW((void)Medium::us1976().density(1000.0, {5.0, 1.0}), std::logic_error);
 }
 
 // A sounding built from US76 levels 1 km apart. In the isothermal layer (11 019 .. 20 063 m
@@ -100,6 +173,35 @@ TEST(MediumProfile, LogPressureInterpolation) {
   EXPECT_THROW(Medium::profile({{0.0, 288.0, 1e5}}), std::invalid_argument);
   EXPECT_THROW(Medium::profile({{0.0, 288.0, 1e5}, {0.0, 280.0, 9e4}}), std::invalid_argument);
   EXPECT_THROW(Medium::profile({{0.0, 288.0, 1e5}, {10.0, -1.0, 9e4}}), std::invalid_argument);
+}
+
+// A sounding that gives temperature without pressure: the standard atmosphere's pressure at its
+// lowest level and the hydrostatic law above it. Levels of the exact US76 temperature 500 m apart,
+// and at the bases of its layers, then reproduce US76's pressure to the error of linear
+// temperature between levels (the temperature is linear in geopotential, not quite in altitude:
+// below 1e-5), and a hot day on it keeps the lowest level's pressure and balances like the
+// standard's.
+TEST(MediumProfile, TemperatureWithoutPressureIsBalancedHydrostatically) {
+  std::vector<double> heights;
+  for (double z = 0.0; z <= 30000.0; z += 500.0) heights.push_back(z);
+  for (double base : {11000.0, 20000.0})  // geopotential bases, as geometric altitudes
+    heights.push_back(constants::earth_radius * base / (constants::earth_radius - base));
+  std::sort(heights.begin(), heights.end());
+  std::vector<SoundingLevel> levels;
+  for (double z : heights) levels.push_back({z, us1976::at(z).temperature, std::nan("")});
+  Medium profile = Medium::profile(levels);
+  for (double z : {0.0, 750.0, 5000.0, 11000.0, 15100.0, 29990.0})
+    EXPECT_NEAR(profile.pressure(z, {}) / us1976::at(z).pressure, 1.0, 1e-5) << z << " m";
+  profile.tabulate_offsets(20.0, 20.0);
+  const auto balanced = hydrostatic_pressures(20.0, {12000.0, 25000.0});
+  EXPECT_NEAR(profile.pressure(12000.0, {20.0, 1.0}) / balanced[0], 1.0, 1e-5);
+  EXPECT_NEAR(profile.pressure(25000.0, {20.0, 1.0}) / balanced[1], 1.0, 1e-5);
+  // Some levels with pressure and some without is not a sounding strewn reads.
+  levels[3].pressure = 9e4;
+  EXPECT_THROW(Medium::profile(levels), std::invalid_argument);
+  // Starting above the standard's 86 km, no pressure can be borrowed from it.
+  EXPECT_THROW(Medium::profile({{90000.0, 190.0, std::nan("")}, {91000.0, 190.0, std::nan("")}}),
+               std::invalid_argument);
 }
 
 TEST(MediumUniform, ConstantEverywhere) {

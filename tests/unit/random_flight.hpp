@@ -39,6 +39,9 @@ inline RandomFlight draw_flight(std::mt19937_64& rng) {
   }
   f.wind = WindProfile(layers, ground);
   f.environment = Environment{&f.medium, {u(-20.0, 20.0), u(0.9, 1.1)}, &f.wind, ground};
+  // The hot or cold day of this flight (its pressure balanced hydrostatically).
+  const double offset = f.environment.conditions.temperature_offset;
+  f.medium.tabulate_offsets(offset, offset);
   const int model = tank ? pick(3) : pick(4);
   // Linear-drag droplets in air fall so slowly that an explicit reference needs a step per few
   // milliseconds: they fall from at most 20 m (and exercise the quasi-steady form).

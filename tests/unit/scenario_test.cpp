@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <cmath>
 #include <fstream>
 #include <limits>
 #include <set>
@@ -506,6 +507,47 @@ TEST(Scenario, EnumNamesRoundTrip) {
   for (DragModel model = 0; model < kDragModels; ++model)
     EXPECT_EQ(drag_model_named(drag_model_name(model)), model);
   EXPECT_FALSE(drag_model_named("spere").has_value());
+}
+
+}  // namespace
+}  // namespace strewn
+
+namespace strewn {
+namespace {
+
+// A sounding of temperature alone, read from its file: its lowest level takes the standard
+// atmosphere's pressure there (U.S. Standard Atmosphere 1976, NOAA-S/T 76-1562, Part 4 Table I:
+// 89 876 Pa at 1000 m, printed to 5 figures; tests/reference/us1976_table.csv), and a hot day drawn
+// in the scenario keeps that pressure and adds some aloft (the hydrostatic law with a warmer
+// column: MediumTable.HotAndColdDaysAreInHydrostaticBalance checks the figures).
+TEST(Scenario, ASoundingWithoutPressureIsBalancedFromTheStandardAtItsLowestLevel) {
+  const test::ScratchFolder folder("sounding");
+  std::ofstream(folder / "sounding.csv") << "altitude_m,temperature_K\n"
+                                            "1000,281.65\n3000,268.65\n6000,249.15\n";
+  std::ofstream(folder / "drop.toml") << R"([site]
+ground = 1000.0
+[medium]
+model = "profile"
+profile = "sounding.csv"
+temperature_offset = { dist = "uniform", min = 0.0, max = 20.0 }
+[release]
+altitude = 2500.0
+[[body]]
+name = "crate"
+mass = 10.0
+[body.drag]
+model = "area"
+cd = 1.0
+area = 0.2
+)";
+  const Scenario s = load_scenario((folder / "drop.toml").string());
+  ASSERT_EQ(s.medium.profile.size(), 3u);
+  EXPECT_TRUE(std::isnan(s.medium.profile[1].pressure));
+  const World world = build_world(s);
+  EXPECT_NEAR(world.medium.pressure(1000.0, {}) / 89876.0, 1.0, 1e-4);
+  EXPECT_GE(world.medium.offsets().size(), 4u);  // a lattice over 0 .. 20 K
+  EXPECT_NEAR(world.medium.pressure(1000.0, {20.0, 1.0}), world.medium.pressure(1000.0, {}), 1e-6);
+  EXPECT_GT(world.medium.pressure(5000.0, {20.0, 1.0}), world.medium.pressure(5000.0, {}) * 1.01);
 }
 
 }  // namespace
