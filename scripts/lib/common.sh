@@ -26,10 +26,11 @@ install_packages() {
 # The compiler cache: a second build of the same sources, in this clone or in another one
 # (paths are taken relative to the clone, and the working folder is left out of the key), is
 # read from ~/.cache/ccache instead of compiled again. Debug information may then name the
-# other clone's folder; the objects are otherwise the same.
+# other clone's folder; the objects are otherwise the same. The settings are exported here, in
+# the shell that builds: the function below runs in a subshell, $(...), whose exports are lost.
+export CCACHE_BASEDIR="$STREWN_ROOT" CCACHE_NOHASHDIR=1
 compiler_cache_arguments() {
   command -v ccache >/dev/null || return 0
-  export CCACHE_BASEDIR="$STREWN_ROOT" CCACHE_NOHASHDIR=1
   echo -DCMAKE_CXX_COMPILER_LAUNCHER=ccache -DCMAKE_C_COMPILER_LAUNCHER=ccache
 }
 
