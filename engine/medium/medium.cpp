@@ -80,9 +80,9 @@ std::vector<Medium::TablePoint> Medium::tabulation_points() const {
   return points;
 }
 
-std::vector<Medium::PressureCell> Medium::offset_day(double offset) const {
+std::vector<Medium::PressureCell> Medium::offset_day(double offset,
+                                                     const std::vector<TablePoint>& points) const {
   const auto count = static_cast<std::size_t>(last_index_);
-  const std::vector<TablePoint> points = tabulation_points();
   // ln(p'/p) = (g0/R) * integral of [1/T - 1/(T + dT)] (r0/(r0+z))^2 dz from the bottom, one
   // Simpson panel per piece (its error, h^5/2880 times the fourth derivative of an integrand
   // varying over tens of kilometres, is below 1e-15).
@@ -141,6 +141,7 @@ void Medium::tabulate_offsets(double lowest, double highest) {
   if (!(lowest <= highest)) throw std::invalid_argument("offsets: lowest above highest");
   offset_nodes_.clear();
   offset_cells_.clear();
+  const std::vector<TablePoint> points = tabulation_points();
   if (highest - lowest < 1e-9) {
     offset_nodes_.push_back(lowest);
   } else {
@@ -151,7 +152,6 @@ void Medium::tabulate_offsets(double lowest, double highest) {
     // interval): D h <= 0.07 keeps that below 1e-6. At most 5 K apart and 256 days (30 MB); that
     // cap binds only for ranges reaching about -60 K and below, where the bound then grows in
     // the coldest, highest air.
-    const std::vector<TablePoint> points = tabulation_points();
     double slope = 0.0;
     for (std::size_t j = 1; j < points.size(); ++j) {
       const double t = 0.5 * (points[j - 1].t + points[j].t) + lowest;
@@ -168,7 +168,7 @@ void Medium::tabulate_offsets(double lowest, double highest) {
   const std::size_t days = offset_nodes_.size();
   offset_cells_.resize(cells_.size() * days);
   for (std::size_t k = 0; k < days; ++k) {
-    const std::vector<PressureCell> day = offset_day(offset_nodes_[k]);
+    const std::vector<PressureCell> day = offset_day(offset_nodes_[k], points);
     for (std::size_t i = 0; i < day.size(); ++i) offset_cells_[i * days + k] = day[i];
   }
 }

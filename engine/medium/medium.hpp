@@ -153,14 +153,15 @@ class Medium {
   template <class Model>
   void tabulate(const Model& model, double step, const std::vector<double>& kinks);
 
-  // ln(p'/p) at every tabulation point for offset dT (the integral of the header), then the
-  // cells of that day.
-  [[nodiscard]] std::vector<PressureCell> offset_day(double offset) const;
   // The ends of every piece of the table with their temperature (increasing altitude).
   struct TablePoint {
     double z, t;
   };
   [[nodiscard]] std::vector<TablePoint> tabulation_points() const;
+  // ln(p'/p) at every tabulation point `points` for offset dT (the integral of the header), then
+  // the cells of that day.
+  [[nodiscard]] std::vector<PressureCell> offset_day(double offset,
+                                                     const std::vector<TablePoint>& points) const;
 
   Medium() = default;
 

@@ -41,17 +41,25 @@ double miss(const Vec3& impact) {
   return (impact - bundle().reference).head<2>().norm();
 }
 
-void BM_BundleFlight_strewn(benchmark::State& state) {
+// The bundle flown in `environment` at the default tolerance (0.05 m) for as long as the
+// benchmark asks, with its steps and evaluations as counters; the last flight's result.
+FlightResult fly_bundle(benchmark::State& state, const Environment& environment) {
   const auto& b = bundle();
-  FlightOptions options;  // default tolerance 0.05 m
+  FlightOptions options;
   FlightResult result;
   for (auto _ : state) {
-    result = fly(b.body, b.environment, b.release, options);
+    result = fly(b.body, environment, b.release, options);
     benchmark::DoNotOptimize(result);
   }
-  state.counters["impact_error_m"] = miss(result.position);
+  if (result.status != FlightStatus::landed) state.SkipWithError("the bundle did not land");
   state.counters["steps"] = static_cast<double>(result.steps);
   state.counters["evaluations"] = static_cast<double>(result.evaluations);
+  return result;
+}
+
+void BM_BundleFlight_strewn(benchmark::State& state) {
+  const FlightResult result = fly_bundle(state, bundle().environment);
+  state.counters["impact_error_m"] = miss(result.position);
 }
 BENCHMARK(BM_BundleFlight_strewn)->Unit(benchmark::kMicrosecond);
 
@@ -86,19 +94,9 @@ Grounds rolling_terrain() {
 }
 
 void BM_BundleFlight_terrain(benchmark::State& state) {
-  const auto& b = bundle();
-  Environment environment = b.environment;
+  Environment environment = bundle().environment;
   environment.ground = rolling_terrain();
-  FlightOptions options;  // default tolerance 0.05 m
-  FlightResult result;
-  for (auto _ : state) {
-    result = fly(b.body, environment, b.release, options);
-    benchmark::DoNotOptimize(result);
-  }
-  if (result.status != FlightStatus::landed) state.SkipWithError("the bundle did not land");
-  state.counters["ground_m"] = result.position.z();
-  state.counters["steps"] = static_cast<double>(result.steps);
-  state.counters["evaluations"] = static_cast<double>(result.evaluations);
+  state.counters["ground_m"] = fly_bundle(state, environment).position.z();
 }
 BENCHMARK(BM_BundleFlight_terrain)->Unit(benchmark::kMicrosecond);
 
@@ -106,24 +104,16 @@ BENCHMARK(BM_BundleFlight_terrain)->Unit(benchmark::kMicrosecond);
 // lattice of days, four weighed per query), against BM_BundleFlight_strewn: the cost of the
 // hydrostatic hot or cold day (medium/medium.hpp).
 void BM_BundleFlight_hot_day(benchmark::State& state) {
-  const auto& b = bundle();
   static const Medium drawn_days = [] {
     Medium m = Medium::us1976();
     m.tabulate_offsets(-28.0, 28.0);  // +-7 sd, as a study tabulates a normal offset's range
     return m;
   }();
-  Environment environment = b.environment;
+  Environment environment = bundle().environment;
   environment.medium = &drawn_days;
   environment.conditions = {7.3, 1.0};
-  FlightOptions options;  // default tolerance 0.05 m
-  FlightResult result;
-  for (auto _ : state) {
-    result = fly(b.body, environment, b.release, options);
-    benchmark::DoNotOptimize(result);
-  }
-  if (result.status != FlightStatus::landed) state.SkipWithError("the bundle did not land");
+  fly_bundle(state, environment);
   state.counters["days"] = static_cast<double>(drawn_days.offsets().size());
-  state.counters["steps"] = static_cast<double>(result.steps);
 }
 BENCHMARK(BM_BundleFlight_hot_day)->Unit(benchmark::kMicrosecond);
 
